@@ -1,0 +1,63 @@
+"""Command line: ``regimetrend COMMAND FILE [options]``.
+
+Each command lives in its own module with a ``register(subparsers)`` function; this module only
+collects them, runs the chosen one and turns ``InputError`` into one line on standard error and
+exit code 2 (no traceback for bad input).
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+from ..errors import InputError
+
+# Command modules, in the order they appear in --help.
+COMMANDS = ("forecast", "scan", "compare", "report", "demo")
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse that reports a bad option as one line and exit code 2."""
+
+    def error(self, message):  # noqa: D401 - argparse API
+        raise InputError(f"{self.prog}: {message}")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="regimetrend",
+                     description="Find where a trend's growth regime changed, compare "
+                                 "regime-aware forecasts with one global trend, and report "
+                                 "growth by regime.")
+    from .. import __version__
+    parser.add_argument("--version", action="version", version=f"regimetrend {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for name in COMMANDS:
+        try:
+            module = importlib.import_module(f"{__name__}.{name}")
+        except ModuleNotFoundError as exc:
+            if exc.name == f"{__name__}.{name}":
+                continue  # command not built yet
+            raise
+        module.register(sub)
+    return parser
+
+
+def main(argv=None) -> int:
+    try:
+        parser = build_parser()
+        args = parser.parse_args(argv)
+        if not getattr(args, "run", None):
+            parser.print_help()
+            return 2
+        return int(args.run(args) or 0)
+    except InputError as exc:
+        print(f"regimetrend: error: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("regimetrend: interrupted", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,96 @@
+"""``regimetrend forecast FILE``: one global trend, scored on a holdout, then forecast ahead."""
+
+from __future__ import annotations
+
+import csv
+import io
+from pathlib import Path
+
+from ..forecast import fit_history, trend_forecast
+from ..holdout import holdout_check
+from . import options
+from .text import caution_lines, fmt, table
+
+
+def register(sub) -> None:
+    p = sub.add_parser("forecast", help="fit one global trend, score it on a holdout and "
+                                        "forecast ahead with prediction intervals")
+    options.add_input_options(p)
+    options.add_model_options(p)
+    p.add_argument("--holdout", type=options._positive_int, default=None, metavar="K",
+                   help="periods held out for scoring (default: one seasonal cycle, at least 4)")
+    p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
+                   help="periods to forecast (default: one seasonal cycle, at least 4)")
+    options.add_output_options(p, "folder for forecast.csv and forecast.png")
+    p.set_defaults(run=run)
+
+
+def default_steps(series) -> int:
+    """One seasonal cycle, at least 4 periods."""
+    return max(series.frequency.season_length, 4)
+
+
+def run(args) -> int:
+    series = options.load_from_args(args)
+    spec = options.model_from_args(args, series)
+    k = args.holdout or default_steps(series)
+    h = args.horizon or default_steps(series)
+    if args.output:
+        options.check_output_folder(args.output)
+    held = holdout_check(series, spec, k)
+    fc = trend_forecast(series, spec, h)
+    result = {"series": series.to_dict(), "model": spec.to_dict(),
+              "forecast": fc.rows(), "point_forecast": "mean",
+              "holdout": held.to_dict(), "cautions": caution_lines(series, None)}
+    outputs = {}
+    if args.output:
+        folder = Path(args.output)
+        fit = fit_history(series, spec)
+        from ..report.forecast_chart import forecast_png
+
+        png = forecast_png(series, fit.fitted(), 0, fc)
+        csv_text = forecast_csv(fc)
+        outputs["forecast_csv"] = str(options.write_atomic(folder / "forecast.csv", csv_text))
+        outputs["forecast_png"] = str(options.write_atomic(folder / "forecast.png", png))
+        result["outputs"] = outputs
+    if args.json:
+        print(options.dumps(result))
+    else:
+        print(render(series, spec, held, fc, outputs))
+    return 0
+
+
+def forecast_csv(fc) -> str:
+    buf = io.StringIO()
+    fields = ["date", "label", "mean", "median", "lower80", "upper80", "lower95", "upper95"]
+    writer = csv.DictWriter(buf, fieldnames=fields, lineterminator="\n")
+    writer.writeheader()
+    for row in fc.rows():
+        writer.writerow({k: (repr(v) if isinstance(v, float) else v) for k, v in row.items()})
+    return buf.getvalue()
+
+
+def render(series, spec, held, fc, outputs) -> str:
+    m = held.metrics
+    lines = [f"{series.name}: {series.n} {series.frequency.name} periods, "
+             f"{series.label(0)} to {series.label(series.n - 1)}",
+             f"model: global {spec.describe()}", ""]
+    for note in series.notes:
+        lines.append(f"note: {note}")
+    lines.append(f"holdout: fitted on the first {series.n - held.k} periods, scored on the last "
+                 f"{held.k} (original units)")
+    lines.append(table(["ME", "MAE", "RMSE", "MAPE %", "MASE", "80% cover", "95% cover"],
+                       [[fmt(m["me"]), fmt(m["mae"]), fmt(m["rmse"]),
+                         fmt(m["mape"]) if m["mape"] is not None else "undefined (zero actual)",
+                         fmt(m["mase"]), fmt(100 * m["coverage80"], 0) + "%",
+                         fmt(100 * m["coverage95"], 0) + "%"]]))
+    lines += ["", f"forecast, refitted on all {series.n} periods (point = mean):"]
+    rows = [[r["label"], fmt(r["mean"]), fmt(r["median"]),
+             f"{fmt(r['lower80'])} to {fmt(r['upper80'])}",
+             f"{fmt(r['lower95'])} to {fmt(r['upper95'])}"] for r in fc.rows()]
+    lines.append(table(["period", "mean", "median", "80% interval", "95% interval"], rows))
+    lines.append("")
+    lines += [f"caution: {c}" for c in caution_lines(series, None)]
+    for name, path in outputs.items():
+        lines.append(f"wrote {path}")
+    return "\n".join(lines)

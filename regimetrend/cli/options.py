@@ -1,0 +1,159 @@
+"""Options shared by several commands, and safe output helpers.
+
+Outputs are written to a temporary file in the target folder and renamed into place, so a
+failure never leaves a half-written file and the input is never touched.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import InputError
+
+
+def add_input_options(p) -> None:
+    p.add_argument("file", metavar="FILE", help="CSV, Excel (.xlsx) or Parquet file with a date "
+                                                "column and a value column")
+    p.add_argument("--date-column", help="name of the date column (found by itself when obvious)")
+    p.add_argument("--value-column", help="name of the value column (found by itself when obvious)")
+    p.add_argument("--frequency", help="calendar of the series, e.g. monthly, quarterly, weekly, "
+                                       "'2 weeks' (inferred by default)")
+    p.add_argument("--decimal", default=".", help="decimal mark of the values: '.' (default) or ','")
+    p.add_argument("--fill-missing", action="store_true",
+                   help="fill missing values and calendar gaps by linear interpolation")
+    p.add_argument("--sheet", help="sheet name of an Excel workbook (first sheet by default)")
+    p.add_argument("--name", help="name of the series in outputs (the value column by default)")
+
+
+def add_model_options(p) -> None:
+    p.add_argument("--shape", default="linear", choices=("linear", "exponential", "quadratic"),
+                   help="trend shape (default linear)")
+    p.add_argument("--seasonality", default="auto", choices=("auto", "none", "dummies", "adjust"),
+                   help="seasonal terms; auto = dummies for seasonal calendars, none otherwise")
+    p.add_argument("--season-length", type=_positive_int, default=None,
+                   help="periods in a seasonal cycle (12 monthly, 4 quarterly, 52 weekly, 7 daily)")
+
+
+def add_break_options(p) -> None:
+    p.add_argument("--kind", default="auto", choices=("auto", "level", "slope", "both"),
+                   help="what may change at a break: level (jump), slope (kink), both; "
+                        "auto lets the criterion choose")
+    p.add_argument("--max-breaks", type=_nonnegative_int, default=3,
+                   help="largest number of breaks considered (default 3)")
+    p.add_argument("--event", action="append", default=[], metavar="DATE",
+                   help="a known event date to test as a break (repeatable)")
+    p.add_argument("--trim", type=_trim, default=None,
+                   help="shortest regime: a share of the series (below 1) or a number of periods")
+    p.add_argument("--criterion", default="bic", choices=("bic", "lwz", "sequential"),
+                   help="how the number of breaks is chosen (default bic)")
+    p.add_argument("--seasonal-by-regime", action="store_true",
+                   help="let the seasonal pattern change at each break too")
+
+
+def add_output_options(p, output_help: str = "folder for the output files") -> None:
+    p.add_argument("--json", action="store_true", help="print the full result as JSON")
+    p.add_argument("--output", metavar="DIR", help=output_help)
+
+
+def _positive_int(text):
+    try:
+        v = int(text)
+    except ValueError:
+        raise InputError(f"expected a whole number, got {text!r}") from None
+    if v < 1:
+        raise InputError(f"expected a whole number of at least 1, got {text!r}")
+    return v
+
+
+def _nonnegative_int(text):
+    try:
+        v = int(text)
+    except ValueError:
+        raise InputError(f"expected a whole number, got {text!r}") from None
+    if v < 0:
+        raise InputError(f"expected a whole number of at least 0, got {text!r}")
+    return v
+
+
+def _trim(text):
+    try:
+        v = float(text)
+    except ValueError:
+        raise InputError(f"option --trim: expected a share below 1 or a number of periods, "
+                         f"got {text!r}") from None
+    if v <= 0 or (v >= 1 and v != int(v)):
+        raise InputError(f"option --trim: expected a share between 0 and 1 or a whole number of "
+                         f"periods, got {text!r}")
+    return v if v < 1 else int(v)
+
+
+def load_from_args(args):
+    """Read the series named on the command line with the input options."""
+    from ..intake import load_series
+
+    return load_series(args.file, date_column=args.date_column, value_column=args.value_column,
+                       frequency=args.frequency, decimal=args.decimal,
+                       fill_missing=args.fill_missing, name=args.name, sheet=args.sheet)
+
+
+def model_from_args(args, series):
+    """The TrendSpec the options ask for, with season length and 'auto' resolved."""
+    from ..settings import resolve_spec
+
+    return resolve_spec(series, shape=args.shape, seasonality=args.seasonality,
+                        season_length=args.season_length)
+
+
+def json_safe(obj):
+    """Plain JSON types: NaN and infinities become null, numpy scalars become Python ones."""
+    if isinstance(obj, dict):
+        return {str(k): json_safe(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [json_safe(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return [json_safe(v) for v in obj.tolist()]
+    if isinstance(obj, (np.floating, float)):
+        v = float(obj)
+        return v if math.isfinite(v) else None
+    if isinstance(obj, np.integer):
+        return int(obj)
+    if isinstance(obj, np.bool_):
+        return bool(obj)
+    if isinstance(obj, np.datetime64):
+        return str(obj.astype("datetime64[D]"))
+    return obj
+
+
+def dumps(obj) -> str:
+    return json.dumps(json_safe(obj), indent=2, allow_nan=False)
+
+
+def write_atomic(path, data) -> Path:
+    """Write text or bytes to ``path`` through a temporary file renamed into place."""
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    mode = "wb" if isinstance(data, (bytes, bytearray)) else "w"
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+    try:
+        with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})) as fh:
+            fh.write(data)
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+    return path
+
+
+def check_output_folder(folder) -> Path:
+    """The output folder, refused up front when it exists as a file."""
+    folder = Path(folder)
+    if folder.exists() and not folder.is_dir():
+        raise InputError(f"option --output: {folder} exists and is not a folder")
+    return folder

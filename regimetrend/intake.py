@@ -74,7 +74,7 @@ _MONTHS_PER_UNIT = {"year": 12, "quarter": 3, "month": 1}
 _DAYS_PER_UNIT = {"week": 7, "day": 1}
 
 _MISSING_WORDS = {"", "na", "n/a", "nan", "null", "none", "-", "--", "\u2014", ".", "#n/a"}
-_INDEX_NAMES = re.compile(r"^(unnamed: ?\d+|rownames|index|row|#)$", re.IGNORECASE)
+_INDEX_NAMES = re.compile(r"^(unnamed: ?\d+|column \d+|rownames|index|row|#)$", re.IGNORECASE)
 _DATE_WORDS = re.compile(r"date|time|period|year|month|quarter|week|day|\bdt\b", re.IGNORECASE)
 _GENERIC_VALUE_NAMES = {"value", "values", "y", "v", "amount"}
 _DATE_FORMS_HELP = ("2019, 2019-07, 2019-07-01, 2019Q3, 2019-Q3, Q3 2019, 07/2019, 2019/07, "
@@ -125,7 +125,7 @@ def load_series(source, *, date_column=None, value_column=None, frequency=None, 
 
     freq = wanted if wanted is not None else _infer_frequency(starts, rows, hint, dcol)
     if freq.unit == "week":
-        freq = Frequency("week", freq.step, int(pd.Timestamp(starts[0]).dayofweek))
+        freq = Frequency("week", freq.step, int(pd.Timestamp(starts[0]).day_of_week))
     aligned = _period_starts(starts, freq.unit)
     moved = int(np.sum(aligned != starts))
     if moved:
@@ -327,13 +327,11 @@ def _table_from_records(records, label, sep_hint=None) -> _Table:
         raise InputError(f"{label} is empty")
     header_line, first = records[0]
     has_header = any(isinstance(c, str) and c != "" and not _is_data_cell(c) for c in first)
-    width = max(len(cells) for _, cells in records)
     if has_header:
-        width = max(width, len(first))
-        names = _unique_names([first[k] if k < len(first) else "" for k in range(width)])
+        names = _unique_names(first)
         body = records[1:]
     else:
-        names = [f"column {k + 1}" for k in range(width)]
+        names = [f"column {k + 1}" for k in range(len(first))]
         body = records
     cols = {n: [] for n in names}
     for line, cells in body:
@@ -341,7 +339,8 @@ def _table_from_records(records, label, sep_hint=None) -> _Table:
             extra = cells[len(names):]
             if any(c != "" for c in extra):
                 where = f" (separator {sep_hint!r})" if sep_hint else ""
-                raise InputError(f"row {line} has {len(cells)} fields but the header has "
+                head = "the header" if has_header else "the first row"
+                raise InputError(f"row {line} has {len(cells)} fields but {head} has "
                                  f"{len(names)}{where}; quote values that contain the separator")
         for k, n in enumerate(names):
             cols[n].append(cells[k] if k < len(cells) else "")
@@ -468,7 +467,7 @@ def _choose_value_column(table: _Table, dcol: str, value_column, decimal) -> str
 
 
 def _is_row_index(name: str, cells) -> bool:
-    """A pandas/R row-number column (``Unnamed: 0``, ``rownames``) holding 0..n-1 or 1..n."""
+    """A pandas/R row-number column (unnamed, ``rownames``, ``index``) holding 0..n-1 or 1..n."""
     if not _INDEX_NAMES.match(str(name).strip()):
         return False
     try:
@@ -870,7 +869,7 @@ def _infer_frequency(starts, rows, hint, column) -> Frequency:
     d = np.diff(starts.astype(np.int64))
     if np.all(d % 7 == 0):
         return Frequency("week", _regular_step(d // 7, rows, "week", column),
-                         int(idx[0].dayofweek))
+                         int(idx[0].day_of_week))
     return Frequency("day", _regular_step(d, rows, "day", column))
 
 

@@ -1,0 +1,633 @@
+"""Growth by regime: how fast each regime grew, with honest intervals, and the change at each break.
+
+One joint least-squares model is fitted on the model scale (logs for the exponential shape): each
+regime has its own trend terms, the seasonal terms (when asked for) are shared by all regimes.
+What a break may change follows the break kind:
+
+- ``both``   each regime has its own level and slope (and curvature for the quadratic shape);
+- ``slope``  the trend is continuous: it bends at each break (hinge terms), no jump;
+- ``level``  each regime has its own level, the slope is shared (growth cannot differ).
+
+Every figure is a smooth function of the coefficients, so its standard error comes from the
+Newey-West (HAC) covariance of the coefficients and the delta method (gradients carried exactly
+by forward-mode differentiation below). Intervals are value +/- 1.96 standard errors, except for
+figures that are monotone maps of a single log-growth coefficient (the exponential shape's
+growth rates and doubling time): those carry the interval of that coefficient through the map,
+which keeps them inside their natural bounds (never below -100%).
+
+Per shape, with p periods a year, g the growth per period, "level" the fitted trend level
+without seasonal effects:
+
+- exponential: g = e^b - 1; annualised (1 + g)^p - 1; doubling time ln 2 / b periods (b > 0);
+- linear: the yearly increase b p in units and as % of the fitted level at the regime's end
+  (the headline) and at its start;
+- quadratic: growth at the regime's end (slope there, per period and a year, as % of the level
+  at the end) and the average over the regime (the fitted change per period, and the compound
+  annual rate from the fitted start level to the fitted end level).
+
+The change of growth across a break is tested with a Wald test of equal growth coefficients
+(slope per period; slope and curvature for the quadratic shape) using the same HAC covariance.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Sequence
+
+import numpy as np
+from scipy import stats
+
+from . import ols
+from .design import (TimeScale, TrendSpec, seasonal_columns, seasonal_pattern, season_index,
+                     to_model_scale)
+from .errors import InputError
+from .series import Series
+
+LEVEL = 0.95
+KINDS = ("both", "slope", "level")
+
+
+# ---------------------------------------------------------------------------------------------
+# forward-mode differentiation: a value and its gradient with respect to the coefficients
+
+
+@dataclass(frozen=True, eq=False)
+class _Dual:
+    value: float
+    grad: np.ndarray
+
+    def __add__(self, other):
+        other = _lift(other, self)
+        return _Dual(self.value + other.value, self.grad + other.grad)
+
+    __radd__ = __add__
+
+    def __sub__(self, other):
+        other = _lift(other, self)
+        return _Dual(self.value - other.value, self.grad - other.grad)
+
+    def __rsub__(self, other):
+        return _lift(other, self) - self
+
+    def __mul__(self, other):
+        other = _lift(other, self)
+        return _Dual(self.value * other.value, self.grad * other.value + other.grad * self.value)
+
+    __rmul__ = __mul__
+
+    def __truediv__(self, other):
+        other = _lift(other, self)
+        v = self.value / other.value
+        return _Dual(v, (self.grad - v * other.grad) / other.value)
+
+    def __rtruediv__(self, other):
+        return _lift(other, self) / self
+
+    def exp(self):
+        v = math.exp(self.value)
+        return _Dual(v, v * self.grad)
+
+    def log(self):
+        return _Dual(math.log(self.value), self.grad / self.value)
+
+
+def _lift(x, like: _Dual) -> _Dual:
+    return x if isinstance(x, _Dual) else _Dual(float(x), np.zeros_like(like.grad))
+
+
+# ---------------------------------------------------------------------------------------------
+# results
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """One growth figure: the value, its delta-method standard error and its 95% interval."""
+
+    value: float | None
+    se: float | None
+    lower: float | None
+    upper: float | None
+
+    @property
+    def ci95(self) -> list:
+        return [self.lower, self.upper]
+
+    def to_dict(self) -> dict:
+        return {"value": _clean(self.value), "se": _clean(self.se), "ci95": [_clean(self.lower),
+                                                                             _clean(self.upper)]}
+
+
+@dataclass(frozen=True)
+class RegimeGrowth:
+    """Growth figures of one regime; ``figures`` maps a figure name to its ``Estimate``."""
+
+    index: int
+    start: int  # first position
+    end: int  # last position (inclusive)
+    start_date: str
+    end_date: str
+    start_label: str
+    end_label: str
+    figures: dict = field(default_factory=dict)
+    notes: tuple[str, ...] = ()
+
+    @property
+    def periods(self) -> int:
+        return self.end - self.start + 1
+
+    def get(self, name: str) -> Estimate | None:
+        return self.figures.get(name)
+
+    def growth_dict(self) -> dict:
+        """The flat ``growth`` block of a segment: ``name``, ``name_se``, ``name_ci95``."""
+        out = {}
+        for name, est in self.figures.items():
+            out[name] = _clean(est.value)
+            out[f"{name}_se"] = _clean(est.se)
+            out[f"{name}_ci95"] = [_clean(est.lower), _clean(est.upper)]
+        out["notes"] = list(self.notes)
+        return out
+
+    def to_dict(self) -> dict:
+        return {"index": self.index, "start": self.start_date, "end": self.end_date,
+                "start_label": self.start_label, "end_label": self.end_label,
+                "start_position": self.start, "end_position": self.end,
+                "periods": self.periods, "growth": self.growth_dict()}
+
+
+@dataclass(frozen=True)
+class GrowthChange:
+    """The change of growth from one regime to the next, and the Wald test of no change."""
+
+    break_index: int
+    date: str
+    label: str
+    annualised_pct_change: Estimate  # percentage points
+    wald: float | None
+    df: int
+    p_value: float | None
+    note: str = ""
+
+    def to_dict(self) -> dict:
+        return {"break": self.break_index, "date": self.date, "label": self.label,
+                "annualised_pct_change": _clean(self.annualised_pct_change.value),
+                "annualised_pct_change_se": _clean(self.annualised_pct_change.se),
+                "annualised_pct_change_ci95": [_clean(self.annualised_pct_change.lower),
+                                               _clean(self.annualised_pct_change.upper)],
+                "wald": _clean(self.wald), "df": self.df, "p_value": _clean(self.p_value),
+                "note": self.note}
+
+
+@dataclass(frozen=True)
+class GrowthTable:
+    """Growth of every regime of one series, and the change across each break."""
+
+    series_name: str
+    spec: TrendSpec
+    kind: str
+    periods_per_year: float
+    frequency: str
+    hac_lags: int
+    regimes: tuple[RegimeGrowth, ...]
+    changes: tuple[GrowthChange, ...]
+    headline: str  # which figure is the headline annualised growth, in words
+
+    @property
+    def last(self) -> RegimeGrowth:
+        return self.regimes[-1]
+
+    def to_dict(self) -> dict:
+        return {"series": self.series_name, "shape": self.spec.shape, "kind": self.kind,
+                "spec": self.spec.to_dict(), "frequency": self.frequency,
+                "periods_per_year": self.periods_per_year,
+                "covariance": f"Newey-West HAC, Bartlett kernel, {self.hac_lags} lags, "
+                              f"small-sample factor n/(n-k)",
+                "intervals": "95%, delta method" + (
+                    "; exponential growth rates and doubling time carry the interval of the "
+                    "log-growth coefficient through the monotone map"
+                    if self.spec.log_scale else ""),
+                "headline": self.headline,
+                "segments": [r.to_dict() for r in self.regimes],
+                "changes": [c.to_dict() for c in self.changes]}
+
+
+def _clean(x):
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+# ---------------------------------------------------------------------------------------------
+# the regime model: coefficients beta, their covariance, and each regime's trend in terms of beta
+
+
+@dataclass(frozen=True, eq=False)
+class _RegimeTrend:
+    """Trend of one regime: f(t) = theta . [1, u, u^2], u = (t - center) / spread, theta = A beta."""
+
+    start: int
+    end: int
+    center: float
+    spread: float
+    A: np.ndarray  # 3 x len(beta)
+
+    def theta(self, beta: np.ndarray) -> list[_Dual]:
+        return [_Dual(float(row @ beta), row.copy()) for row in self.A]
+
+    def level(self, beta, t: float) -> _Dual:
+        a, b, c = self.theta(beta)
+        u = (t - self.center) / self.spread
+        return a + b * u + c * (u * u)
+
+    def slope(self, beta, t: float) -> _Dual:
+        """Derivative of the trend per period at position t."""
+        _, b, c = self.theta(beta)
+        u = (t - self.center) / self.spread
+        return (b + c * (2.0 * u)) / self.spread
+
+    def curvature(self, beta) -> _Dual:
+        """Change of the per-period slope per period (second derivative)."""
+        _, _, c = self.theta(beta)
+        return c * (2.0 / self.spread ** 2)
+
+
+@dataclass(frozen=True, eq=False)
+class _Model:
+    beta: np.ndarray
+    cov: np.ndarray
+    regimes: tuple[_RegimeTrend, ...]
+    lags: int
+
+
+def _check_breaks(n: int, breaks: Sequence[int], spec: TrendSpec, kind: str) -> list[int]:
+    positions = sorted(int(b) for b in breaks)
+    if len(set(positions)) != len(positions):
+        raise InputError("breaks: the same break position is given twice")
+    edges = [0] + positions + [n]
+    per_regime = spec.trend_terms if kind == "both" else 1
+    for i in range(len(edges) - 1):
+        if edges[i + 1] - edges[i] < max(per_regime, 1) + 1 or not 0 <= edges[i] < n:
+            raise InputError(f"breaks: regime {i + 1} (positions {edges[i]}..{edges[i + 1] - 1}) "
+                             f"is too short for a {spec.shape} trend of its own")
+    return positions
+
+
+def _joint_design(n: int, breaks: list[int], spec: TrendSpec, kind: str):
+    """Trend columns of the joint regime model and each regime's map from beta to theta."""
+    t = np.arange(n, dtype=float)
+    edges = [0] + breaks + [n]
+    m = len(edges) - 1
+    quad = spec.shape == "quadratic"
+    cols: list[np.ndarray] = []
+    maps: list[tuple[int, int, float, float, list]] = []  # per regime: rows of A as (col, weight)
+    if kind == "both":
+        for r in range(m):
+            s, e = edges[r], edges[r + 1]
+            sc = TimeScale.for_positions(np.arange(s, e))
+            inside = ((t >= s) & (t < e)).astype(float)
+            u = sc.u(t)
+            base = len(cols)
+            cols += [inside, inside * u] + ([inside * u * u] if quad else [])
+            rows = [[(base, 1.0)], [(base + 1, 1.0)], [(base + 2, 1.0)] if quad else []]
+            maps.append((s, e - 1, sc.center, sc.spread, rows))
+        return cols, maps
+    sc = TimeScale.for_positions(t)
+    u = sc.u(t)
+    if kind == "level":
+        for r in range(m):
+            cols.append(((t >= edges[r]) & (t < edges[r + 1])).astype(float))
+        slope_col = len(cols)
+        cols.append(u)
+        if quad:
+            cols.append(u * u)
+        for r in range(m):
+            rows = [[(r, 1.0)], [(slope_col, 1.0)], [(slope_col + 1, 1.0)] if quad else []]
+            maps.append((edges[r], edges[r + 1] - 1, sc.center, sc.spread, rows))
+        return cols, maps
+    # continuous: hinges at the boundary between the last old and the first new period
+    cols += [np.ones(n), u] + ([u * u] if quad else [])
+    knots = [float(sc.u(b - 0.5)) for b in breaks]
+    hinge_cols = []
+    for k in knots:
+        h = np.maximum(u - k, 0.0)
+        hinge_cols.append((len(cols), len(cols) + 1 if quad else None, k))
+        cols.append(h)
+        if quad:
+            cols.append(h * h)
+    for r in range(m):
+        const, lin, sq = [(0, 1.0)], [(1, 1.0)], [(2, 1.0)] if quad else []
+        for d_col, e_col, k in hinge_cols[:r]:
+            const.append((d_col, -k))
+            lin.append((d_col, 1.0))
+            if quad:
+                const.append((e_col, k * k))
+                lin.append((e_col, -2.0 * k))
+                sq.append((e_col, 1.0))
+        maps.append((edges[r], edges[r + 1] - 1, sc.center, sc.spread, [const, lin, sq]))
+    return cols, maps
+
+
+def _fit_joint(series: Series, spec: TrendSpec, breaks: list[int], kind: str,
+               lags: int | None) -> _Model:
+    n = series.n
+    y = to_model_scale(series.values, spec)
+    positions = np.arange(n)
+    first = series.first_season()
+    if spec.seasonality == "adjust":
+        pattern = seasonal_pattern(y, positions, first, spec.season_length)
+        y = y - pattern[season_index(positions, first, spec.season_length)]
+    cols, maps = _joint_design(n, breaks, spec, kind)
+    X = np.column_stack(cols)
+    if spec.seasonality == "dummies":
+        X = np.hstack([X, seasonal_columns(positions, first, spec.season_length)])
+    if X.shape[0] - X.shape[1] < 2:
+        raise InputError(f"the series has {n} points, too few for {len(breaks) + 1} regimes "
+                         f"of a {spec.describe()}")
+    try:
+        res = ols.fit(X, y)
+    except ols.RankDeficient as exc:
+        raise InputError(f"the regime model cannot be fitted as a {spec.describe()}: {exc}") from None
+    L = ols.newey_west_lags(n) if lags is None else int(lags)
+    cov = res.cov_hac(L, small_sample=True)
+    k = X.shape[1]
+    regimes = []
+    for s, e, center, spread, rows in maps:
+        A = np.zeros((3, k))
+        for i, terms in enumerate(rows):
+            for col, w in terms:
+                A[i, col] += w
+        regimes.append(_RegimeTrend(s, e, center, spread, A))
+    return _Model(res.beta, cov, tuple(regimes), L)
+
+
+def _model_from_fits(fits) -> _Model:
+    """Independent per-regime fits (``TrendFit`` objects, in time order) as one block model."""
+    betas, covs, regimes, lags = [], [], [], []
+    offset = 0
+    total = sum(f.fit.k for f in fits)
+    for f in fits:
+        L = ols.newey_west_lags(f.fit.n)
+        lags.append(L)
+        betas.append(f.fit.beta)
+        covs.append(f.fit.cov_hac(L, small_sample=True))
+        A = np.zeros((3, total))
+        for i in range(f.spec.trend_terms):
+            A[i, offset + i] = 1.0
+        pos = np.asarray(f.positions)
+        regimes.append(_RegimeTrend(int(pos.min()), int(pos.max()), f.scale.center,
+                                    f.scale.spread, A))
+        offset += f.fit.k
+    cov = np.zeros((total, total))
+    o = 0
+    for c in covs:
+        cov[o:o + len(c), o:o + len(c)] = c
+        o += len(c)
+    return _Model(np.concatenate(betas), cov, tuple(regimes), max(lags))
+
+
+# ---------------------------------------------------------------------------------------------
+# figures
+
+
+def _z(level: float) -> float:
+    return float(stats.norm.ppf(0.5 + level / 2.0))
+
+
+def _delta(d: _Dual, cov: np.ndarray, z: float) -> Estimate:
+    var = float(d.grad @ cov @ d.grad)
+    se = math.sqrt(max(var, 0.0))
+    if not math.isfinite(d.value):
+        return Estimate(None, None, None, None)
+    return Estimate(d.value, se, d.value - z * se, d.value + z * se)
+
+
+def _mapped(b: _Dual, fn, cov: np.ndarray, z: float, increasing: bool = True) -> Estimate:
+    """A monotone function of one coefficient: value, delta-method se, mapped interval."""
+    var = float(b.grad @ cov @ b.grad)
+    se_b = math.sqrt(max(var, 0.0))
+    value = fn(b)
+    lo, hi = fn(b.value - z * se_b), fn(b.value + z * se_b)
+    if not increasing:
+        lo, hi = hi, lo
+    se = math.sqrt(max(float(value.grad @ cov @ value.grad), 0.0))
+    return Estimate(value.value, se, _value(lo), _value(hi))
+
+
+def _value(x):
+    return x.value if isinstance(x, _Dual) else x
+
+
+def _ratio_pct(num: _Dual, den: _Dual, cov, z) -> Estimate | None:
+    if den.value <= 0:
+        return None
+    return _delta(num / den * 100.0, cov, z)
+
+
+def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z: float):
+    """All figures of one regime, and notes on those that are undefined."""
+    figures: dict[str, Estimate] = {}
+    notes: list[str] = []
+    t0, t1 = float(rt.start), float(rt.end)
+    f0, f1 = rt.level(beta, t0), rt.level(beta, t1)
+    if spec.log_scale:
+        b = rt.slope(beta, t1)  # log growth per period (constant within the regime)
+        figures["log_growth_per_period"] = _delta(b, cov, z)
+
+        def per_period(x):
+            return (x.exp() - 1.0) * 100.0 if isinstance(x, _Dual) else (math.exp(x) - 1) * 100
+
+        def annual(x):
+            return ((x * ppy).exp() - 1.0) * 100.0 if isinstance(x, _Dual) else \
+                (math.exp(x * ppy) - 1) * 100
+
+        figures["per_period_pct"] = _mapped(b, per_period, cov, z)
+        figures["annualised_pct"] = _mapped(b, annual, cov, z)
+        level_end, level_start = f1.exp(), f0.exp()
+        figures["level_start"] = _delta(level_start, cov, z)
+        figures["level_end"] = _delta(level_end, cov, z)
+        figures["per_period_units"] = _delta(level_end * (b.exp() - 1.0), cov, z)
+        figures["annualised_units"] = _delta(level_end * ((b * ppy).exp() - 1.0), cov, z)
+        if b.value > 0:
+            se_b = math.sqrt(max(float(b.grad @ cov @ b.grad), 0.0))
+            lo_b, hi_b = b.value - z * se_b, b.value + z * se_b
+            for name, scale in (("doubling_time_periods", 1.0), ("doubling_time_years", ppy)):
+                d = math.log(2.0) / (b * scale)
+                se = math.sqrt(max(float(d.grad @ cov @ d.grad), 0.0))
+                upper = math.log(2.0) / (lo_b * scale) if lo_b > 0 else None
+                figures[name] = Estimate(d.value, se, math.log(2.0) / (hi_b * scale), upper)
+            if lo_b <= 0:
+                notes.append("the 95% interval of growth includes zero, so the doubling time "
+                             "has no upper bound")
+        else:
+            notes.append("the trend is not growing, so it has no doubling time")
+        return figures, notes
+    figures["level_start"] = _delta(f0, cov, z)
+    figures["level_end"] = _delta(f1, cov, z)
+    slope_end = rt.slope(beta, t1)
+    figures["per_period_units"] = _delta(slope_end, cov, z)
+    figures["annualised_units"] = _delta(slope_end * ppy, cov, z)
+    pct = _ratio_pct(slope_end, f1, cov, z)
+    if pct is None:
+        notes.append("the fitted level at the regime's end is not positive, so growth in % is "
+                     "undefined")
+    else:
+        figures["per_period_pct"] = pct
+        figures["annualised_pct"] = _ratio_pct(slope_end * ppy, f1, cov, z)
+    if spec.shape == "linear":
+        start_pct = _ratio_pct(slope_end * ppy, f0, cov, z)
+        if start_pct is not None:
+            figures["annualised_pct_of_start"] = start_pct
+        return figures, notes
+    # quadratic: growth at the end (above) and the average over the regime
+    span = t1 - t0
+    avg = (f1 - f0) / span
+    figures["average_per_period_units"] = _delta(avg, cov, z)
+    figures["average_annualised_units"] = _delta(avg * ppy, cov, z)
+    if f0.value > 0 and f1.value > 0:
+        cagr = (((f1 / f0).log() * (ppy / span)).exp() - 1.0) * 100.0
+        figures["average_annualised_pct"] = _delta(cagr, cov, z)
+    else:
+        notes.append("the fitted level is not positive at both ends of the regime, so the "
+                     "average growth in % is undefined")
+    figures["curvature_per_period"] = _delta(rt.curvature(beta), cov, z)
+    return figures, notes
+
+
+def _change(prev: _RegimeTrend, nxt: _RegimeTrend, beta, cov, spec, prev_fig, next_fig, z):
+    """Wald test of equal growth coefficients across the break between two regimes."""
+    at = float(nxt.start)
+    diffs = [nxt.slope(beta, at) - prev.slope(beta, at)]
+    if spec.shape == "quadratic":
+        diffs.append(nxt.curvature(beta) - prev.curvature(beta))
+    G = np.vstack([d.grad for d in diffs])
+    dvec = np.array([d.value for d in diffs])
+    V = G @ cov @ G.T
+    scale = np.sqrt(np.maximum(np.diag(V), 0.0))
+    a_prev, a_next = prev_fig.get("annualised_pct"), next_fig.get("annualised_pct")
+    wald = p = None
+    note = ""
+    if np.all(scale <= 1e-14 * (1.0 + np.abs(G).sum())) and np.all(np.abs(dvec) < 1e-12):
+        note = "growth is shared by all regimes under level-only breaks; nothing to test"
+    else:
+        try:
+            wald = float(dvec @ np.linalg.solve(V, dvec))
+            p = float(stats.chi2.sf(wald, len(diffs)))
+        except np.linalg.LinAlgError:
+            note = "the covariance of the growth change is singular; no test"
+    return dvec, wald, p, len(diffs), note, a_prev, a_next
+
+
+def _change_estimate(prev_rt, next_rt, beta, cov, spec, ppy, z) -> Estimate:
+    """Change of the headline annualised % (percentage points), delta method."""
+    def headline(rt):
+        t1 = float(rt.end)
+        if spec.log_scale:
+            return ((rt.slope(beta, t1) * ppy).exp() - 1.0) * 100.0
+        level = rt.level(beta, t1)
+        if level.value <= 0:
+            return None
+        return rt.slope(beta, t1) * ppy / level * 100.0
+
+    a, b = headline(prev_rt), headline(next_rt)
+    if a is None or b is None:
+        return Estimate(None, None, None, None)
+    return _delta(b - a, cov, z)
+
+
+def _headline_words(spec: TrendSpec) -> str:
+    if spec.log_scale:
+        return "compound annual growth of the regime's exponential trend"
+    if spec.shape == "linear":
+        return "yearly increase as % of the fitted level at the regime's end"
+    return "growth at the regime's end, a year's worth, as % of the fitted level there"
+
+
+def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: float) -> GrowthTable:
+    ppy = series.frequency.periods_per_year
+    z = _z(level)
+    regimes = []
+    for i, rt in enumerate(model.regimes):
+        figures, notes = _regime_figures(rt, model.beta, model.cov, spec, ppy, z)
+        regimes.append(RegimeGrowth(i + 1, rt.start, rt.end, series.iso(rt.start),
+                                    series.iso(rt.end), series.label(rt.start),
+                                    series.label(rt.end), figures, tuple(notes)))
+    changes = []
+    for i in range(1, len(model.regimes)):
+        prev, nxt = model.regimes[i - 1], model.regimes[i]
+        _, wald, p, df, note, _, _ = _change(prev, nxt, model.beta, model.cov, spec,
+                                             regimes[i - 1].figures, regimes[i].figures, z)
+        est = _change_estimate(prev, nxt, model.beta, model.cov, spec, ppy, z)
+        changes.append(GrowthChange(i, series.iso(nxt.start), series.label(nxt.start), est,
+                                    wald, df, p, note))
+    return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
+                       tuple(regimes), tuple(changes), _headline_words(spec))
+
+
+# ---------------------------------------------------------------------------------------------
+# entry points
+
+
+def regime_growth(series: Series, spec: TrendSpec, breaks: Sequence[int] = (), *,
+                  kind: str = "both", lags: int | None = None, level: float = LEVEL) -> GrowthTable:
+    """Growth of every regime of ``series`` between the break positions ``breaks``.
+
+    ``breaks`` are positions of the first period of each new regime. ``kind`` says what a break
+    may change (``both``, ``slope``, ``level``); ``lags`` is the Newey-West truncation lag
+    (``floor(4 (n/100)^(2/9))`` by default).
+    """
+    if kind not in KINDS:
+        raise InputError(f"option --kind: {kind!r} is not one of {', '.join(KINDS)}")
+    if not 0 < level < 1:
+        raise InputError("growth interval level must be between 0 and 1")
+    positions = _check_breaks(series.n, breaks, spec, kind)
+    model = _fit_joint(series, spec, positions, kind, lags)
+    return _table(series, spec, kind, model, level)
+
+
+def growth_from_fits(series: Series, fits: Sequence, *, level: float = LEVEL) -> GrowthTable:
+    """Growth from regime trends fitted separately (``TrendFit`` objects in time order).
+
+    Each fit keeps its own HAC covariance; fits are independent, so the change across a break is
+    tested with the sum of the two covariances.
+    """
+    fits = list(fits)
+    if not fits:
+        raise InputError("growth needs at least one fitted regime")
+    spec = fits[0].spec
+    if any(f.spec.shape != spec.shape for f in fits):
+        raise InputError("growth: all regime fits must have the same shape")
+    model = _model_from_fits(fits)
+    return _table(series, spec, "both", model, level)
+
+
+def growth_table(source, spec: TrendSpec | None = None, breaks=None, **options) -> GrowthTable:
+    """Growth by regime from an ``Analysis`` (its own growth table when it has one), or from a
+    ``Series`` with a ``TrendSpec`` and break positions or a ``BreakSet``."""
+    if isinstance(source, Series):
+        if spec is None:
+            raise InputError("growth_table: give the TrendSpec of the trend")
+        kind = options.pop("kind", None)
+        positions, break_kind = _break_positions(breaks)
+        return regime_growth(source, spec, positions, kind=kind or break_kind, **options)
+    existing = getattr(source, "growth", None)
+    if isinstance(existing, GrowthTable) and not options and spec is None and breaks is None:
+        return existing
+    series = getattr(source, "series", None)
+    if not isinstance(series, Series):
+        raise InputError("growth_table: expected an Analysis or a Series")
+    positions, break_kind = _break_positions(getattr(source, "breaks", None)
+                                             if breaks is None else breaks)
+    kind = options.pop("kind", None) or break_kind
+    return regime_growth(series, spec or source.spec, positions, kind=kind, **options)
+
+
+def _break_positions(breaks) -> tuple[list[int], str]:
+    """Positions and break kind from a BreakSet-like object or a plain sequence."""
+    if breaks is None:
+        return [], "both"
+    kind = getattr(breaks, "kind", None)
+    kind = kind if kind in KINDS else "both"
+    positions = getattr(breaks, "positions", breaks)
+    return [int(p) for p in positions], kind

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import asdict, dataclass
+
 from .design import TrendSpec
 from .errors import InputError
 
@@ -18,3 +20,35 @@ def resolve_spec(series, shape: str = "linear", seasonality: str = "auto",
         raise InputError(f"option --seasonality: a {series.frequency.name} series has no "
                          f"seasonal cycle; use none, or give --season-length")
     return TrendSpec(shape=shape, seasonality=seasonality, season_length=s)
+
+
+@dataclass(frozen=True)
+class Settings:
+    """Every choice an analysis depends on, in one frozen value (so results are reproducible).
+
+    ``seasonality='auto'`` and ``season_length=None`` are resolved against the series by
+    ``resolve_spec``. ``horizon=None`` means one seasonal cycle (at least 4 periods).
+    """
+
+    shape: str = "linear"
+    seasonality: str = "auto"
+    season_length: int | None = None
+    kind: str = "auto"
+    max_breaks: int = 3
+    trim: float | int | None = None
+    criterion: str = "bic"
+    events: tuple[str, ...] = ()
+    seasonal_by_regime: bool = False
+    horizon: int | None = None
+    first_origin: int | None = None
+    step: int = 1
+    reuse_breaks: bool = False
+
+    def spec_for(self, series) -> TrendSpec:
+        return resolve_spec(series, self.shape, self.seasonality, self.season_length)
+
+    def horizon_for(self, series) -> int:
+        return self.horizon or max(series.frequency.season_length, 4)
+
+    def to_dict(self) -> dict:
+        return {k: (list(v) if isinstance(v, tuple) else v) for k, v in asdict(self).items()}

@@ -6,6 +6,7 @@ failure never leaves a half-written file and the input is never touched.
 
 from __future__ import annotations
 
+import argparse
 import json
 import math
 import os
@@ -61,35 +62,33 @@ def add_output_options(p, output_help: str = "folder for the output files") -> N
     p.add_argument("--output", metavar="DIR", help=output_help)
 
 
-def _positive_int(text):
+def _whole(text, least):
     try:
         v = int(text)
     except ValueError:
-        raise InputError(f"expected a whole number, got {text!r}") from None
-    if v < 1:
-        raise InputError(f"expected a whole number of at least 1, got {text!r}")
+        raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}") from None
+    if v < least:
+        raise argparse.ArgumentTypeError(f"expected a whole number of at least {least}, "
+                                         f"got {text!r}")
     return v
+
+
+def _positive_int(text):
+    return _whole(text, 1)
 
 
 def _nonnegative_int(text):
-    try:
-        v = int(text)
-    except ValueError:
-        raise InputError(f"expected a whole number, got {text!r}") from None
-    if v < 0:
-        raise InputError(f"expected a whole number of at least 0, got {text!r}")
-    return v
+    return _whole(text, 0)
 
 
 def _trim(text):
     try:
         v = float(text)
     except ValueError:
-        raise InputError(f"option --trim: expected a share below 1 or a number of periods, "
-                         f"got {text!r}") from None
-    if v <= 0 or (v >= 1 and v != int(v)):
-        raise InputError(f"option --trim: expected a share between 0 and 1 or a whole number of "
-                         f"periods, got {text!r}")
+        v = -1.0
+    if not (0 < v < 1 or (v >= 1 and v == int(v))):
+        raise argparse.ArgumentTypeError("expected a share between 0 and 1 or a whole number of "
+                                         f"periods, got {text!r}")
     return v if v < 1 else int(v)
 
 

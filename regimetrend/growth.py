@@ -179,9 +179,12 @@ class GrowthChange:
                 "note": self.note}
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class GrowthTable:
-    """Growth of every regime of one series, and the change across each break."""
+    """Growth of every regime of one series, and the change across each break.
+
+    ``fitted`` holds the regime model's in-sample fitted values in original units (the median
+    for the exponential shape), for charts; it is not part of ``to_dict()``."""
 
     series_name: str
     spec: TrendSpec
@@ -192,6 +195,7 @@ class GrowthTable:
     regimes: tuple[RegimeGrowth, ...]
     changes: tuple[GrowthChange, ...]
     headline: str  # which figure is the headline annualised growth, in words
+    fitted: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
     @property
     def last(self) -> RegimeGrowth:
@@ -259,6 +263,7 @@ class _Model:
     cov: np.ndarray
     regimes: tuple[_RegimeTrend, ...]
     lags: int
+    fitted: np.ndarray  # in-sample fitted values, original units
 
 
 def _check_breaks(n: int, breaks: Sequence[int], spec: TrendSpec, kind: str) -> list[int]:
@@ -306,9 +311,10 @@ def _joint_design(n: int, breaks: list[int], spec: TrendSpec, kind: str):
             rows = [[(r, 1.0)], [(slope_col, 1.0)], [(slope_col + 1, 1.0)] if quad else []]
             maps.append((edges[r], edges[r + 1] - 1, sc.center, sc.spread, rows))
         return cols, maps
-    # continuous: hinges at the boundary between the last old and the first new period
+    # continuous: hinges max(u - u(b - 1), 0), as the continuous strategy uses them, so the
+    # first period of a new regime is the first on the new slope
     cols += [np.ones(n), u] + ([u * u] if quad else [])
-    knots = [float(sc.u(b - 0.5)) for b in breaks]
+    knots = [float(sc.u(b - 1)) for b in breaks]
     hinge_cols = []
     for k in knots:
         h = np.maximum(u - k, 0.0)
@@ -351,6 +357,9 @@ def _fit_joint(series: Series, spec: TrendSpec, breaks: list[int], kind: str,
         raise InputError(f"the regime model cannot be fitted as a {spec.describe()}: {exc}") from None
     L = ols.newey_west_lags(n) if lags is None else int(lags)
     cov = res.cov_hac(L, small_sample=True)
+    fitted = y - res.residuals + (0.0 if spec.seasonality != "adjust" else
+                                  pattern[season_index(positions, first, spec.season_length)])
+    fitted = np.exp(fitted) if spec.log_scale else fitted
     k = X.shape[1]
     regimes = []
     for s, e, center, spread, rows in maps:
@@ -359,7 +368,7 @@ def _fit_joint(series: Series, spec: TrendSpec, breaks: list[int], kind: str,
             for col, w in terms:
                 A[i, col] += w
         regimes.append(_RegimeTrend(s, e, center, spread, A))
-    return _Model(res.beta, cov, tuple(regimes), L)
+    return _Model(res.beta, cov, tuple(regimes), L, fitted)
 
 
 def _model_from_fits(fits) -> _Model:
@@ -384,7 +393,8 @@ def _model_from_fits(fits) -> _Model:
     for c in covs:
         cov[o:o + len(c), o:o + len(c)] = c
         o += len(c)
-    return _Model(np.concatenate(betas), cov, tuple(regimes), max(lags))
+    fitted = np.concatenate([f.fitted() for f in fits])
+    return _Model(np.concatenate(betas), cov, tuple(regimes), max(lags), fitted)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -562,7 +572,7 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
         changes.append(GrowthChange(i, series.iso(nxt.start), series.label(nxt.start), est,
                                     wald, df, p, note))
     return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
-                       tuple(regimes), tuple(changes), _headline_words(spec))
+                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -121,16 +121,16 @@ def test_nile_linear_percent_of_level_interval_is_the_hand_delta_method():
 
 
 def test_continuous_kind_matches_statsmodels_hinge_regression():
-    # statsmodels OLS + HAC on a hand-built hinge design (kink between the last old and the
-    # first new period); planted-break data as the input only.
+    # statsmodels OLS + HAC on a hand-built hinge design (kink at the last period of the old
+    # regime); planted-break data as the input only.
     rng = np.random.default_rng(5)
     n, brk = 80, 50
     t = np.arange(n, dtype=float)
-    y = 100 + 2 * t + 3 * np.maximum(t - (brk - 0.5), 0) + rng.normal(0, 2, n)
+    y = 100 + 2 * t + 3 * np.maximum(t - (brk - 1), 0) + rng.normal(0, 2, n)
     s = Series("planted", pd.date_range("2010-01-01", periods=n, freq="MS").values, y,
                Frequency("month"))
     g = regime_growth(s, TrendSpec("linear"), [brk], kind="slope")
-    X = np.column_stack([np.ones(n), t, np.maximum(t - (brk - 0.5), 0)])
+    X = np.column_stack([np.ones(n), t, np.maximum(t - (brk - 1), 0)])
     L = newey_west_lags(n)
     res = _sm_hac(X, y, L)
     V = res.cov_params()
@@ -230,3 +230,11 @@ def test_bad_breaks_are_input_errors():
         regime_growth(s, TrendSpec("linear"), [50], kind="jump")
     with pytest.raises(InputError, match="twice"):
         regime_growth(s, TrendSpec("linear"), [50, 50])
+
+
+def test_fitted_values_follow_the_series():
+    s = _rseries("AirPassengers", "month", "1949-01-01")
+    for seasonality in ("dummies", "adjust"):
+        g = regime_growth(s, TrendSpec("exponential", seasonality, 12), [72])
+        assert g.fitted.shape == (s.n,)
+        assert np.median(np.abs(np.log(g.fitted / s.values))) < 0.05

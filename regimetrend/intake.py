@@ -77,6 +77,8 @@ _MISSING_WORDS = {"", "na", "n/a", "nan", "null", "none", "-", "--", "\u2014", "
 _INDEX_NAMES = re.compile(r"^(unnamed: ?\d+|column \d+|rownames|index|row|#)$", re.IGNORECASE)
 _DATE_WORDS = re.compile(r"date|time|period|year|month|quarter|week|day|\bdt\b", re.IGNORECASE)
 _GENERIC_VALUE_NAMES = {"value", "values", "y", "v", "amount"}
+_DETECT_SAMPLE = 500  # cells looked at to recognise a column; parsing then reads every cell
+_ISO_DAY = re.compile(r"\d{4}-\d{2}-\d{2}")
 _DATE_FORMS_HELP = ("2019, 2019-07, 2019-07-01, 2019Q3, 2019-Q3, Q3 2019, 07/2019, 2019/07, "
                     "2019-W27, Jul 2019, 2019-07-01 12:00")
 
@@ -96,8 +98,8 @@ def load_series(source, *, date_column=None, value_column=None, frequency=None, 
     ``decimal`` is the decimal mark in text values ("." or ","). ``fill_missing`` fills missing
     values and missing periods by linear interpolation on the calendar and says so in the notes.
     ``name`` defaults to the value column's name (or the Series' name, or the file's stem when the
-    column name says nothing, like ``value``). ``sheet`` picks an Excel sheet by name or 0-based
-    position. See the module docstring for the row-number convention used in messages.
+    column name says nothing, like ``value``). ``sheet`` picks an Excel sheet by name or by
+    0-based position (digits that name no sheet count as a position); default the first sheet. See the module docstring for the row-number convention used in messages.
     """
     if decimal not in (".", ","):
         raise InputError(f"--decimal {decimal!r} is not supported; use '.' or ','")
@@ -256,8 +258,9 @@ def _read_text(path: Path, decimal: str) -> _Table:
         for fields in reader:
             line = end_of_previous + 1
             end_of_previous = reader.line_num
-            if any(f.strip() for f in fields):
-                records.append((line, [f.strip() for f in fields]))
+            stripped = [f.strip() for f in fields]
+            if any(stripped):
+                records.append((line, stripped))
     except csv.Error as exc:
         raise InputError(f"{path.name!r} line {end_of_previous + 1}: cannot read the text "
                          f"({exc})") from None
@@ -292,6 +295,8 @@ def _read_excel(path: Path, sheet) -> _Table:
                          f"supported file types are {', '.join(SUPPORTED_EXTENSIONS)}") from None
     try:
         names = book.sheetnames
+        if isinstance(sheet, str) and sheet not in names and sheet.strip().isdigit():
+            sheet = int(sheet)
         if sheet is None:
             ws = book[names[0]]
         elif isinstance(sheet, int) and 0 <= sheet < len(names):
@@ -479,11 +484,11 @@ def _is_row_index(name: str, cells) -> bool:
 
 
 def _is_date_form_column(cells) -> bool:
-    """Every non-empty cell is a date object or a text date form other than a bare number."""
+    """Every sampled non-empty cell is a date object or a text date form other than a number."""
     if isinstance(cells, np.ndarray):
         return np.issubdtype(cells.dtype, np.datetime64)
     seen = False
-    for c in cells:
+    for c in cells[:_DETECT_SAMPLE]:
         if _is_missing(c):
             continue
         if isinstance(c, str):
@@ -496,10 +501,10 @@ def _is_date_form_column(cells) -> bool:
 
 
 def _is_year_number_column(cells, decimal) -> bool:
-    nums = _numbers(cells, decimal)
+    nums = _numbers(cells[:_DETECT_SAMPLE], decimal)
     if nums is None or nums.size == 0 or np.any(np.isnan(nums)):
         return False
-    if np.any((nums < 1000) | (nums >= 3000)) or np.unique(nums).size != nums.size:
+    if np.any((nums < 1000) | (nums >= 3000)):
         return False
     return _decimal_year_unit(nums) is not None
 
@@ -530,7 +535,7 @@ def _numbers(cells, decimal):
 def _mostly_numeric(cells, decimal) -> bool:
     if isinstance(cells, np.ndarray):
         return np.issubdtype(cells.dtype, np.number) and not np.all(np.isnan(cells))
-    present = [c for c in cells if not _is_missing(c)]
+    present = [c for c in cells[:_DETECT_SAMPLE] if not _is_missing(c)]
     if not present:
         return False
     good = 0
@@ -626,6 +631,9 @@ def _parse_dates(cells, rows, column, decimal):
         if bad.size:
             raise InputError(f"row {rows[bad[0]]}, column {column!r}: the date is missing")
         return cells.astype("datetime64[D]"), None
+    fast = _iso_days(cells)
+    if fast is not None:
+        return fast, None
     nums = _numbers(cells, decimal)
     if nums is not None and len(nums) == len(cells) and len(cells):
         return _dates_from_year_numbers(nums, rows, column)
@@ -643,6 +651,19 @@ def _parse_dates(cells, rows, column, decimal):
         starts[k], hint = parsed
         hints.add(hint)
     return starts, (hints.pop() if len(hints) == 1 else None)
+
+
+def _iso_days(cells):
+    """Fast path for a column of plain ISO dates (2019-07-01); None when any cell is otherwise."""
+    if not isinstance(cells, list) or not cells \
+            or not all(isinstance(c, str) and len(c) == 10 for c in cells):
+        return None
+    if not all(_ISO_DAY.fullmatch(c) for c in cells):
+        return None
+    try:
+        return np.array(cells, dtype="datetime64[D]")
+    except ValueError:  # an impossible date such as 2019-02-30: the slow path names its row
+        return None
 
 
 def _bad_date_message(cell, row, column) -> str:
@@ -787,6 +808,8 @@ def _parse_values(cells, rows, column, decimal) -> np.ndarray:
         raise InputError(f"column {column!r} holds dates, not values; choose the value column "
                          f"with --value-column")
     else:
+        values = _plain_floats(cells) if decimal == "." else None
+    if values is None:
         values = np.empty(len(cells), dtype=float)
         for k, cell in enumerate(cells):
             if _is_missing(cell):
@@ -801,6 +824,13 @@ def _parse_values(cells, rows, column, decimal) -> np.ndarray:
     if bad.size:
         raise InputError(f"row {rows[bad[0]]}, column {column!r}: the value is infinite")
     return values
+
+
+def _plain_floats(cells):
+    """Fast path for text cells that are all plain numbers written with a decimal point."""
+    if not all(isinstance(c, str) and _PLAIN.fullmatch(c) and "," not in c for c in cells):
+        return None
+    return np.array(cells, dtype=float)
 
 
 def _bad_value_message(cell, row, column, decimal, reason) -> str:
@@ -849,7 +879,8 @@ def _month_numbers(starts) -> np.ndarray:
 def _infer_frequency(starts, rows, hint, column) -> Frequency:
     """Unit and step from the notation (hint) and the spacing of the sorted period starts."""
     idx = pd.DatetimeIndex(starts)
-    month_family = hint in _MONTHS_PER_UNIT or bool(np.all(idx.day == 1)) \
+    same_day_of_month = bool(np.all(idx.day == idx.day[0])) and idx.day[0] <= 28
+    month_family = hint in _MONTHS_PER_UNIT or same_day_of_month \
         or bool(np.all(idx.is_month_end))
     if month_family:
         d = np.diff(_month_numbers(starts))

@@ -642,3 +642,37 @@ def test_require_positive_names_first_bad_period():
     with pytest.raises(InputError, match=r"the exponential shape needs values above zero.*"
                                          r"0 at 2020-03 \(point 3 of 5; 2 such values"):
         require_positive(monthly([1, 2, 0, 4, -1]), "the exponential shape")
+
+
+def test_same_day_each_month_is_monthly(tmp_path):
+    series = load_series(write(tmp_path, csv_of(["2019-01-15", "2019-02-15", "2019-03-15",
+                                                  "2019-04-15"])))
+    assert series.frequency == Frequency("month")
+    assert "4 dates inside a period were moved to the start of their month (first at row 2)" \
+        in series.notes
+
+
+def test_same_month_each_year_is_annual(tmp_path):
+    series = load_series(write(tmp_path, csv_of(["2019-12-31", "2020-12-31", "2021-12-31"])))
+    assert series.frequency == Frequency("year")
+    assert series.label(0) == "2019"
+
+
+def test_override_coarser_than_data_names_rows(tmp_path):
+    path = write(tmp_path, csv_of(["2019-01", "2019-02", "2019-03"]))
+    with pytest.raises(InputError, match=r"rows 2 and 3 fall in the same year"):
+        load_series(path, frequency="annual")
+
+
+def test_duplicate_years_are_reported_not_missed(tmp_path):
+    path = write(tmp_path, csv_of(["2019", "2020", "2020", "2021"], header="year,sales"))
+    with pytest.raises(InputError, match=r"rows 3 and 4 have the same date"):
+        load_series(path)
+
+
+def test_year_column_chosen_by_its_name_when_values_look_like_years(tmp_path):
+    # sales between 1000 and 3000 could be years too; the column called 'year' wins
+    path = write(tmp_path, csv_of(["2019", "2020", "2021"], ["1500", "2750", "1990"],
+                                  header="year,sales"))
+    series = load_series(path)
+    assert series.label(0) == "2019" and series.values[2] == 1990.0

@@ -99,7 +99,8 @@ def load_series(source, *, date_column=None, value_column=None, frequency=None, 
     values and missing periods by linear interpolation on the calendar and says so in the notes.
     ``name`` defaults to the value column's name (or the Series' name, or the file's stem when the
     column name says nothing, like ``value``). ``sheet`` picks an Excel sheet by name or by
-    0-based position (digits that name no sheet count as a position); default the first sheet. See the module docstring for the row-number convention used in messages.
+    0-based position (digits that name no sheet count as a position); default the first sheet.
+    See the module docstring for the row-number convention used in messages.
     """
     if decimal not in (".", ","):
         raise InputError(f"--decimal {decimal!r} is not supported; use '.' or ','")
@@ -438,6 +439,9 @@ def _choose_date_column(table: _Table, date_column, decimal) -> str:
             return even[0]
         raise InputError(f"several columns could hold years ({_list(years)}); name the date "
                          f"column with --date-column")
+    named = [c for c in usable if _DATE_WORDS.search(c)]
+    if len(named) == 1:  # the parser will say which cell is not a date
+        return named[0]
     raise InputError(f"no date column found in {table.label} (columns {_list(table.columns)}); "
                      f"name it with --date-column (accepted forms: {_DATE_FORMS_HELP})")
 
@@ -484,20 +488,21 @@ def _is_row_index(name: str, cells) -> bool:
 
 
 def _is_date_form_column(cells) -> bool:
-    """Every sampled non-empty cell is a date object or a text date form other than a number."""
+    """Most sampled non-empty cells are date objects or text date forms other than numbers.
+
+    A majority (not all) is enough so that one mistyped date is reported with its row by the
+    parser instead of hiding the column.
+    """
     if isinstance(cells, np.ndarray):
         return np.issubdtype(cells.dtype, np.datetime64)
-    seen = False
-    for c in cells[:_DETECT_SAMPLE]:
-        if _is_missing(c):
-            continue
+    present = [c for c in cells[:_DETECT_SAMPLE] if not _is_missing(c)]
+    dated = 0
+    for c in present:
         if isinstance(c, str):
-            if _plain_number(c) or _date_from_text(c) is None:
-                return False
-        elif not isinstance(c, (_dt.date, pd.Period, np.datetime64)):
-            return False
-        seen = True
-    return seen
+            dated += not _plain_number(c) and _date_from_text(c) is not None
+        else:
+            dated += isinstance(c, (_dt.date, pd.Period, np.datetime64))
+    return bool(present) and dated >= 0.5 * len(present)
 
 
 def _is_year_number_column(cells, decimal) -> bool:

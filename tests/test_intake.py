@@ -346,6 +346,8 @@ def test_missing_date_names_row(tmp_path):
 def test_unreadable_date_names_row(tmp_path, cell, pattern):
     path = write(tmp_path, f"date,sales\n2019-01,1\n{cell},2\n2019-03,3\n")
     with pytest.raises(InputError, match=pattern):
+        load_series(path)
+    with pytest.raises(InputError, match=pattern):
         load_series(path, date_column="date")
 
 
@@ -495,8 +497,8 @@ def test_excel_round_trip_with_date_cells(tmp_path):
     before = path.read_bytes()
     series = load_series(path, sheet="data")
     assert series.frequency == Frequency("month")
-    np.testing.assert_array_equal(series.starts, pd.date_range("2020-01-01", periods=6,
-                                                               freq="MS").values.astype("datetime64[D]"))
+    expected = pd.date_range("2020-01-01", periods=6, freq="MS").values.astype("datetime64[D]")
+    np.testing.assert_array_equal(series.starts, expected)
     np.testing.assert_allclose(series.values, 1000 + 10 * np.arange(6))
     assert load_series(path, sheet=1).n == 6
     assert path.read_bytes() == before
@@ -676,3 +678,11 @@ def test_year_column_chosen_by_its_name_when_values_look_like_years(tmp_path):
                                   header="year,sales"))
     series = load_series(path)
     assert series.label(0) == "2019" and series.values[2] == 1990.0
+
+
+def test_windows_encoded_text_file(tmp_path):
+    path = tmp_path / "umsatz.csv"
+    path.write_bytes("Monat;Umsatz\n2019-01;\u20ac 1.234,5\n2019-02;\u20ac 1.300\n"
+                     "2019-03;\u20ac 990,75\n".encode("cp1252"))
+    series = load_series(path, decimal=",")
+    np.testing.assert_allclose(series.values, [1234.5, 1300.0, 990.75])

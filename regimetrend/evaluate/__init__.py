@@ -1,0 +1,179 @@
+"""Evaluation: do regime-aware forecasts beat one global trend on data they did not see?
+
+``compare`` runs a leak-free rolling origin over every candidate (each strategy with each shape),
+scores them in original units, tests each against the global trend (Diebold-Mariano with the
+HLN correction), applies the written-down recommendation rule, decides how much history to keep
+and diagnoses the global trend's late failure. See the submodules for each step's rule.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..design import SHAPES, TrendSpec
+from ..errors import InputError
+from ..forecast import fit_history
+from ..regimes import Strategy, standard_strategies, window_grid
+from ..settings import resolve_spec
+from . import breakinfo
+from .accuracy_tests import compare_errors
+from .diagnosis import default_window, diagnose
+from .history import decide_history
+from .recommend import recommend
+from .result import (OPTIMISTIC_NOTE, CandidateResult, Evaluation, json_clean)
+from .rolling import plan_origins, run_rolling
+from .scores import candidate_scores
+
+__all__ = ["compare", "Evaluation", "break_detector"]
+
+
+def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3, trim=None,
+                   criterion="bic", events=(), season_length=None, seasonal_by_regime=False):
+    """A callable series -> BreakSet running the break search with these settings."""
+    from ..breaks import detect_breaks
+
+    def detect(series):
+        return detect_breaks(series, shape=shape, seasonality=seasonality, kind=kind,
+                             max_breaks=max_breaks, trim=trim, criterion=criterion,
+                             events=events, season_length=season_length,
+                             seasonal_by_regime=seasonal_by_regime)
+    return detect
+
+
+def _event_positions(series, events) -> list[tuple[int, str]]:
+    out = []
+    for e in events:
+        if isinstance(e, (int, np.integer)):
+            p = int(e)
+        else:
+            try:
+                d = np.datetime64(str(e), "D")
+            except ValueError:
+                raise InputError(f"option --event: {e!r} is not a date") from None
+            p = int(np.searchsorted(series.starts, d))
+        if not 0 < p < series.n:
+            raise InputError(f"option --event: {e} is not inside the series "
+                             f"({series.label(0)} to {series.label(series.n - 1)})")
+        out.append((p, series.label(p)))
+    return out
+
+
+def compare(series, shape: str = "linear", seasonality: str = "auto",
+            season_length: int | None = None, kind: str = "auto", max_breaks: int = 3,
+            trim=None, criterion: str = "bic", events=(), seasonal_by_regime: bool = False,
+            horizon: int | None = None, first_origin: int | None = None, step: int = 1,
+            reuse_breaks: bool = False, shapes=None, window_count: int = 10,
+            detector=None, progress=None) -> Evaluation:
+    """Rolling-origin comparison of every candidate against the global ``shape`` trend.
+
+    ``shape`` is the analyst's shape: it sets the reference (global) trend, the break search
+    and the history sweep; ``shapes`` (default all three, exponential only for positive
+    series) are the shapes every strategy is tried with. ``horizon`` defaults to one seasonal
+    cycle (at least 4). ``first_origin`` counts periods known at the first origin (see
+    ``rolling.plan_origins`` for the default), ``step`` the periods between origins.
+    ``reuse_breaks`` reuses the full-sample breaks at every origin: the results are then
+    labelled optimistic. ``detector`` (series -> BreakSet) replaces the default break search;
+    ``progress(done, total)`` is called after each origin."""
+    spec = resolve_spec(series, shape=shape, seasonality=seasonality, season_length=season_length)
+    s = spec.season_length
+    cautions = []
+    if shapes is None:
+        shapes = tuple(sh for sh in SHAPES
+                       if sh != "exponential" or bool(np.all(series.values > 0)))
+        if "exponential" not in shapes:
+            cautions.append("the exponential shape was left out: the series has values of "
+                            "zero or below")
+    shapes = tuple(dict.fromkeys((spec.shape,) + tuple(shapes)))
+    if spec.shape == "exponential" and np.any(series.values <= 0):
+        raise InputError("option --shape: the exponential shape needs positive values")
+    H = int(horizon) if horizon is not None else max(s, 4)
+    if detector is None:
+        detector = break_detector(spec.shape, spec.seasonality, kind, max_breaks, trim,
+                                  criterion, tuple(events), s, seasonal_by_regime)
+    specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
+    min_points = max(sp.minimum_points() for sp in specs)
+    w_min = max(min_points, 2 * s if spec.seasonality != "none" else 0, 8)
+    plan = plan_origins(series.n, H, w_min, first_origin, step)
+
+    full = detector(series)
+    full_positions = breakinfo.positions(full)
+    if reuse_breaks:
+        def breaks_at(o):
+            return tuple(b for b in full_positions if b < o)
+    else:
+        def breaks_at(o):
+            try:
+                return breakinfo.positions(detector(series.head(o)))
+            except InputError:
+                return ()  # too little history for a search at this origin: no breaks known
+
+    grid = window_grid(plan.first, plan.origins[-1], w_min, window_count)
+    ranked = standard_strategies(shapes)
+    for p, label in _event_positions(series, events):
+        ranked.append(Strategy("truncated", spec.shape, start=p, start_label=f"event {label}"))
+    sweep = [Strategy("truncated", spec.shape, start=g, start_label=series.label(g))
+             for g in grid if 0 < g <= plan.first - w_min]
+    ranked_keys = {st.key for st in ranked}
+    sweep = [st for st in sweep if st.key not in ranked_keys]
+    strategies = ranked + sweep
+    table, used = run_rolling(series, strategies, plan, spec.seasonality, s, breaks_at, grid,
+                              progress)
+
+    reference = Strategy("global", spec.shape)
+    e_ref = table.errors(reference.key)
+    results = []
+    for c, st in enumerate(strategies):
+        overall, per_h = candidate_scores(table, c)
+        if st.key == reference.key:
+            vs = {"statistic": None, "p_value": None, "p_value_better": None,
+                  "note": "the reference itself", "per_horizon": []}
+        else:
+            pooled, by_h = compare_errors(e_ref, table.errors(st.key), plan.step)
+            vs = pooled.to_dict()
+            vs["loss"] = "squared error"
+            vs["pooled_over"] = f"horizons 1..{H}, averaged per origin"
+            vs["per_horizon"] = [dict(r.to_dict(), horizon=j + 1) for j, r in enumerate(by_h)]
+        results.append((st, overall, per_h, vs))
+    ref_rmse = next(r[1]["rmse"] for r in results if r[0].key == reference.key)
+    n_ranked = len(ranked)
+    order = sorted(range(n_ranked), key=lambda i: results[i][1]["rmse"])
+    cands = []
+    for rank, i in enumerate(order, start=1):
+        st, overall, per_h, vs = results[i]
+        gain = 1.0 - overall["rmse"] / ref_rmse if ref_rmse > 0 else None
+        cands.append(CandidateResult(st, spec.seasonality, overall, tuple(per_h), vs, gain, rank))
+    sweeps = tuple(CandidateResult(st, spec.seasonality, o, tuple(ph), vs,
+                                   1.0 - o["rmse"] / ref_rmse if ref_rmse > 0 else None, 0, True)
+                   for st, o, ph, vs in results[n_ranked:])
+    ref_result = next(c for c in cands if c.name == reference.key)
+    break_p = breakinfo.supf_pvalue(full)
+    rec = recommend(cands, ref_result, break_p, reuse_breaks)
+
+    blist = breakinfo.break_list(full)
+    last = blist[-1] if blist else None
+    trunc = next(c for c in cands if c.name == Strategy("truncated", spec.shape).key)
+    history = decide_history(series, ref_result, trunc, sweeps, last, break_p, reuse_breaks)
+    fitted = fit_history(series, spec).fitted()
+    diag = diagnose(series, reference.key, fitted, default_window(series.n, H, s),
+                    breakinfo.cusum_crossing(full), blist)
+
+    cautions += ["rolling-origin comparisons on short series have little power: a test that "
+                 "cannot tell two candidates apart does not show they are equally good",
+                 "the history sweep and the recommendation are chosen on the same rolling "
+                 "origin they are scored on, so the winner's figures flatter it a little",
+                 "these figures support, and do not replace, business judgement"]
+    if reuse_breaks:
+        cautions.insert(0, OPTIMISTIC_NOTE)
+    model = dict(spec.to_dict(), shapes=list(shapes), kind=kind, max_breaks=max_breaks,
+                 criterion=criterion, trim=trim, events=[str(e) for e in events],
+                 seasonal_by_regime=seasonal_by_regime, point_forecast="mean",
+                 minimum_window=w_min, window_starts=[series.iso(g) for g in grid])
+    return Evaluation(series=json_clean(series.to_dict()), model=json_clean(model),
+                      plan=json_clean(dict(plan.to_dict(series),
+                                           breaks="reused from the full sample (optimistic)"
+                                           if reuse_breaks else "re-detected at every origin "
+                                           "from the history up to it")),
+                      optimistic=bool(reuse_breaks), reference=reference.key,
+                      candidates=tuple(cands), sweep=sweeps, recommended=rec, history=history,
+                      diagnosis=diag, breaks=breakinfo.to_dict(full), breaks_by_origin=used,
+                      errors=table, cautions=tuple(cautions))

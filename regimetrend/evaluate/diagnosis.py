@@ -1,0 +1,90 @@
+"""The late-failure diagnosis of the global trend: how it misses the last periods, and why.
+
+Errors are actual minus the global trend's in-sample fit (fitted on all history; the median for
+the exponential shape), over the last ``window`` periods: their mean in units and as % of the
+mean actual level there, and the share with the dominant sign (a trend that still fits leaves
+about half its errors on each side). The CUSUM crossing (the first period where the global
+trend's recursive-residual CUSUM left its 5% band, from the break search) dates when the
+misfit began; the break that explains it is the one whose 95% date interval holds the
+crossing, else the latest break before it, else the first break after it.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .result import Diagnosis
+
+
+def default_window(n: int, horizon: int, season_length: int) -> int:
+    """The last max(H, one season, 6) periods, at most a quarter of the series (at least 3)."""
+    return int(max(3, min(max(horizon, season_length, 6), n // 4)))
+
+
+def explaining_break(crossing, breaks):
+    """``breaks``: list of dicts with position and ci95 (lo, hi) positions."""
+    if not breaks:
+        return None
+    if crossing is None:
+        return breaks[-1]
+    for b in breaks:
+        lo, hi = b["ci95"]
+        if lo is not None and lo <= crossing <= hi:
+            return b
+    before = [b for b in breaks if b["position"] <= crossing]
+    if before:
+        return before[-1]
+    return breaks[0]
+
+
+def diagnose(series, reference_name: str, fitted: np.ndarray, window: int, crossing,
+             breaks) -> Diagnosis:
+    n = series.n
+    k = min(int(window), n)
+    actual = series.values[n - k:]
+    err = actual - np.asarray(fitted)[n - k:]
+    me = float(err.mean())
+    level = float(np.mean(np.abs(actual)))
+    pct = 100.0 * me / level if level > 0 else None
+    pos = int(np.sum(err > 0))
+    neg = int(np.sum(err < 0))
+    dominant = "positive" if pos >= neg else "negative"
+    share = max(pos, neg) / k
+    cause = explaining_break(crossing, breaks)
+    data = {"model": reference_name, "window": k, "from": series.iso(n - k),
+            "to": series.iso(n - 1), "mean_error": me, "mean_error_percent": pct,
+            "mean_abs_error": float(np.mean(np.abs(err))),
+            "positive_errors": pos, "negative_errors": neg, "dominant_sign": dominant,
+            "share_one_sign": share,
+            "cusum_crossing": series.iso(crossing) if crossing is not None else None,
+            "cusum_crossing_label": series.label(crossing) if crossing is not None else None,
+            "explaining_break": None,
+            "errors_are": "actual minus the global trend's in-sample fit"}
+    if cause is not None:
+        lo, hi = cause["ci95"]
+        data["explaining_break"] = {"date": series.iso(cause["position"]),
+                                    "label": series.label(cause["position"]),
+                                    "ci95": [series.iso(lo), series.iso(hi)] if lo is not None
+                                    else None}
+    direction = "under-forecast" if me > 0 else "over-forecast"
+    pct_text = f" ({abs(pct):.1f}% of the level)" if pct is not None else ""
+    sentence = (f"Over the last {k} periods ({series.label(n - k)} to {series.label(n - 1)}) the "
+                f"{reference_name} trend {direction} by {abs(me):.4g} on average{pct_text}, "
+                f"with {max(pos, neg)} of {k} errors {dominant}")
+    if crossing is not None:
+        sentence += f"; its CUSUM left the 5% band at {series.label(crossing)}"
+    else:
+        sentence += "; its CUSUM stayed inside the 5% band"
+    if cause is not None:
+        lo, hi = cause["ci95"]
+        span = (f" (95% interval {series.label(lo)} to {series.label(hi)})"
+                if lo is not None else "")
+        verb = "which the break at" if crossing is not None else "and the latest break is at"
+        sentence += f", {verb} {series.label(cause['position'])}{span}"
+        if crossing is not None:
+            sentence += " explains"
+    else:
+        sentence += ", and no break was found to explain a misfit"
+    if share < 0.7 and abs(pct or 0.0) < 2.0:
+        sentence += "; the recent errors look like noise rather than a failing trend"
+    return Diagnosis(sentence + ".", data)

@@ -1,0 +1,305 @@
+"""Regime strategies: five ways to forecast a trend whose growth regime may have changed.
+
+Every strategy fits on the history known at an origin (positions ``0..o-1``), is told where the
+breaks are (first periods of new regimes, as found from that same history), and forecasts
+positions ``o..`` with 80% and 95% prediction intervals in original units.
+
+- ``global``: one trend over all history (the baseline every other strategy is measured against).
+- ``separate``: one trend per regime, fitted jointly in one least-squares fit with the seasonal
+  terms shared by all regimes and one pooled residual variance; forecasts come from the last
+  regime's trend. The last regime may take its own shape (linear and quadratic share the level
+  scale, so they mix in one joint fit). A last regime whose shape needs another modelling scale
+  (logs against levels) cannot share terms with the earlier regimes in one fit: that model is
+  exactly ``truncated`` with the last regime's shape, so it is not offered twice.
+- ``truncated``: the trend fitted only on the history from a start: the last detected break, a
+  user event, or a fixed start of the history sweep.
+- ``continuous``: a piecewise trend joined at the breaks (hinge terms ``max(t - b, 0)`` on the
+  time index; quadratic pieces add squared hinges), so the slope changes at a break but the
+  trend has no jump.
+- ``window-average``: the average of the forecasts of the same trend fitted on several
+  estimation windows that all end at the origin (Pesaran and Pick, 2011), a hedge when the
+  break date is uncertain. Interval ends are averaged quantile by quantile (quantile averaging).
+
+Joint fits go through the least-squares core, and their forecasts use the core's ``predict`` at
+the right design rows (the last regime's columns, zeros elsewhere), then the same back-transform
+as a single trend (lognormal mean for the exponential shape).
+
+Breaks that leave a regime too short for its own trend are ignored (the regime joins the one
+before it), so a strategy never fails because a break was found close to an origin.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from . import ols
+from .design import (SHAPES, TimeScale, TrendSpec, seasonal_columns, seasonal_pattern,
+                     season_index, to_model_scale, trend_columns)
+from .errors import InputError
+from .trendfit import PointForecasts, TrendFit, fit_trend
+
+STRATEGIES = ("global", "separate", "truncated", "continuous", "window-average")
+TERMS = {"linear": 2, "exponential": 2, "quadratic": 3}
+
+
+@dataclass(frozen=True)
+class Strategy:
+    """One candidate: a strategy, its shape, and (separate) the last regime's shape or
+    (truncated) a fixed first position; ``start=None`` means "from the last break"."""
+
+    name: str
+    shape: str = "linear"
+    last_shape: str | None = None
+    start: int | None = None
+    start_label: str | None = None  # how a fixed start is named (a date, or "event ...")
+
+    def __post_init__(self):
+        if self.name not in STRATEGIES:
+            raise InputError(f"strategy {self.name!r} is not one of {', '.join(STRATEGIES)}")
+        for s in (self.shape, self.last_shape):
+            if s is not None and s not in SHAPES:
+                raise InputError(f"option --shape: {s!r} is not one of {', '.join(SHAPES)}")
+        if self.last_shape == self.shape:
+            object.__setattr__(self, "last_shape", None)
+        if self.last_shape is not None and self.name != "separate":
+            raise InputError(f"a last-regime shape applies to the separate strategy, not to "
+                             f"{self.name}")
+        if self.last_shape is not None and ((self.shape == "exponential")
+                                            != (self.last_shape == "exponential")):
+            raise InputError(f"separate {self.shape} then {self.last_shape}: the regimes need "
+                             f"different modelling scales; use truncated {self.last_shape}")
+
+    @property
+    def key(self) -> str:
+        """Plain unique name, e.g. ``separate linear then quadratic``, ``truncated linear``."""
+        name = f"{self.name} {self.shape}"
+        if self.last_shape:
+            name += f" then {self.last_shape}"
+        if self.start is not None:
+            name += f" from {self.start_label or self.start}"
+        return name
+
+    @property
+    def regime_aware(self) -> bool:
+        return self.name != "global"
+
+    def to_dict(self) -> dict:
+        return {"strategy": self.name, "shape": self.shape, "last_shape": self.last_shape,
+                "start": self.start_label if self.start is not None else None,
+                "name": self.key}
+
+
+def standard_strategies(shapes=SHAPES, mixed=True) -> list[Strategy]:
+    """Each strategy with each shape, plus separate fits whose last regime changes shape
+    between linear and quadratic (when both are in ``shapes``)."""
+    out = []
+    for name in STRATEGIES:
+        for shape in shapes:
+            out.append(Strategy(name, shape))
+    if mixed:
+        for a in shapes:
+            for b in shapes:
+                if a != b and "exponential" not in (a, b):
+                    out.append(Strategy("separate", a, last_shape=b))
+    return out
+
+
+def usable_breaks(breaks, origin: int, first_need: int, last_need: int) -> tuple[int, ...]:
+    """Breaks inside ``1..origin-1`` that leave every regime ``first_need`` points and the last
+    one ``last_need``; a break too close to the one before it (or to the origin) is dropped."""
+    kept, prev = [], 0
+    for b in sorted(int(b) for b in breaks):
+        if b - prev >= first_need and b < origin:
+            kept.append(b)
+            prev = b
+    while kept and origin - kept[-1] < last_need:
+        kept.pop()
+    return tuple(kept)
+
+
+@dataclass(frozen=True, eq=False)
+class PiecewiseFit(TrendFit):
+    """A joint least-squares fit of regime trends; forecasts use TrendFit's back-transform.
+
+    ``layout`` is ``separate`` (a trend per regime, own local time scale each) or
+    ``continuous`` (one trend plus hinge terms at the knots)."""
+
+    layout: str = "separate"
+    knots: tuple[int, ...] = ()
+    shapes: tuple[str, ...] = ()
+    scales: tuple[TimeScale, ...] = field(default=())
+
+    def design(self, positions) -> np.ndarray:
+        positions = np.asarray(positions, dtype=float)
+        if self.layout == "separate":
+            X = separate_columns(positions, self.knots, self.shapes, self.scales)
+        else:
+            X = continuous_columns(positions, self.knots, self.spec.shape, self.scale)
+        if self.spec.seasonality == "dummies":
+            X = np.hstack([X, seasonal_columns(positions.astype(int), self.first_season,
+                                               self.spec.season_length)])
+        return X
+
+
+def separate_columns(positions, knots, shapes, scales) -> np.ndarray:
+    """Block columns: regime r gets [1, u_r (, u_r^2)] on its own rows and zeros elsewhere;
+    positions after the history belong to the last regime."""
+    regime = np.searchsorted(np.asarray(knots, dtype=float), positions, side="right")
+    blocks = []
+    for r, (shape, scale) in enumerate(zip(shapes, scales)):
+        cols = trend_columns(positions, shape, scale)
+        blocks.append(cols * (regime == r)[:, None])
+    return np.hstack(blocks)
+
+
+def continuous_columns(positions, knots, shape: str, scale: TimeScale) -> np.ndarray:
+    """[1, u (, u^2)] plus, at each knot b, the hinge max(u - u(b - 1), 0) (and its square for
+    the quadratic shape): the first period of a new regime is the first on the new slope."""
+    X = trend_columns(positions, shape, scale)
+    u = scale.u(positions)
+    extra = []
+    for b in knots:
+        h = np.maximum(u - scale.u(b - 1), 0.0)
+        extra.append(h)
+        if shape == "quadratic":
+            extra.append(h * h)
+    return np.column_stack([X] + extra) if extra else X
+
+
+class OriginFits:
+    """All fits made on one stretch of history, cached so strategies share them.
+
+    ``values`` is the history known at the origin; ``breaks`` the first periods of new regimes
+    found from it. ``spec_for(shape)`` gives the TrendSpec of each shape with the common
+    seasonality."""
+
+    def __init__(self, values, first_season: int, seasonality: str, season_length: int,
+                 breaks=(), window_starts=()):
+        self.values = np.asarray(values, dtype=float)
+        self.origin = len(self.values)
+        self.first_season = int(first_season)
+        self.seasonality = seasonality
+        self.season_length = int(season_length)
+        self.breaks = tuple(sorted(int(b) for b in breaks))
+        self.window_starts = tuple(int(s) for s in window_starts)
+        self._trends: dict = {}
+        self._forecasts: dict = {}
+        self._specs: dict = {}
+
+    def spec_for(self, shape: str) -> TrendSpec:
+        if shape not in self._specs:
+            self._specs[shape] = TrendSpec(shape, self.seasonality, self.season_length)
+        return self._specs[shape]
+
+    # -- single trends -------------------------------------------------------------------
+    def trend(self, shape: str, start: int = 0) -> TrendFit:
+        key = (shape, start)
+        if key not in self._trends:
+            positions = np.arange(start, self.origin)
+            self._trends[key] = fit_trend(self.values[start:], positions, self.spec_for(shape),
+                                          self.first_season, _what(start))
+        return self._trends[key]
+
+    def trend_forecast(self, shape: str, start: int, positions) -> PointForecasts:
+        key = (shape, start, len(positions))
+        if key not in self._forecasts:
+            self._forecasts[key] = self.trend(shape, start).forecast(positions)
+        return self._forecasts[key]
+
+    def latest_start(self, shape: str) -> int:
+        """First period of the last regime long enough for its own ``shape`` trend."""
+        need = self.spec_for(shape).minimum_points()
+        kept = usable_breaks(self.breaks, self.origin, 1, need)
+        return kept[-1] if kept else 0
+
+    # -- joint fits -----------------------------------------------------------------------
+    def piecewise(self, layout: str, shape: str, last_shape: str | None = None) -> TrendFit:
+        last_shape = last_shape or shape
+        key = (layout, shape, last_shape)
+        if key in self._trends:
+            return self._trends[key]
+        spec = self.spec_for(shape)
+        first_need = TERMS[shape] + 1
+        last_need = TERMS[last_shape] + 2
+        if spec.seasonality == "adjust":
+            first_need = last_need = max(last_need, 2)
+        knots = usable_breaks(self.breaks, self.origin, first_need, last_need)
+        if not knots:
+            fit = self.trend(last_shape)
+            self._trends[key] = fit
+            return fit
+        positions = np.arange(self.origin)
+        y = to_model_scale(self.values, spec)
+        pattern = None
+        if spec.seasonality == "adjust":
+            pattern = seasonal_pattern(y, positions, self.first_season, self.season_length)
+            y = y - pattern[season_index(positions, self.first_season, self.season_length)]
+        scale = TimeScale.for_positions(positions)
+        bounds = (0,) + knots + (self.origin,)
+        shapes = tuple([shape] * len(knots) + [last_shape])
+        scales = tuple(TimeScale.for_positions(np.arange(bounds[i], bounds[i + 1]))
+                       for i in range(len(bounds) - 1))
+        proto = PiecewiseFit(spec, positions, self.first_season, scale, None, pattern,
+                             layout, knots, shapes, scales)
+        X = proto.design(positions)
+        try:
+            result = ols.fit(X, y)
+        except ols.RankDeficient as exc:
+            raise InputError(f"the {layout} {shape} trend cannot be fitted to the history up to "
+                             f"position {self.origin}: {exc}") from None
+        fit = PiecewiseFit(spec, positions, self.first_season, scale, result, pattern,
+                           layout, knots, shapes, scales)
+        self._trends[key] = fit
+        return fit
+
+    # -- strategies -----------------------------------------------------------------------
+    def forecast(self, strategy: Strategy, horizon: int) -> PointForecasts:
+        """Forecasts of ``strategy`` for the ``horizon`` periods after the origin."""
+        positions = np.arange(self.origin, self.origin + horizon)
+        name = strategy.name
+        if name == "global":
+            return self.trend_forecast(strategy.shape, 0, positions)
+        if name == "truncated":
+            start = strategy.start
+            if start is None:
+                start = self.latest_start(strategy.shape)
+            elif self.origin - start < self.spec_for(strategy.shape).minimum_points():
+                start = 0  # the fixed start is too recent for this origin: all history
+            return self.trend_forecast(strategy.shape, start, positions)
+        if name in ("separate", "continuous"):
+            key = (name, strategy.shape, strategy.last_shape or strategy.shape, "fc", horizon)
+            if key not in self._forecasts:
+                fit = self.piecewise(name, strategy.shape, strategy.last_shape)
+                self._forecasts[key] = fit.forecast(positions)
+            return self._forecasts[key]
+        return self.window_average(strategy.shape, positions)
+
+    def window_starts_for(self, shape: str) -> tuple[int, ...]:
+        need = self.spec_for(shape).minimum_points()
+        starts = [s for s in self.window_starts if self.origin - s >= need]
+        return tuple(starts) if starts else (0,)
+
+    def window_average(self, shape: str, positions) -> PointForecasts:
+        parts = [self.trend_forecast(shape, s, positions) for s in self.window_starts_for(shape)]
+        avg = {f: np.mean([getattr(p, f) for p in parts], axis=0)
+               for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95")}
+        return PointForecasts(np.asarray(positions), **avg)
+
+
+def _what(start: int) -> str:
+    return "the history" if start == 0 else f"the history from position {start + 1}"
+
+
+def window_grid(first_origin: int, last_origin: int, minimum_window: int,
+                count: int = 10) -> tuple[int, ...]:
+    """Evenly spaced window starts 0, g, 2g, ... up to ``last_origin - minimum_window``, with
+    ``g`` chosen so about ``count`` starts fit before the first origin. The same grid serves
+    the window average and the history sweep, so their fits are shared."""
+    room = first_origin - minimum_window
+    if room <= 0:
+        return (0,)
+    g = max(1, int(np.ceil(room / max(count - 1, 1))))
+    top = last_origin - minimum_window
+    return tuple(range(0, max(top, 0) + 1, g))

@@ -368,6 +368,9 @@ def _unique_names(raw) -> list[str]:
 
 
 def _table_from_frame(frame: pd.DataFrame, label: str) -> _Table:
+    if isinstance(frame.index, pd.MultiIndex) or isinstance(frame.columns, pd.MultiIndex):
+        raise InputError(f"{label} has multi-level labels; pass one series with a single date "
+                         f"index or a date column")
     if not isinstance(frame.index, pd.RangeIndex):  # dates kept in the index become a column
         index_name = str(frame.index.name) if frame.index.name is not None else "date"
         if index_name in frame.columns:

@@ -594,6 +594,13 @@ def test_pandas_frame_columns():
     np.testing.assert_allclose(series.values, [1, 2, 3])
 
 
+def test_multi_level_frame_is_refused():
+    frame = pd.DataFrame({"v": [1.0, 2.0, 3.0]},
+                         index=pd.MultiIndex.from_tuples([("a", 1), ("a", 2), ("b", 1)]))
+    with pytest.raises(InputError, match="multi-level"):
+        load_series(frame)
+
+
 def test_unknown_source_type():
     with pytest.raises(InputError, match="give a file path, a pandas Series or a pandas DataFrame"):
         load_series([1, 2, 3])

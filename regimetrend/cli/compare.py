@@ -1,0 +1,121 @@
+"""``regimetrend compare FILE``: regime-aware candidates against one global trend, rolling origin."""
+
+from __future__ import annotations
+
+import sys
+
+from ..evaluate import compare
+from . import options
+from .text import fmt, table
+
+
+def register(sub) -> None:
+    p = sub.add_parser("compare", help="score every strategy and shape against the global trend "
+                                       "on a leak-free rolling origin and recommend one")
+    options.add_input_options(p)
+    options.add_model_options(p)
+    options.add_break_options(p)
+    p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
+                   help="forecast horizons 1..H scored at every origin (default: one seasonal "
+                        "cycle, at least 4)")
+    p.add_argument("--first-origin", type=options._positive_int, default=None, metavar="N",
+                   help="periods known at the first origin (default: the later of half the "
+                        "series and the start of the last 24 origins)")
+    p.add_argument("--step", type=options._positive_int, default=1, metavar="K",
+                   help="periods between origins (default 1)")
+    p.add_argument("--reuse-breaks", action="store_true",
+                   help="reuse the full-sample breaks at every origin instead of finding them "
+                        "again (faster; results are labelled optimistic)")
+    p.add_argument("--errors", metavar="FILE.csv",
+                   help="write every rolling-origin forecast with its actual value to this CSV")
+    p.add_argument("--json", action="store_true", help="print the full result as JSON")
+    p.set_defaults(run=run)
+
+
+class ProgressBar:
+    """A one-line bar on standard error, drawn only when standard error is a terminal."""
+
+    def __init__(self, stream=None, width: int = 30):
+        self.stream = stream or sys.stderr
+        self.width = width
+        self.on = bool(getattr(self.stream, "isatty", lambda: False)())
+
+    def __call__(self, done: int, total: int) -> None:
+        if not self.on:
+            return
+        filled = int(self.width * done / max(total, 1))
+        self.stream.write(f"\rrolling origin [{'#' * filled}{'.' * (self.width - filled)}] "
+                          f"{done}/{total}")
+        if done >= total:
+            self.stream.write("\r" + " " * (self.width + 40) + "\r")
+        self.stream.flush()
+
+
+def run(args) -> int:
+    series = options.load_from_args(args)
+    spec = options.model_from_args(args, series)
+    ev = compare(series, shape=spec.shape, seasonality=spec.seasonality,
+                 season_length=spec.season_length, kind=args.kind, max_breaks=args.max_breaks,
+                 trim=args.trim, criterion=args.criterion, events=tuple(args.event),
+                 seasonal_by_regime=args.seasonal_by_regime, horizon=args.horizon,
+                 first_origin=args.first_origin, step=args.step,
+                 reuse_breaks=args.reuse_breaks, progress=ProgressBar())
+    result = ev.to_dict()
+    if args.errors:
+        path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic))
+        result["outputs"] = {"errors_csv": str(path)}
+    if args.json:
+        print(options.dumps(result))
+    else:
+        print(render(series, ev, result.get("outputs", {})))
+    return 0
+
+
+def _pct(x, digits=0):
+    return "-" if x is None else f"{100 * x:.{digits}f}%"
+
+
+def _p(x):
+    if x is None:
+        return "-"
+    return "<0.001" if x < 0.001 else f"{x:.3f}"
+
+
+def render(series, ev, outputs) -> str:
+    plan = ev.plan
+    lines = [f"{series.name}: {series.n} {series.frequency.name} periods, "
+             f"{series.label(0)} to {series.label(series.n - 1)}"]
+    if ev.optimistic:
+        lines += ["", "*** OPTIMISTIC RESULTS: breaks found on the full sample were reused at "
+                      "every origin ***"]
+    lines += [f"rolling origin: {plan['count']} origins, last period known "
+              f"{series.label(plan['first_origin'] - 1)} to "
+              f"{series.label(plan['origins'][-1] - 1)}, every {plan['step']} period(s); "
+              f"horizons 1..{plan['horizon']}; breaks {plan['breaks']}",
+              f"reference: {ev.reference} ({ev.model['seasonality']} seasonality); "
+              f"errors in original units, point forecast = mean", ""]
+    rows = []
+    for c in ev.candidates:
+        m, vs = c.metrics, c.vs_global
+        rows.append([str(c.rank), c.name, fmt(m["rmse"]), fmt(m["mae"]),
+                     fmt(m["mape"]) if m["mape"] is not None else "-", fmt(m["mase"]),
+                     fmt(m["me"]), _pct(m["coverage80"]), _pct(m["coverage95"]),
+                     _pct(c.gain, 1) if c.name != ev.reference else "reference",
+                     _p(vs.get("p_value_better"))])
+    lines.append(table(["rank", "candidate", "RMSE", "MAE", "MAPE %", "MASE", "ME",
+                        "80% cover", "95% cover", "gain vs global", "DM p (better)"], rows))
+    lines += ["", "gain vs global: 1 - RMSE / RMSE of the reference; DM p: one-sided "
+                  "Diebold-Mariano (HLN) p-value that the candidate is more accurate", "",
+              f"recommendation: {ev.recommended.reason}",
+              f"rule: {ev.recommended.rule}", "",
+              f"history: {ev.history.sentence}"]
+    sweep = ev.history.evidence.get("sweep", [])
+    if len(sweep) > 1:
+        lines.append(table(["fit from", "RMSE", "MAE", "gain vs all history"],
+                           [[r["label"], fmt(r["rmse"]), fmt(r["mae"]),
+                             _pct(r["gain_over_global"], 1)] for r in sweep]))
+    lines += ["", f"diagnosis: {ev.diagnosis.sentence}", ""]
+    lines += [f"caution: {c}" for c in ev.cautions]
+    for path in outputs.values():
+        lines.append(f"wrote {path}")
+    return "\n".join(lines)

@@ -14,7 +14,7 @@ positions ``o..`` with 80% and 95% prediction intervals in original units.
 - ``truncated``: the trend fitted only on the history from a start: the last detected break, a
   user event, or a fixed start of the history sweep.
 - ``continuous``: a piecewise trend joined at the breaks (hinge terms ``max(t - b, 0)`` on the
-  time index; quadratic pieces add squared hinges), so the slope changes at a break but the
+  time index, zero up to the break; quadratic pieces add squared hinges), so the slope changes at a break but the
   trend has no jump.
 - ``window-average``: the average of the forecasts of the same trend fitted on several
   estimation windows that all end at the origin (Pesaran and Pick, 2011), a hedge when the
@@ -155,13 +155,14 @@ def separate_columns(positions, knots, shapes, scales) -> np.ndarray:
 
 
 def continuous_columns(positions, knots, shape: str, scale: TimeScale) -> np.ndarray:
-    """[1, u (, u^2)] plus, at each knot b, the hinge max(u - u(b - 1), 0) (and its square for
-    the quadratic shape): the first period of a new regime is the first on the new slope."""
+    """[1, u (, u^2)] plus, at each knot b, the hinge max(u - u(b), 0) (and its square for the
+    quadratic shape): the trend bends at b, where both pieces meet (the break search's
+    ``slope`` kind uses the same hinge)."""
     X = trend_columns(positions, shape, scale)
     u = scale.u(positions)
     extra = []
     for b in knots:
-        h = np.maximum(u - scale.u(b - 1), 0.0)
+        h = np.maximum(u - scale.u(b), 0.0)
         extra.append(h)
         if shape == "quadratic":
             extra.append(h * h)

@@ -71,14 +71,14 @@ def test_separate_last_regime_own_shape_matches_statsmodels(drivers):
 
 
 def test_continuous_matches_statsmodels_hinge_design(drivers):
-    # Reference: statsmodels OLS on [1, t, max(t - (b - 1), 0)] plus month indicators, on logs
+    # Reference: statsmodels OLS on [1, t, max(t - b, 0)] plus month indicators, on logs
     # (exponential shape), back-transformed as the lognormal mean exp(m + v/2).
     y = drivers.values[:160]
     t = np.arange(160.0)
     b = 120
-    X = np.column_stack([np.ones(160), t, np.maximum(t - (b - 1), 0.0), _months(t)])
+    X = np.column_stack([np.ones(160), t, np.maximum(t - b, 0.0), _months(t)])
     tn = np.arange(160.0, 172.0)
-    Xn = np.column_stack([np.ones(12), tn, np.maximum(tn - (b - 1), 0.0), _months(tn)])
+    Xn = np.column_stack([np.ones(12), tn, np.maximum(tn - b, 0.0), _months(tn)])
     res = sm.OLS(np.log(y), X).fit()
     pred = res.get_prediction(Xn).summary_frame(alpha=0.2)
     v = pred["mean_se"] ** 2 + res.scale

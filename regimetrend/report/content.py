@@ -1,0 +1,230 @@
+"""Assemble the report's parts from an analysis: facts, summary, charts, tables, cautions."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import charts
+from .cautions import collect, near_end_caution
+from .extract import ReportData
+from .html import Chart, Fact
+from .summary import summary_sentences
+from .tables import Table, break_rows, dig, forecast_rows, growth_rows, num, ranking_rows
+
+
+@dataclass(frozen=True)
+class Content:
+    title: str
+    subtitle: str
+    facts: list
+    summary: list
+    charts: list
+    tables: list
+    cautions: list
+    missing: list  # one line per chart that could not be drawn, and why
+
+
+def _band(label, fc) -> charts.Band:
+    p = fc.points
+    return charts.Band(label, fc.starts, p.mean, p.lower80, p.upper80, p.lower95, p.upper95)
+
+
+def _series_chart(d: ReportData) -> Chart:
+    s = d.series
+    regimes = []
+    edges = [0] + [b.position for b in d.breaks] + [s.n]
+    for a, b in zip(edges[:-1], edges[1:]):
+        regimes.append((s.starts[a], s.starts[b - 1]))
+    spans = [(s.starts[b.low], s.starts[b.high]) for b in d.breaks
+             if b.low is not None and b.high is not None]
+    global_fit = (charts.Band("global trend, fitted", s.starts, d.global_fitted)
+                  if d.global_fitted is not None else None)
+    regime_fit = (charts.Band("regime trends, fitted", s.starts, d.regime_fitted)
+                  if d.regime_fitted is not None and d.breaks else None)
+    forecasts = []
+    if d.forecast is not None:
+        forecasts.append(_band(f"recommended ({d.recommended or d.forecast.model})", d.forecast))
+    if d.global_forecast is not None and d.global_forecast is not d.forecast:
+        forecasts.append(_band("global trend", d.global_forecast))
+    png = charts.series_chart(s.starts, s.values, units=d.units, frequency=s.frequency.name,
+                              regimes=regimes, break_spans=spans, global_fit=global_fit,
+                              regime_fit=regime_fit, forecasts=forecasts,
+                              title=f"{s.name}: regimes, fits and forecasts")
+    return Chart("series_regimes", "The series, its regimes, fits and forecasts",
+                 "Actual values in black; regimes shaded; hatched spans are the 95% intervals "
+                 "of the break dates. The dashed line is one trend over all history, the solid "
+                 "line the trends of the regimes; bands are 80% and 95% prediction intervals.",
+                 png)
+
+
+def _error_chart(d: ReportData) -> Chart | None:
+    t = d.errors
+    if t is None or d.reference is None or d.recommended is None:
+        return None
+    s = d.series
+    targets = np.asarray(t.targets)[:, 0]
+    lines = {f"global trend ({d.reference})": t.errors(d.reference)[:, 0]}
+    if d.recommended != d.reference:
+        lines[f"recommended ({d.recommended})"] = t.errors(d.recommended)[:, 0]
+    png = charts.error_chart(s.starts[targets], lines, units=d.units,
+                             frequency=s.frequency.name, horizon_note=", one period ahead",
+                             title="Forecast errors on the rolling origin")
+    return Chart("forecast_errors", "Forecast errors over time",
+                 "One-period-ahead errors (actual minus forecast) of the global trend and of the "
+                 "recommended strategy, each fitted only on the history before the period it "
+                 "forecasts. Errors drifting away from zero show a trend that no longer holds.",
+                 png)
+
+
+def _cusum_chart(d: ReportData) -> Chart | None:
+    c = d.cusum
+    if not c or not c.get("path"):
+        return None
+    s = d.series
+    pos = np.asarray(c.get("positions") or range(len(c["path"])), dtype=int)
+    path = np.array([np.nan if v is None else v for v in c["path"]], dtype=float)
+    lo = np.array([np.nan if v is None else v for v in c["lower"]], dtype=float)
+    hi = np.array([np.nan if v is None else v for v in c["upper"]], dtype=float)
+    pos = np.clip(pos, 0, s.n - 1)
+    png = charts.cusum_chart(s.starts[pos], path, lo, hi, frequency=s.frequency.name,
+                             title="CUSUM of the global trend")
+    crossing = c.get("first_crossing")
+    when = (f" It first leaves the band at {s.label(int(crossing))}." if crossing is not None
+            else " It stays inside the band.")
+    return Chart("cusum", "CUSUM path with its 5% band",
+                 "Cumulative sum of the global trend's standardised one-step-ahead errors "
+                 "(recursive residuals). A stable trend keeps the path inside the band." + when,
+                 png)
+
+
+def _history_chart(d: ReportData) -> Chart | None:
+    sweep = dig(d.evaluation, "history", "evidence", "sweep")
+    if not sweep or len(sweep) < 2:
+        return None
+    rows = [r for r in sweep if r.get("rmse") is not None]
+    dates = [r["start"] for r in rows]
+    keep = dig(d.evaluation, "history", "keep_from")
+    evidence = dig(d.evaluation, "history", "evidence") or {}
+    after = None
+    if evidence.get("rmse_after_last_break") is not None and d.breaks:
+        after = (d.breaks[-1].date, evidence["rmse_after_last_break"])
+    png = charts.history_chart(dates, [r["rmse"] for r in rows],
+                               metric=f"rolling-origin RMSE ({d.units})",
+                               frequency=d.series.frequency.name, chosen=keep,
+                               after_break=after, title="How much history to keep")
+    return Chart("history_sweep", "Accuracy against the history kept",
+                 "Rolling-origin RMSE of the trend fitted from each start date (the first point "
+                 "uses all history), and of the trend fitted from the last break. Lower is "
+                 "better; the dashed line marks the recommended start when history is cut.", png)
+
+
+def _horizon_chart(d: ReportData) -> Chart | None:
+    cands = (d.evaluation or {}).get("candidates") or []
+    lines = {}
+    horizons = None
+    for c in cands[:6]:
+        ph = c.get("per_horizon") or []
+        vals = [m.get("rmse") for m in ph]
+        if not vals or any(v is None for v in vals):
+            continue
+        horizons = [m.get("horizon", i + 1) for i, m in enumerate(ph)]
+        lines[c["name"]] = vals
+    if d.reference and d.reference not in lines:
+        ref = next((c for c in cands if c.get("name") == d.reference), None)
+        if ref and ref.get("per_horizon"):
+            lines[d.reference] = [m.get("rmse") for m in ref["per_horizon"]]
+    if not lines or horizons is None:
+        return None
+    png = charts.horizon_chart(horizons, lines, metric=f"RMSE ({d.units})",
+                               highlight=d.recommended, reference=d.reference,
+                               title="Accuracy by forecast horizon")
+    return Chart("accuracy_by_horizon", "Accuracy by horizon for the candidates",
+                 "Rolling-origin RMSE at each horizon for the best-ranked candidates and the "
+                 "global trend; the recommended strategy is drawn thicker.", png)
+
+
+def _growth_chart(d: ReportData) -> Chart | None:
+    g = d.growth
+    if not g or not g.get("segments"):
+        return None
+    segs = g["segments"]
+    labels = [f"{s['start_label']} to {s['end_label']}" for s in segs]
+    vals = [s["growth"].get("annualised_pct") for s in segs]
+    if all(v is None for v in vals):
+        return None
+    ci = [s["growth"].get("annualised_pct_ci95") or [None, None] for s in segs]
+    png = charts.growth_chart(labels, vals, [c[0] for c in ci], [c[1] for c in ci],
+                              quantity="annualised growth (% a year)",
+                              title="Growth by regime")
+    return Chart("growth_by_regime", "Annualised growth by regime",
+                 f"Bars: {g.get('headline', 'annualised growth')}; whiskers: 95% intervals "
+                 "(Newey-West covariance, delta method). The current regime is coloured.", png)
+
+
+def _facts(d: ReportData) -> list[Fact]:
+    facts = []
+    g = d.growth
+    if g and g.get("segments"):
+        last = g["segments"][-1]
+        v = last["growth"].get("annualised_pct")
+        ci = last["growth"].get("annualised_pct_ci95") or [None, None]
+        if v is not None:
+            sub = (f"95%: {ci[0]:.1f}% to {ci[1]:.1f}%" if None not in ci else "")
+            facts.append(Fact(f"growth since {last['start_label']}", f"{v:.1f}% a year", sub))
+    if d.breaks:
+        b = d.breaks[-1]
+        sub = (f"95%: {d.label(b.low)} to {d.label(b.high)}" if b.low is not None else "")
+        facts.append(Fact("last change of regime", b.label, sub))
+    else:
+        facts.append(Fact("change of regime", "none found", ""))
+    if d.forecast is not None and d.forecast.horizon:
+        row = d.forecast.rows()[0]
+        facts.append(Fact(f"forecast {row['label']}", num(row["mean"]),
+                          f"95%: {num(row['lower95'])} to {num(row['upper95'])}"))
+    rec = d.recommended
+    if rec:
+        facts.append(Fact("recommended strategy", rec, ""))
+    return facts
+
+
+def build(d: ReportData) -> Content:
+    s = d.series
+    made = [_series_chart(d)]
+    missing = []
+    for name, fn, why in (("forecast errors", _error_chart, "no rolling-origin evaluation"),
+                          ("CUSUM path", _cusum_chart, "the break search gave no CUSUM path"),
+                          ("history sweep", _history_chart, "no history sweep was run"),
+                          ("accuracy by horizon", _horizon_chart, "no candidates were scored"),
+                          ("growth by regime", _growth_chart, "no growth figures")):
+        chart = fn(d)
+        if chart is None:
+            missing.append(f"The {name} chart is not shown: {why}.")
+        else:
+            made.append(chart)
+    tables: list[Table] = []
+    if d.growth:
+        tables.append(growth_rows(d.growth))
+    if d.evaluation and d.evaluation.get("candidates"):
+        tables.append(ranking_rows(d.evaluation))
+    if d.forecast is not None:
+        tables.append(forecast_rows(d.forecast.to_dict()))
+    if d.breaks_dict and d.breaks_dict.get("breaks"):
+        bt = break_rows(d.breaks_dict)
+        bt = Table(bt.name, bt.title, bt.columns,
+                   tuple(dict(r, label=b.label, low=d.label(b.low), high=d.label(b.high))
+                         for r, b in zip(bt.rows, d.breaks)), bt.note)
+        tables.append(bt)
+    last = d.breaks[-1] if d.breaks else None
+    extra = [near_end_caution(s.n, last.position if last else None,
+                              last.high if last else None, s.frequency.name)]
+    ev_cautions = (d.evaluation or {}).get("cautions") or []
+    cautions = collect(extra, d.cautions, ev_cautions)
+    spec_text = d.spec.describe() if d.spec is not None else ""
+    source = f"{d.source_name}: " if d.source_name else ""
+    subtitle = (f"{source}{s.n} {s.frequency.name} periods, {s.label(0)} to "
+                f"{s.label(s.n - 1)}; {spec_text}")
+    return Content(title=f"{s.name}: growth regimes and forecast", subtitle=subtitle,
+                   facts=_facts(d), summary=summary_sentences(d), charts=made, tables=tables,
+                   cautions=cautions, missing=missing)

@@ -1,0 +1,172 @@
+"""What the report reads from an ``Analysis``, gathered in one place as plain values.
+
+The report never computes statistics: it reads the results of the stages before it. The one
+exception is the in-sample line of the global trend for the first chart, refitted here with the
+same spec when the analysis does not carry it (a plotting aid, the same model as the global
+forecast). Everything is read defensively so a missing stage (a series too short for the rolling
+origin, say) drops the parts of the report that need it instead of failing.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..series import Series
+
+
+@dataclass(frozen=True)
+class BreakInfo:
+    position: int
+    label: str
+    date: str
+    low: int | None  # 95% interval of the break date, positions
+    high: int | None
+
+
+@dataclass(frozen=True, eq=False)
+class ReportData:
+    series: Series
+    spec: object
+    source_name: str
+    units: str
+    result: dict
+    growth: dict | None
+    growth_obj: object
+    breaks: tuple[BreakInfo, ...]
+    breaks_dict: dict | None
+    sup_f_p: float | None
+    cusum: dict | None
+    evaluation: dict | None
+    evaluation_obj: object
+    errors: object
+    reference: str | None
+    recommended: str | None
+    forecast: object
+    global_forecast: object
+    regime_fitted: np.ndarray | None
+    global_fitted: np.ndarray | None
+    cautions: tuple[str, ...] = field(default=())
+
+    def label(self, position) -> str | None:
+        return None if position is None else self.series.label(int(position))
+
+    def iso(self, position) -> str | None:
+        return None if position is None else self.series.iso(int(position))
+
+
+def _get(obj, name, default=None):
+    if obj is None:
+        return default
+    if isinstance(obj, dict):
+        return obj.get(name, default)
+    return getattr(obj, name, default)
+
+
+def _to_dict(obj):
+    if obj is None:
+        return None
+    if isinstance(obj, dict):
+        return obj
+    fn = getattr(obj, "to_dict", None)
+    return fn() if callable(fn) else None
+
+
+def _position(value, series: Series) -> int | None:
+    """A break position from an int or a date string."""
+    if value is None:
+        return None
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, float) and math.isfinite(value):
+        return int(round(value))
+    try:
+        d = np.datetime64(str(value), "D")
+    except ValueError:
+        return None
+    return int(np.searchsorted(series.starts, d))
+
+
+def _breaks(breakset, series: Series) -> tuple[BreakInfo, ...]:
+    items = _get(breakset, "breaks") or ()
+    out = []
+    for b in items:
+        pos = _position(_get(b, "position"), series)
+        if pos is None:
+            pos = _position(_get(b, "date"), series)
+        if pos is None:
+            continue
+        ci = _get(b, "ci95")
+        lo = hi = None
+        if ci is not None and len(ci) == 2:
+            lo, hi = _position(ci[0], series), _position(ci[1], series)
+            if lo is not None:
+                lo = max(0, min(lo, series.n - 1))
+            if hi is not None:
+                hi = max(0, min(hi, series.n - 1))
+        out.append(BreakInfo(pos, series.label(pos), series.iso(pos), lo, hi))
+    if not out:
+        for p in _get(breakset, "positions") or ():
+            out.append(BreakInfo(int(p), series.label(int(p)), series.iso(int(p)), None, None))
+    return tuple(sorted(out, key=lambda b: b.position))
+
+
+def _sup_f(breakset) -> float | None:
+    try:
+        from ..evaluate import breakinfo
+
+        return breakinfo.supf_pvalue(breakset)
+    except ImportError:  # pragma: no cover - evaluation always ships with the package
+        return None
+
+
+def _cusum(breakset) -> dict | None:
+    drift = _get(breakset, "drift")
+    if drift is None:
+        return None
+    d = _to_dict(drift)
+    if isinstance(d, dict) and "recursive" in d and "path" not in d:
+        d = d["recursive"]
+    if not isinstance(d, dict) or "path" not in d:
+        return None
+    return d
+
+
+def _fitted(line, n: int):
+    if line is None:
+        return None
+    arr = np.asarray(line, dtype=float)
+    return arr if arr.shape == (n,) else None
+
+
+def gather(analysis, source_name: str | None = None) -> ReportData:
+    """Read everything the report shows from ``analysis``."""
+    series = _get(analysis, "series")
+    if not isinstance(series, Series):
+        raise TypeError("write_report needs an Analysis (with its series)")
+    spec = _get(analysis, "spec")
+    growth_obj = _get(analysis, "growth")
+    breakset = _get(analysis, "breaks")
+    evaluation = _get(analysis, "evaluation")
+    ev_dict = _to_dict(evaluation)
+    rec = _get(_get(evaluation, "recommended"), "name")
+    global_fitted = _fitted(_get(analysis, "global_fitted"), series.n)
+    if global_fitted is None and spec is not None:
+        from ..forecast import fit_history
+
+        global_fitted = fit_history(series, spec).fitted()
+    regime_fitted = _fitted(_get(growth_obj, "fitted"), series.n)
+    cautions = tuple(str(c) for c in (_get(analysis, "cautions") or ()))
+    return ReportData(
+        series=series, spec=spec,
+        source_name=source_name or _get(analysis, "source") or "",
+        units=_get(analysis, "units") or series.name,
+        result=_to_dict(analysis) or {}, growth=_to_dict(growth_obj), growth_obj=growth_obj,
+        breaks=_breaks(breakset, series), breaks_dict=_to_dict(breakset),
+        sup_f_p=_sup_f(breakset), cusum=_cusum(breakset), evaluation=ev_dict,
+        evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
+        reference=_get(evaluation, "reference"), recommended=rec,
+        forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),
+        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions)

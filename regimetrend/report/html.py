@@ -1,0 +1,136 @@
+"""The self-contained HTML report: one file, charts inline as base64 PNG, no scripts, no fetches.
+
+The page carries a Content-Security-Policy that allows only inline styles and ``data:`` images,
+so even a mailed copy opened in a browser makes no network request and runs no script. Every
+string that comes from the user's data passes through ``esc`` before it enters the page.
+"""
+
+from __future__ import annotations
+
+import base64
+from dataclasses import dataclass
+
+from .methods import METHODS
+from .safety import esc
+from .tables import Table, fmt
+
+CSP = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; base-uri 'none'; " \
+      "form-action 'none'"
+
+STYLE = """
+:root { --ink:#1b1b1b; --muted:#555; --rule:#d9d9d9; --accent:#0072B2; --warm:#E69F00; }
+* { box-sizing: border-box; }
+body { margin:0; font: 15px/1.5 "Segoe UI", Helvetica, Arial, sans-serif; color:var(--ink);
+       background:#fafafa; }
+main { max-width: 1000px; margin: 0 auto; padding: 0 20px 40px; background:#fff; }
+header.top { border-left: 8px solid var(--accent); padding: 18px 20px 10px; margin: 0 -20px 12px;
+             background: #f1f6fa; }
+header.top h1 { font-size: 1.45em; margin: 0 0 4px; overflow-wrap: anywhere; }
+header.top p { margin: 0; color: var(--muted); overflow-wrap: anywhere; }
+.facts { display:flex; flex-wrap:wrap; gap:12px; margin: 14px 0; }
+.fact { flex: 1 1 200px; border:1px solid var(--rule); border-top:4px solid var(--warm);
+        padding: 8px 12px; }
+.fact .k { font-size: .8em; text-transform: uppercase; letter-spacing: .04em; color:var(--muted); }
+.fact .v { font-size: 1.25em; font-weight: 600; }
+.fact .s { font-size: .85em; color: var(--muted); }
+h2 { font-size: 1.15em; border-bottom: 2px solid var(--rule); padding-bottom: 3px;
+     margin-top: 30px; }
+#summary p { margin: 0 0 6px; }
+#summary { background:#fffaf0; border:1px solid #f0dcb0; padding: 10px 16px; }
+figure { margin: 18px 0; }
+figure img { width: 100%; height: auto; border: 1px solid var(--rule); }
+figcaption { font-size: .9em; color: var(--muted); }
+.scroll { overflow-x: auto; }
+table { border-collapse: collapse; font-size: .86em; margin: 6px 0; }
+th, td { border-bottom: 1px solid var(--rule); padding: 4px 8px; text-align: right;
+         white-space: nowrap; }
+th { background: #f4f4f4; vertical-align: bottom; white-space: normal; }
+td.t, th.t { text-align: left; }
+tr.rec td { font-weight: 600; background: #eef5fb; }
+p.note { font-size: .85em; color: var(--muted); }
+ul.cautions li { margin-bottom: 6px; }
+dl.methods dt { font-weight: 600; margin-top: 10px; }
+dl.methods dd { margin: 2px 0 0 0; }
+dl.methods .src { font-size: .85em; color: var(--muted); }
+footer { font-size: .8em; color: var(--muted); margin-top: 30px; border-top: 1px solid var(--rule);
+         padding-top: 8px; }
+"""
+
+
+@dataclass(frozen=True)
+class Chart:
+    """One chart: ``name`` is the PNG file stem and the element id."""
+
+    name: str
+    title: str
+    caption: str
+    png: bytes
+
+
+@dataclass(frozen=True)
+class Fact:
+    key: str
+    value: str
+    sub: str = ""
+
+
+def _table_html(table: Table) -> str:
+    head = "".join(f'<th class="{"t" if c.kind == "text" else "n"}" scope="col">'
+                   f"{esc(c.heading)}</th>" for c in table.columns)
+    body = []
+    for row in table.rows:
+        cls = ' class="rec"' if row.get("recommended") == "yes" else ""
+        cells = "".join(f'<td class="{"t" if c.kind == "text" else "n"}" data-key="{esc(c.key)}">'
+                        f"{esc(fmt(row.get(c.key), c.kind))}</td>" for c in table.columns)
+        body.append(f"<tr{cls}>{cells}</tr>")
+    note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
+    return (f'<section class="table" id="table-{esc(table.name)}"><h3>{esc(table.title)}</h3>'
+            f'<div class="scroll"><table><thead><tr>{head}</tr></thead>'
+            f'<tbody>{"".join(body)}</tbody></table></div>{note}</section>')
+
+
+def _chart_html(chart: Chart) -> str:
+    data = base64.b64encode(chart.png).decode("ascii")
+    return (f'<figure class="chart" id="chart-{esc(chart.name)}">'
+            f'<img src="data:image/png;base64,{data}" alt="{esc(chart.title)}">'
+            f"<figcaption><strong>{esc(chart.title)}.</strong> {esc(chart.caption)}"
+            f"</figcaption></figure>")
+
+
+def page(*, title: str, subtitle: str, facts: list[Fact], summary: list[str],
+         charts: list[Chart], tables: list[Table], cautions: list[str], missing: list[str],
+         footer: str) -> str:
+    """The whole HTML page as text. All arguments are plain text; this function escapes them."""
+    fact_html = "".join(f'<div class="fact"><div class="k">{esc(f.key)}</div>'
+                        f'<div class="v">{esc(f.value)}</div><div class="s">{esc(f.sub)}</div>'
+                        f"</div>" for f in facts)
+    summary_html = "".join(f"<p>{esc(s)}</p>" for s in summary)
+    missing_html = "".join(f'<p class="note">{esc(m)}</p>' for m in missing)
+    methods_html = "".join(f"<dt>{esc(h)}</dt><dd>{esc(text)} "
+                           f'<span class="src">Source: {esc(src)}</span></dd>'
+                           for h, text, src in METHODS)
+    caution_html = "".join(f"<li>{esc(c)}</li>" for c in cautions)
+    return f"""<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta http-equiv="Content-Security-Policy" content="{CSP}">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="referrer" content="no-referrer">
+<title>{esc(title)}</title>
+<style>{STYLE}</style>
+</head>
+<body>
+<main>
+<header class="top"><h1 id="report-title">{esc(title)}</h1><p>{esc(subtitle)}</p></header>
+<div class="facts" id="key-figures">{fact_html}</div>
+<section id="summary"><h2>In short</h2>{summary_html}</section>
+<section id="charts"><h2>Charts</h2>{"".join(_chart_html(c) for c in charts)}{missing_html}</section>
+<section id="tables"><h2>Tables</h2>{"".join(_table_html(t) for t in tables)}</section>
+<section id="cautions"><h2>Cautions</h2><ul class="cautions">{caution_html}</ul></section>
+<section id="methods"><h2>Methods</h2><dl class="methods">{methods_html}</dl></section>
+<footer>{esc(footer)}</footer>
+</main>
+</body>
+</html>
+"""

@@ -1,0 +1,55 @@
+"""The report's short methods section: what each test and strategy does, with its source."""
+
+from __future__ import annotations
+
+METHODS = (
+    ("Trend and growth",
+     "Each trend is fitted by least squares: linear (y = a + b t), exponential (ln y = a + b t, "
+     "growth per period e^b - 1, compounded to a year as (1 + g)^p - 1) or quadratic. Seasonal "
+     "terms, when used, are shared by all regimes. Standard errors use the Newey-West "
+     "covariance, which allows for autocorrelated residuals, and intervals of growth figures "
+     "use the delta method; a Wald test with the same covariance asks whether growth differs "
+     "across a break.",
+     "Newey, W. K. and West, K. D. (1987), Econometrica 55(3), 703-708; Newey and West (1994), "
+     "Review of Economic Studies 61(4), 631-653."),
+    ("Break search",
+     "Breaks are the first periods of new regimes. The best break dates for each number of "
+     "breaks come from an exact search over all segmentations (dynamic programming on segment "
+     "costs); the number of breaks is chosen by an information criterion or sequential tests, "
+     "the sup-F test asks whether there is any break at all, and each break date gets a 95% "
+     "interval.",
+     "Bai, J. and Perron, P. (1998), Econometrica 66(1), 47-78; Bai and Perron (2003), Journal "
+     "of Applied Econometrics 18(1), 1-22; Andrews, D. W. K. (1993), Econometrica 61(4), "
+     "821-856."),
+    ("Known dates and drift",
+     "A break at a known date is tested with the Chow test. The CUSUM path of recursive "
+     "residuals shows when one global trend starts to drift; leaving its 5% band signals "
+     "instability.",
+     "Chow, G. C. (1960), Econometrica 28(3), 591-605; Brown, R. L., Durbin, J. and Evans, "
+     "J. M. (1975), Journal of the Royal Statistical Society B 37(2), 149-192."),
+    ("Strategies",
+     "global: one trend over all history. separate: one trend per regime, fitted jointly with "
+     "shared seasonal terms, forecast from the last regime. truncated: the trend fitted only on "
+     "the history from a chosen start. continuous: a piecewise trend joined at the breaks. "
+     "window-average: the average of forecasts from several estimation windows, a hedge when "
+     "the break date is uncertain.",
+     "Pesaran, M. H. and Pick, A. (2011), Journal of Business & Economic Statistics 29(2), "
+     "307-318."),
+    ("Evaluation",
+     "Each candidate is fitted on the history up to an origin, forecasts the next periods, and "
+     "the origin moves forward (rolling origin); breaks are searched again at each origin from "
+     "that history only. Errors are in original units; MASE scales them by the seasonal naive "
+     "forecast, the interval score rewards narrow intervals that cover. The Diebold-Mariano "
+     "test, with the small-sample correction, asks whether a candidate beats the global trend.",
+     "Tashman, L. J. (2000), International Journal of Forecasting 16(4), 437-450; Diebold, "
+     "F. X. and Mariano, R. S. (1995), Journal of Business & Economic Statistics 13(3), 253-263; "
+     "Harvey, D., Leybourne, S. and Newbold, P. (1997), International Journal of Forecasting "
+     "13(2), 281-291; Hyndman, R. J. and Koehler, A. B. (2006), International Journal of "
+     "Forecasting 22(4), 679-688; Gneiting, T. and Raftery, A. E. (2007), Journal of the "
+     "American Statistical Association 102(477), 359-378."),
+    ("Charts",
+     "Colours come from a palette that stays distinct for the common forms of colour-blindness, "
+     "and lines also differ in style.",
+     "Okabe, M. and Ito, K. (2008), Color Universal Design (CUD): how to make figures and "
+     "presentations that are friendly to colorblind people."),
+)

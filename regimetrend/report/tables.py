@@ -1,0 +1,178 @@
+"""The report's tables, built from the result's JSON form so every figure shown is a JSON figure.
+
+A ``Table`` holds raw values (full precision) and says how each column reads; the HTML page rounds
+them for reading, the CSV files and the workbook keep them as they are. Tables are built from
+``to_dict()`` output (plain dicts), never from fitted objects, so the page, the CSV files and the
+JSON cannot disagree.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+# how a column reads: text, int, pct (percent, 2 decimals), num (4 significant digits),
+# pvalue, points (percentage points)
+KINDS = ("text", "int", "pct", "num", "pvalue", "points")
+
+
+@dataclass(frozen=True)
+class Column:
+    key: str
+    heading: str
+    kind: str = "num"
+
+
+@dataclass(frozen=True)
+class Table:
+    """A titled table: ``name`` is the file stem and the workbook sheet name."""
+
+    name: str
+    title: str
+    columns: tuple[Column, ...]
+    rows: tuple[dict, ...]
+    note: str = ""
+
+    def matrix(self) -> list[list]:
+        """Header row then raw values, in column order."""
+        return [[c.heading for c in self.columns]] + [[row.get(c.key) for c in self.columns]
+                                                      for row in self.rows]
+
+
+def dig(obj, *keys, default=None):
+    """``obj[k1][k2]...`` through dicts and lists, or ``default`` when a step is missing."""
+    for k in keys:
+        if isinstance(obj, dict) and k in obj:
+            obj = obj[k]
+        elif isinstance(obj, list) and isinstance(k, int) and -len(obj) <= k < len(obj):
+            obj = obj[k]
+        else:
+            return default
+    return obj
+
+
+def _ci(growth: dict, name: str, i: int):
+    ci = growth.get(f"{name}_ci95") or [None, None]
+    return ci[i]
+
+
+def growth_rows(growth: dict) -> Table:
+    """Growth by regime (``GrowthTable.to_dict()``), with the change from the regime before."""
+    shape = growth.get("shape", "linear")
+    segments = growth.get("segments", [])
+    changes = {c["break"] + 1: c for c in growth.get("changes", [])}
+    cols = [Column("regime", "Regime", "int"), Column("from", "From", "text"),
+            Column("to", "To", "text"), Column("periods", "Periods", "int")]
+    figures = [("per_period_pct", "Growth per period, %", "pct"),
+               ("annualised_pct", "Annualised growth, %", "pct"),
+               ("annualised_units", "Yearly increase, units", "num")]
+    if shape == "exponential":
+        figures.append(("doubling_time_years", "Doubling time, years", "num"))
+    elif shape == "linear":
+        figures.append(("annualised_pct_of_start", "Yearly increase, % of start level", "pct"))
+    else:
+        figures.append(("average_annualised_pct", "Average annual growth over regime, %", "pct"))
+    for key, heading, kind in figures:
+        cols += [Column(key, heading, kind), Column(f"{key}_low", "95% low", kind),
+                 Column(f"{key}_high", "95% high", kind)]
+    cols += [Column("change_points", "Change in annualised growth, points", "points"),
+             Column("change_p_value", "p-value, equal growth (Wald, HAC)", "pvalue")]
+    rows = []
+    for seg in segments:
+        g = seg.get("growth", {})
+        row = {"regime": seg.get("index"), "from": seg.get("start_label"),
+               "to": seg.get("end_label"), "periods": seg.get("periods")}
+        for key, _, _ in figures:
+            row[key] = g.get(key)
+            row[f"{key}_low"] = _ci(g, key, 0)
+            row[f"{key}_high"] = _ci(g, key, 1)
+        change = changes.get(seg.get("index"))
+        row["change_points"] = change.get("annualised_pct_change") if change else None
+        row["change_p_value"] = change.get("p_value") if change else None
+        rows.append(row)
+    note = f"Headline annualised growth: {growth.get('headline', '')}. " \
+           f"Intervals: {growth.get('intervals', '')}; covariance: {growth.get('covariance', '')}."
+    return Table("growth_by_regime", "Growth by regime", tuple(cols), tuple(rows), note)
+
+
+def ranking_rows(evaluation: dict) -> Table:
+    """The candidate ranking (``Evaluation.to_dict()['candidates']``)."""
+    recommended = dig(evaluation, "recommended", "name")
+    cols = (Column("rank", "Rank", "int"), Column("candidate", "Candidate", "text"),
+            Column("recommended", "Recommended", "text"), Column("rmse", "RMSE", "num"),
+            Column("mae", "MAE", "num"), Column("mape", "MAPE, %", "pct"),
+            Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage", "pct"),
+            Column("gain_pct", "RMSE gain over global, %", "pct"),
+            Column("dm_p_value", "p-value vs global (Diebold-Mariano)", "pvalue"))
+    rows = []
+    for c in evaluation.get("candidates", []):
+        m = c.get("metrics", {})
+        gain = c.get("gain_over_global")
+        cov = m.get("coverage95")
+        vs = c.get("vs_global") or {}
+        p = vs.get("p_value", dig(vs, "pooled", "p_value"))
+        rows.append({"rank": c.get("rank"), "candidate": c.get("name"),
+                     "recommended": "yes" if c.get("name") == recommended else "",
+                     "rmse": m.get("rmse"), "mae": m.get("mae"), "mape": m.get("mape"),
+                     "mase": m.get("mase"), "coverage95": None if cov is None else 100.0 * cov,
+                     "gain_pct": None if gain is None else 100.0 * gain, "dm_p_value": p})
+    note = "Rolling-origin forecasts, errors in original units; lower is better for RMSE, MAE, " \
+           "MAPE and MASE."
+    if evaluation.get("optimistic_note"):
+        note += " " + str(evaluation["optimistic_note"]).capitalize() + "."
+    return Table("candidate_ranking", "Candidate ranking", cols, tuple(rows), note)
+
+
+def forecast_rows(forecast: dict, title: str = "Forecast with intervals") -> Table:
+    """The forecast (``Forecast.to_dict()``) with 80% and 95% intervals."""
+    cols = (Column("label", "Period", "text"), Column("date", "Period start", "text"),
+            Column("mean", "Forecast (mean)", "num"), Column("median", "Median", "num"),
+            Column("lower80", "80% low", "num"), Column("upper80", "80% high", "num"),
+            Column("lower95", "95% low", "num"), Column("upper95", "95% high", "num"))
+    rows = tuple(dict(r) for r in forecast.get("rows", []))
+    note = f"Model: {forecast.get('model', '')}."
+    return Table("forecast", title, cols, rows, note)
+
+
+def break_rows(breaks: dict, series_labels: dict | None = None) -> Table:
+    """The breaks found (``BreakSet.to_dict()``): date and its 95% interval."""
+    cols = (Column("break", "Break", "int"), Column("label", "First period of new regime", "text"),
+            Column("low", "95% interval, from", "text"),
+            Column("high", "95% interval, to", "text"))
+    rows = []
+    for i, b in enumerate(breaks.get("breaks", []) if isinstance(breaks, dict) else []):
+        ci = b.get("ci95_labels") or b.get("ci95") or [None, None]
+        rows.append({"break": i + 1, "label": b.get("label") or b.get("date"),
+                     "low": ci[0], "high": ci[1]})
+    return Table("breaks", "Breaks found", cols, tuple(rows))
+
+
+def fmt(value, kind: str) -> str:
+    """A value rounded for reading (the HTML page); empty for missing values."""
+    if value is None:
+        return "\u2013"
+    if kind in ("text",):
+        return str(value)
+    if isinstance(value, str):
+        return value
+    v = float(value)
+    if not math.isfinite(v):
+        return "\u2013"
+    if kind == "int":
+        return f"{int(round(v)):d}"
+    if kind in ("pct", "points"):
+        return f"{v:+.2f}" if kind == "points" else f"{v:.2f}"
+    if kind == "pvalue":
+        return "<0.0001" if v < 1e-4 else f"{v:.4f}"
+    return num(v)
+
+
+def num(v: float) -> str:
+    """Four significant digits, without exponent for ordinary business magnitudes."""
+    if v == 0:
+        return "0"
+    a = abs(v)
+    if a >= 1e9 or a < 1e-3:
+        return f"{v:.3e}"
+    digits = max(0, 3 - int(math.floor(math.log10(a))))
+    return f"{v:,.{digits}f}"

@@ -124,7 +124,7 @@ def error_chart(dates, lines: dict, *, units: str, frequency: str, horizon_note:
     ax.set_xlabel(f"forecast target period ({frequency}){horizon_note}")
     ax.set_ylabel(f"error, actual minus forecast ({units})")
     ax.set_title(title, loc="left", fontsize=11)
-    ax.legend(loc="upper left", fontsize=8, frameon=False)
+    ax.legend(loc="best", fontsize=8, frameon=False)
     return _png(plt, fig)
 
 
@@ -166,7 +166,7 @@ def history_chart(dates, scores, *, metric: str, frequency: str, chosen=None,
     ax.set_xlabel(f"first period of the history used for fitting ({frequency})")
     ax.set_ylabel(metric)
     ax.set_title(title, loc="left", fontsize=11)
-    ax.legend(loc="upper left", fontsize=8, frameon=False)
+    ax.legend(loc="best", fontsize=8, frameon=False)
     return _png(plt, fig)
 
 

@@ -1,0 +1,76 @@
+"""``regimetrend report FILE --output DIR``: the whole analysis written as a report.
+
+Takes the model, break and evaluation options of ``compare``; writes the self-contained HTML
+report, the charts as PNG, the tables as CSV and one workbook, and the full result as JSON (see
+``regimetrend.report.writer`` for the file names), then lists what it wrote.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from . import options
+
+
+def add_evaluation_options(p) -> None:
+    """The rolling-origin options, as ``compare`` names them."""
+    p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
+                   help="forecast horizons 1..H, scored on the rolling origin and forecast "
+                        "(default: one seasonal cycle, at least 4)")
+    p.add_argument("--first-origin", type=options._positive_int, default=None, metavar="N",
+                   help="periods known at the first origin (default: the later of half the "
+                        "series and the start of the last 24 origins)")
+    p.add_argument("--step", type=options._positive_int, default=1, metavar="K",
+                   help="periods between origins (default 1)")
+    p.add_argument("--reuse-breaks", action="store_true",
+                   help="reuse the full-sample breaks at every origin instead of finding them "
+                        "again (faster; results are labelled optimistic)")
+
+
+def register(sub) -> None:
+    p = sub.add_parser("report", help="write the full analysis as an HTML report with charts, "
+                                      "CSV and workbook tables and JSON")
+    options.add_input_options(p)
+    options.add_model_options(p)
+    options.add_break_options(p)
+    add_evaluation_options(p)
+    p.add_argument("--output", metavar="DIR", required=True,
+                   help="folder for the report files (created when missing)")
+    p.add_argument("--json", action="store_true",
+                   help="print the list of written files as JSON instead of lines")
+    p.set_defaults(run=run)
+
+
+def _settings(args) -> dict:
+    return {"kind": args.kind, "max_breaks": args.max_breaks, "trim": args.trim,
+            "criterion": args.criterion, "events": tuple(args.event),
+            "seasonal_by_regime": args.seasonal_by_regime, "horizon": args.horizon,
+            "first_origin": args.first_origin, "step": args.step,
+            "reuse_breaks": args.reuse_breaks}
+
+
+def produce_report(series, folder, *, source_name: str | None = None, **settings) -> dict:
+    """Run ``analyze`` on ``series`` with ``settings`` and write the report into ``folder``;
+    returns {output name: path}."""
+    from ..analysis import analyze
+    from ..report import write_report
+
+    folder = options.check_output_folder(folder)
+    analysis = analyze(series, **settings)
+    return write_report(analysis, folder, source_name=source_name)
+
+
+def run(args) -> int:
+    folder = options.check_output_folder(args.output)
+    series = options.load_from_args(args)
+    spec = options.model_from_args(args, series)
+    written = produce_report(series, folder, source_name=Path(args.file).name,
+                             shape=spec.shape, seasonality=spec.seasonality,
+                             season_length=spec.season_length, **_settings(args))
+    if args.json:
+        print(options.dumps(written))
+    else:
+        print(f"report for {series.name} written to {folder}")
+        for key, path in written.items():
+            print(f"{key}: {path}")
+    return 0

@@ -304,3 +304,26 @@ def window_grid(first_origin: int, last_origin: int, minimum_window: int,
     g = max(1, int(np.ceil(room / max(count - 1, 1))))
     top = last_origin - minimum_window
     return tuple(range(0, max(top, 0) + 1, g))
+
+
+def strategy_forecast(series, strategy: Strategy, breaks, horizon: int, spec: TrendSpec,
+                      window_count: int = 10):
+    """Fit ``strategy`` on all of ``series`` (breaks = first periods of new regimes) and return
+    a dated ``Forecast`` of the next ``horizon`` periods in original units."""
+    from .forecast import Forecast
+
+    n = series.n
+    minimum = max(TrendSpec(strategy.shape, spec.seasonality, spec.season_length)
+                  .minimum_points(), 2 * spec.season_length if spec.seasonality != "none" else 0)
+    fits = OriginFits(series.values, series.first_season(), spec.seasonality,
+                      spec.season_length, breaks, window_grid(n, n, minimum, window_count))
+    points = fits.forecast(strategy, horizon)
+    starts = series.frequency.future(series.starts[-1], horizon)
+    labels = tuple(series.frequency.label(s) for s in starts)
+    start = 0  # joint fits and the window average use history from the first period
+    if strategy.name == "truncated":
+        start = (strategy.start if strategy.start is not None
+                 else fits.latest_start(strategy.shape))
+    used = TrendSpec(strategy.last_shape or strategy.shape, spec.seasonality, spec.season_length)
+    return Forecast(strategy.key + " (" + used.describe() + ")", used, starts, labels, points,
+                    int(start))

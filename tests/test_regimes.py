@@ -153,3 +153,15 @@ def test_planted_level_and_slope_change_separate_beats_global():
     err_sep = actual - fits.forecast(Strategy("separate", "linear"), 6).mean
     err_glob = actual - fits.forecast(Strategy("global", "linear"), 6).mean
     assert np.sqrt(np.mean(err_sep ** 2)) < 0.2 * np.sqrt(np.mean(err_glob ** 2))
+
+
+def test_strategy_forecast_is_dated_and_ordered(drivers):
+    from regimetrend.design import TrendSpec
+    from regimetrend.regimes import strategy_forecast
+
+    # Source: base-R UKDriverDeaths; the seat-belt law took effect in February 1983.
+    spec = TrendSpec("exponential", "dummies", 12)
+    fc = strategy_forecast(drivers, Strategy("truncated", "exponential"), (169,), 6, spec)
+    assert fc.labels[0] == "1985-01" and fc.fitted_from == 169
+    for r in fc.rows():
+        assert r["lower95"] < r["lower80"] < r["median"] < r["mean"] < r["upper80"] < r["upper95"]

@@ -41,11 +41,12 @@ figure { margin: 18px 0; }
 figure img { width: 100%; height: auto; border: 1px solid var(--rule); }
 figcaption { font-size: .9em; color: var(--muted); }
 .scroll { overflow-x: auto; }
-table { border-collapse: collapse; font-size: .86em; margin: 6px 0; }
-th, td { border-bottom: 1px solid var(--rule); padding: 4px 8px; text-align: right;
+table { border-collapse: collapse; font-size: .82em; margin: 6px 0; }
+th, td { border-bottom: 1px solid var(--rule); padding: 4px 6px; text-align: right;
          white-space: nowrap; }
 th { background: #f4f4f4; vertical-align: bottom; white-space: normal; }
 td.t, th.t { text-align: left; }
+td.ci { color: #333; font-size: .95em; }
 tr.rec td { font-weight: 600; background: #eef5fb; }
 p.note { font-size: .85em; color: var(--muted); }
 ul.cautions li { margin-bottom: 6px; }
@@ -74,15 +75,45 @@ class Fact:
     sub: str = ""
 
 
+def _groups(columns) -> list:
+    """Columns in display groups: a ``*_low``/``*_high`` pair becomes one interval cell."""
+    out, i = [], 0
+    cols = list(columns)
+    while i < len(cols):
+        c = cols[i]
+        if (c.key.endswith("_low") and i + 1 < len(cols)
+                and cols[i + 1].key == c.key[:-4] + "_high"):
+            out.append((c, cols[i + 1]))
+            i += 2
+        else:
+            out.append((c,))
+            i += 1
+    return out
+
+
+def _value_span(c, row) -> str:
+    return f'<span data-key="{esc(c.key)}">{esc(fmt(row.get(c.key), c.kind))}</span>'
+
+
 def _table_html(table: Table) -> str:
-    head = "".join(f'<th class="{"t" if c.kind == "text" else "n"}" scope="col">'
-                   f"{esc(c.heading)}</th>" for c in table.columns)
+    groups = _groups(table.columns)
+    head = "".join(f'<th class="{"t" if g[0].kind == "text" else "n"}" scope="col">'
+                   f'{esc("95% interval" if len(g) == 2 else g[0].heading)}</th>'
+                   for g in groups)
     body = []
     for row in table.rows:
         cls = ' class="rec"' if row.get("recommended") == "yes" else ""
-        cells = "".join(f'<td class="{"t" if c.kind == "text" else "n"}" data-key="{esc(c.key)}">'
-                        f"{esc(fmt(row.get(c.key), c.kind))}</td>" for c in table.columns)
-        body.append(f"<tr{cls}>{cells}</tr>")
+        cells = []
+        for g in groups:
+            kind = "t" if g[0].kind == "text" else "n"
+            if len(g) == 2:
+                inner = (_value_span(g[0], row) + " to " + _value_span(g[1], row)
+                         if row.get(g[0].key) is not None or row.get(g[1].key) is not None
+                         else esc(fmt(None, g[0].kind)))
+                cells.append(f'<td class="{kind} ci">{inner}</td>')
+            else:
+                cells.append(f'<td class="{kind}">{_value_span(g[0], row)}</td>')
+        body.append(f"<tr{cls}>{''.join(cells)}</tr>")
     note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
     return (f'<section class="table" id="table-{esc(table.name)}"><h3>{esc(table.title)}</h3>'
             f'<div class="scroll"><table><thead><tr>{head}</tr></thead>'

@@ -75,8 +75,8 @@ def growth_rows(growth: dict) -> Table:
     for key, heading, kind in figures:
         cols += [Column(key, heading, kind), Column(f"{key}_low", "95% low", kind),
                  Column(f"{key}_high", "95% high", kind)]
-    cols += [Column("change_points", "Change in annualised growth, points", "points"),
-             Column("change_p_value", "p-value, equal growth (Wald, HAC)", "pvalue")]
+    cols += [Column("change_points", "Change from the regime before, points", "points"),
+             Column("change_p_value", "p-value, same growth (Wald)", "pvalue")]
     rows = []
     for seg in segments:
         g = seg.get("growth", {})
@@ -103,14 +103,15 @@ def ranking_rows(evaluation: dict) -> Table:
             Column("mae", "MAE", "num"), Column("mape", "MAPE, %", "pct"),
             Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage", "pct"),
             Column("gain_pct", "RMSE gain over global, %", "pct"),
-            Column("dm_p_value", "p-value vs global (Diebold-Mariano)", "pvalue"))
+            Column("dm_p_value", "p-value, beats global (Diebold-Mariano, one-sided)",
+                   "pvalue"))
     rows = []
     for c in evaluation.get("candidates", []):
         m = c.get("metrics", {})
         gain = c.get("gain_over_global")
         cov = m.get("coverage95")
         vs = c.get("vs_global") or {}
-        p = vs.get("p_value", dig(vs, "pooled", "p_value"))
+        p = vs.get("p_value_better", vs.get("p_value"))
         rows.append({"rank": c.get("rank"), "candidate": c.get("name"),
                      "recommended": "yes" if c.get("name") == recommended else "",
                      "rmse": m.get("rmse"), "mae": m.get("mae"), "mape": m.get("mape"),
@@ -175,4 +176,6 @@ def num(v: float) -> str:
     if a >= 1e9 or a < 1e-3:
         return f"{v:.3e}"
     digits = max(0, 3 - int(math.floor(math.log10(a))))
+    if digits and abs(round(v, digits)) >= 10 ** (4 - digits):  # 999.96 rounds up to 1,000
+        digits -= 1
     return f"{v:,.{digits}f}"

@@ -31,8 +31,10 @@ before it), so a strategy never fails because a break was found close to an orig
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
+from scipy import stats
 
 from . import ols
 from .design import (SHAPES, TimeScale, TrendSpec, seasonal_columns, seasonal_pattern,
@@ -177,7 +179,7 @@ class OriginFits:
     seasonality."""
 
     def __init__(self, values, first_season: int, seasonality: str, season_length: int,
-                 breaks=(), window_starts=()):
+                 breaks=(), window_starts=(), season_block=None):
         self.values = np.asarray(values, dtype=float)
         self.origin = len(self.values)
         self.first_season = int(first_season)
@@ -188,6 +190,8 @@ class OriginFits:
         self._trends: dict = {}
         self._forecasts: dict = {}
         self._specs: dict = {}
+        self._y: dict = {}
+        self._season_block = season_block
 
     def spec_for(self, shape: str) -> TrendSpec:
         if shape not in self._specs:
@@ -195,18 +199,61 @@ class OriginFits:
         return self._specs[shape]
 
     # -- single trends -------------------------------------------------------------------
+    def _seasonal(self, start: int, stop: int) -> np.ndarray:
+        """Effect-coded seasonal columns of positions start..stop-1 (from a shared block)."""
+        block = self._season_block
+        if block is None or len(block) < stop:
+            block = seasonal_columns(np.arange(stop), self.first_season, self.season_length)
+            self._season_block = block
+        return block[start:stop]
+
+    def _model_y(self, spec: TrendSpec) -> np.ndarray:
+        if spec.log_scale not in self._y:
+            self._y[spec.log_scale] = to_model_scale(self.values, spec)
+        return self._y[spec.log_scale]
+
+    def _design(self, spec: TrendSpec, scale: TimeScale, start: int, stop: int) -> np.ndarray:
+        X = trend_columns(np.arange(start, stop), spec.shape, scale)
+        if spec.seasonality == "dummies":
+            X = np.hstack([X, self._seasonal(start, stop)])
+        return X
+
     def trend(self, shape: str, start: int = 0) -> TrendFit:
+        """The single trend fitted on positions start..origin-1 (what ``fit_trend`` fits; the
+        seasonal columns come from a block shared by every fit)."""
         key = (shape, start)
-        if key not in self._trends:
-            positions = np.arange(start, self.origin)
-            self._trends[key] = fit_trend(self.values[start:], positions, self.spec_for(shape),
-                                          self.first_season, _what(start))
-        return self._trends[key]
+        if key in self._trends:
+            return self._trends[key]
+        spec = self.spec_for(shape)
+        positions = np.arange(start, self.origin)
+        if spec.seasonality == "adjust":
+            fit = fit_trend(self.values[start:], positions, spec, self.first_season,
+                            _what(start))
+        else:
+            need = spec.minimum_points()
+            if len(positions) < need:
+                raise InputError(f"{_what(start)} has {len(positions)} points; a "
+                                 f"{spec.describe()} needs at least {need}")
+            scale = TimeScale.for_positions(positions)
+            X = self._design(spec, scale, start, self.origin)
+            try:
+                result = ols.fit(X, self._model_y(spec)[start:])
+            except ols.RankDeficient as exc:
+                raise InputError(f"{_what(start)} cannot be fitted as a {spec.describe()}: "
+                                 f"{exc}") from None
+            fit = TrendFit(spec, positions, self.first_season, scale, result, None)
+        self._trends[key] = fit
+        return fit
 
     def trend_forecast(self, shape: str, start: int, positions) -> PointForecasts:
         key = (shape, start, len(positions))
         if key not in self._forecasts:
-            self._forecasts[key] = self.trend(shape, start).forecast(positions)
+            fit = self.trend(shape, start)
+            X_new = None
+            if fit.spec.seasonality != "adjust":
+                X_new = self._design(fit.spec, fit.scale, int(positions[0]),
+                                     int(positions[-1]) + 1)
+            self._forecasts[key] = forecast_points(fit, positions, X_new)
         return self._forecasts[key]
 
     def latest_start(self, shape: str) -> int:
@@ -232,7 +279,7 @@ class OriginFits:
             self._trends[key] = fit
             return fit
         positions = np.arange(self.origin)
-        y = to_model_scale(self.values, spec)
+        y = self._model_y(spec)
         pattern = None
         if spec.seasonality == "adjust":
             pattern = seasonal_pattern(y, positions, self.first_season, self.season_length)
@@ -273,7 +320,7 @@ class OriginFits:
             key = (name, strategy.shape, strategy.last_shape or strategy.shape, "fc", horizon)
             if key not in self._forecasts:
                 fit = self.piecewise(name, strategy.shape, strategy.last_shape)
-                self._forecasts[key] = fit.forecast(positions)
+                self._forecasts[key] = forecast_points(fit, positions)
             return self._forecasts[key]
         return self.window_average(strategy.shape, positions)
 
@@ -287,6 +334,30 @@ class OriginFits:
         avg = {f: np.mean([getattr(p, f) for p in parts], axis=0)
                for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95")}
         return PointForecasts(np.asarray(positions), **avg)
+
+
+@lru_cache(maxsize=4096)
+def t_quantile(level: float, df: int) -> float:
+    """Two-sided Student-t quantile for a central interval of ``level`` (cached: the same few
+    degrees of freedom recur across thousands of fits)."""
+    return float(stats.t.ppf(0.5 + level / 2.0, df))
+
+
+def forecast_points(fit: TrendFit, positions, X_new=None) -> PointForecasts:
+    """``TrendFit.forecast`` with cached t quantiles: the core's ``predict`` gives the mean and
+    the prediction standard error at the design rows; the intervals are mean +/- t se on the
+    model scale and are back-transformed as in ``trendfit`` (lognormal mean for logs)."""
+    positions = np.atleast_1d(np.asarray(positions, dtype=int))
+    X_new = fit.design(positions) if X_new is None else X_new
+    pred = fit.fit.predict(X_new, levels=())
+    m = pred.mean + fit.seasonal_offset(positions)
+    se = pred.se_pred
+    q80, q95 = t_quantile(0.80, pred.df), t_quantile(0.95, pred.df)
+    l80, u80, l95, u95 = m - q80 * se, m + q80 * se, m - q95 * se, m + q95 * se
+    if fit.spec.log_scale:
+        return PointForecasts(positions, np.exp(m + se * se / 2.0), np.exp(m), np.exp(l80),
+                              np.exp(u80), np.exp(l95), np.exp(u95))
+    return PointForecasts(positions, m, m.copy(), l80, u80, l95, u95)
 
 
 def _what(start: int) -> str:

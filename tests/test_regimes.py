@@ -165,3 +165,22 @@ def test_strategy_forecast_is_dated_and_ordered(drivers):
     assert fc.labels[0] == "1985-01" and fc.fitted_from == 169
     for r in fc.rows():
         assert r["lower95"] < r["lower80"] < r["median"] < r["mean"] < r["upper80"] < r["upper95"]
+
+
+@pytest.mark.parametrize("shape,seasonality", [("exponential", "dummies"), ("quadratic", "none"),
+                                               ("linear", "adjust")])
+def test_shared_fits_equal_the_single_trend_fit(drivers, shape, seasonality):
+    # Reference: regimetrend.trendfit.fit_trend(...).forecast, the building block every
+    # strategy must agree with (its own tests check it against statsmodels and scipy).
+    from regimetrend.design import TrendSpec
+    from regimetrend.trendfit import fit_trend
+
+    y = drivers.values[:140]
+    fits = OriginFits(y, drivers.first_season(), seasonality, 12)
+    spec = TrendSpec(shape, seasonality, 12)
+    for start in (0, 40, 100):
+        ref = fit_trend(y[start:], np.arange(start, 140), spec, drivers.first_season()
+                        ).forecast(np.arange(140, 152))
+        got = fits.trend_forecast(shape, start, np.arange(140, 152))
+        for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95"):
+            np.testing.assert_allclose(getattr(got, f), getattr(ref, f), rtol=1e-11)

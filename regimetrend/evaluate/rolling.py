@@ -20,6 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputError
+from ..design import seasonal_columns
 from ..metrics import naive_scale
 from ..regimes import OriginFits, Strategy
 
@@ -125,11 +126,13 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
     out = {f: np.empty((C, O, H)) for f in FIELDS}
     scale = np.empty(O)
     used = []
+    block = (seasonal_columns(np.arange(series.n + H), first_season, season_length)
+             if seasonality == "dummies" else None)
     for i, o in enumerate(plan.origins):
         known = breaks_at(o)
         used.append(tuple(int(b) for b in known))
         fits = OriginFits(values[:o], first_season, seasonality, season_length, known,
-                          window_starts)
+                          window_starts, block)
         scale[i] = naive_scale(values[:o], season_length)
         for c, strategy in enumerate(strategies):
             p = fits.forecast(strategy, H)

@@ -33,11 +33,22 @@ def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3
     from ..breaks import detect_breaks
 
     def detect(series):
+        known = tuple(e for e in events if _inside(series, e))
         return detect_breaks(series, shape=shape, seasonality=seasonality, kind=kind,
                              max_breaks=max_breaks, trim=trim, criterion=criterion,
-                             events=events, season_length=season_length,
+                             events=known, season_length=season_length,
                              seasonal_by_regime=seasonal_by_regime)
     return detect
+
+
+def _inside(series, event) -> bool:
+    """Whether an event date falls inside the (possibly shortened) series; an event after the
+    origin is not known there, so it is not passed to the search."""
+    try:
+        d = np.datetime64(str(event), "D")
+    except ValueError:
+        return True  # let the break search report the bad date
+    return bool(series.starts[0] < d <= series.starts[-1])
 
 
 def _event_positions(series, events) -> list[tuple[int, str]]:
@@ -105,7 +116,9 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
             try:
                 return breakinfo.positions(detector(series.head(o)))
             except InputError:
-                return ()  # too little history for a search at this origin: no breaks known
+                failed.append(o)  # too little history for a search here: no breaks known
+                return ()
+    failed: list[int] = []
 
     grid = window_grid(plan.first, plan.origins[-1], w_min, window_count)
     ranked = standard_strategies(shapes)
@@ -162,6 +175,10 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                  "the history sweep and the recommendation are chosen on the same rolling "
                  "origin they are scored on, so the winner's figures flatter it a little",
                  "these figures support, and do not replace, business judgement"]
+    if failed:
+        cautions.insert(0, f"the break search could not run on the history up to "
+                           f"{len(failed)} origin(s) (first {series.label(failed[0] - 1)}); "
+                           f"those origins used no breaks")
     if reuse_breaks:
         cautions.insert(0, OPTIMISTIC_NOTE)
     model = dict(spec.to_dict(), shapes=list(shapes), kind=kind, max_breaks=max_breaks,

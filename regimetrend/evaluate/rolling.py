@@ -82,6 +82,7 @@ class ErrorTable:
     upper80: np.ndarray
     lower95: np.ndarray
     upper95: np.ndarray
+    breaks_used: tuple = ()    # (O,) break positions known at each origin
 
     def index(self, name: str) -> int:
         return self.names.index(name)
@@ -91,13 +92,17 @@ class ErrorTable:
         return self.actual - self.forecast[self.index(name)]
 
     def to_csv(self, series, optimistic: bool = False) -> str:
-        """One row per forecast: candidate, origin, horizon, date, actual, forecast, interval
-        ends and the naive scale used for MASE; full precision."""
+        """One row per forecast: candidate, origin (last period known), horizon, date, actual,
+        forecast (mean), interval ends, the naive scale used for MASE, the breaks known at the
+        origin and whether they were reused from the full sample (optimistic); full
+        precision."""
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")
         w.writerow(["candidate", "origin", "horizon", "date", "actual", "forecast", "lower80",
-                    "upper80", "lower95", "upper95", "naive_scale", "breaks"])
-        tag = "reused full-sample (optimistic)" if optimistic else "re-detected at origin"
+                    "upper80", "lower95", "upper95", "naive_scale", "breaks_known", "optimistic"])
+        tag = "yes" if optimistic else "no"
+        known = [";".join(series.label(b) for b in bs) for bs in self.breaks_used] or \
+            [""] * len(self.origins)
         origin_dates = [series.iso(int(o) - 1) for o in self.origins]
         target_dates = {int(p): series.iso(int(p)) for p in np.unique(self.targets)}
         for c, name in enumerate(self.names):
@@ -110,7 +115,7 @@ class ErrorTable:
                                 repr(float(self.upper80[c, i, j])),
                                 repr(float(self.lower95[c, i, j])),
                                 repr(float(self.upper95[c, i, j])),
-                                repr(float(self.scale[i])), tag])
+                                repr(float(self.scale[i])), known[i], tag])
         return buf.getvalue()
 
 
@@ -146,5 +151,5 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
     origins = np.asarray(plan.origins)
     targets = origins[:, None] + np.arange(H)[None, :]
     table = ErrorTable(tuple(s.key for s in strategies), origins, targets, values[targets],
-                       scale, **out)
+                       scale, **out, breaks_used=tuple(used))
     return table, tuple(used)

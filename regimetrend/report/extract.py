@@ -122,16 +122,27 @@ def _sup_f(breakset) -> float | None:
         return None
 
 
-def _cusum(breakset) -> dict | None:
-    drift = _get(breakset, "drift")
-    if drift is None:
+def _cusum(analysis, breakset, series: Series, spec) -> dict | None:
+    """The CUSUM path with its band: carried by the analysis or the break search when they have
+    it, else drawn again with the break search's own CUSUM function on the global trend (the
+    same fit whose drift the break search reports)."""
+    for holder, name in ((analysis, "cusum"), (breakset, "cusum_path"), (breakset, "drift")):
+        d = _to_dict(_get(holder, name))
+        if isinstance(d, dict) and "path" in d:
+            return d
+    if spec is None:
         return None
-    d = _to_dict(drift)
-    if isinstance(d, dict) and "recursive" in d and "path" not in d:
-        d = d["recursive"]
-    if not isinstance(d, dict) or "path" not in d:
-        return None
-    return d
+    from ..breaks import cusum
+    from ..forecast import fit_history
+
+    fit = fit_history(series, spec).fit
+    y = fit.X @ fit.beta + fit.residuals
+    method = str(_get(_get(breakset, "drift"), "method") or "recursive")
+    try:
+        path = (cusum.ols_cusum if "ols" in method.lower() else cusum.recursive_cusum)(y, fit.X)
+    except (ValueError, np.linalg.LinAlgError):  # InputError is a ValueError; the report
+        return None  # then says the chart is missing
+    return path.to_dict()
 
 
 def _fitted(line, n: int):
@@ -165,7 +176,8 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
         units=_get(analysis, "units") or series.name,
         result=_to_dict(analysis) or {}, growth=_to_dict(growth_obj), growth_obj=growth_obj,
         breaks=_breaks(breakset, series), breaks_dict=_to_dict(breakset),
-        sup_f_p=_sup_f(breakset), cusum=_cusum(breakset), evaluation=ev_dict,
+        sup_f_p=_sup_f(breakset), cusum=_cusum(analysis, breakset, series, spec),
+        evaluation=ev_dict,
         evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
         reference=_get(evaluation, "reference"), recommended=rec,
         forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),

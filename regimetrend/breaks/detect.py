@@ -1,0 +1,371 @@
+"""``detect_breaks``: find, count, test and date the breaks in a series' trend.
+
+Flow: build the problem on the model scale (logs for the exponential shape; seasonal pattern
+removed first under ``adjust``) -> search each requested kind for 0..M breaks -> choose the kind
+and the number of breaks by the criterion -> fit the joint model -> date intervals, tests,
+Chow tests at the analyst's events, CUSUM drift of the global trend -> ``BreakSet``.
+
+Kind ``auto`` searches ``both``, ``level`` and ``slope`` and lets the criterion choose among
+all (kind, m) pairs, each break counted as its changing coefficients plus its date. With the
+``sequential`` criterion the kind is chosen by BIC and the count by the sequential tests.
+Series of ``exact.PELT_LENGTH`` points or more (or ``method="pelt"``) are searched by PELT with
+kind ``both`` only.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..design import TrendSpec
+from ..errors import InputError
+from . import critical, cusum, chow, exact, intervals, kinks, select
+from .problem import KINDS, BreakProblem, build_problem
+from .result import (Break, BreakSet, BreakTests, CusumSummary, Drift, EventTest, Segment,
+                     SequentialStep, SupFTest)
+from .search import KindPath, best_added_break, search_both, search_tied
+
+METHODS = ("auto", "exact", "pelt")
+CAUTION_TESTS = ("The tests assume serially uncorrelated errors; with autocorrelated "
+                 "residuals they find breaks too often, so read p-values as indicative.")
+
+
+def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, int]:
+    kind = str(kind).strip().lower()
+    if kind not in ("auto",) + KINDS:
+        raise InputError(f"option --kind: {kind!r} is not one of auto, {', '.join(KINDS)}")
+    criterion = select.check_criterion(criterion)
+    method = str(method).strip().lower()
+    if method not in METHODS:
+        raise InputError(f"option --method: {method!r} is not one of {', '.join(METHODS)}")
+    try:
+        m = int(max_breaks)
+    except (TypeError, ValueError):
+        raise InputError(f"option --max-breaks: {max_breaks!r} is not a whole number") from None
+    if m != max_breaks or m < 0:
+        raise InputError(f"option --max-breaks: must be a whole number of 0 or more, "
+                         f"got {max_breaks!r}")
+    return kind, criterion, method, m
+
+
+def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind: str = "auto",
+                  max_breaks: int = 3, trim=None, criterion: str = "bic", events=(),
+                  season_length: int | None = None, seasonal_by_regime: bool = False,
+                  method: str = "auto") -> BreakSet:
+    """Breaks in the trend of ``series``; see the module docstring for the flow.
+
+    ``trim``: shortest regime, a share of the series (below 1) or a number of periods; the
+    default lets the last regime be one seasonal cycle (``problem.default_min_length``).
+    ``events``: dates (any form intake reads, or positions) tested by the Chow test.
+    """
+    kind, criterion, method, M = _check_options(kind, criterion, method, max_breaks)
+    s = series.frequency.season_length if season_length is None else int(season_length)
+    spec = TrendSpec(shape, seasonality, s if seasonality != "none" else max(s, 1))
+    problem = build_problem(series, spec, seasonal_by_regime, trim)
+    n, h = problem.n, problem.h
+    need = (M + 1) * h
+    if n < need:
+        most = max(n // h - 1, 0)
+        raise InputError(f"option --max-breaks: {M} breaks with regimes of at least {h} periods "
+                         f"need at least {need} periods; the series has {n} (use --max-breaks "
+                         f"{most} or a smaller --trim)")
+    if n < max(2 * h, spec.minimum_points()):
+        raise InputError(f"the series has {n} periods; a break search on a {spec.describe()} "
+                         f"needs at least {max(2 * h, spec.minimum_points())}")
+    event_positions = [_event_position(series, e, h) for e in events]
+    long_series = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
+    kinds = ("both",) if long_series else (KINDS if kind == "auto" else (kind,))
+    if long_series and kind not in ("auto", "both"):
+        raise InputError(f"option --kind: {kind} needs the exact search; series of "
+                         f"{exact.PELT_LENGTH} periods or more use kind both (PELT)")
+
+    paths: dict[str, KindPath] = {}
+    if "both" in kinds or kind == "auto":
+        paths["both"] = search_both(problem, M, criterion, "pelt" if long_series else "exact")
+    for k in kinds:
+        if k != "both":
+            starts = paths["both"].positions if "both" in paths else None
+            paths[k] = search_tied(problem, k, M, starts)
+    score_name = "lwz" if criterion == "lwz" else "bic"
+    values = {k: _criterion_values(problem, p, score_name) for k, p in paths.items()}
+    chosen_kind, m = _choose(values, kinds)
+    if criterion == "sequential":
+        seq = _sequential(problem, chosen_kind, paths[chosen_kind], M)
+        m = min(select.sequential_count([st.p_value for st in seq]),
+                len(paths[chosen_kind].ssr) - 1)
+    path = paths[chosen_kind]
+    positions = tuple(path.positions[m]) if m < len(path.positions) else ()
+    if not positions:
+        m = 0
+    fit = problem.fit(chosen_kind, positions)
+    seq_steps = (seq if criterion == "sequential"
+                 else _sequential(problem, chosen_kind, path, max(min(M, len(path.ssr) - 1), 1)))
+    proven = bool(path.exact[m]) if m < len(path.exact) else False
+    notes = [CAUTION_TESTS]
+    if problem.seasonal_by_regime:
+        notes.append("Seasonal terms change with the regime: the sup-F table covers trend "
+                     "changes only, so no p-value is given for it.")
+    if path.method == "pelt":
+        notes.append(f"Series of {exact.PELT_LENGTH} periods or more are searched by PELT with "
+                     f"a BIC-matched penalty; only that break count is evaluated.")
+    if not proven:
+        notes.append("More than two breaks of a tied kind: the break set is a local optimum "
+                     "(one break moved at a time), not a proven global one.")
+    if not path.settled:
+        notes.append(f"The seasonal pattern and the breaks did not settle within "
+                     f"{path.iterations} rounds; the last round is reported.")
+    if h / n < 0.05:
+        notes.append("Short minimum regimes: the asymptotic sup-F table is rough there.")
+    rho = _lag1(fit.residuals)
+    if rho > 0.3:
+        notes.append(f"Residuals are autocorrelated (lag-1 correlation {rho:.2f}): test sizes "
+                     f"and break-date intervals are too optimistic.")
+    breaks = tuple(_describe_break(series, problem, chosen_kind, positions, i, fit)
+                   for i in range(len(positions)))
+    tests = BreakTests(supf=_supf(problem, chosen_kind, seq_steps),
+                       sequential=tuple(seq_steps),
+                       chow=tuple(_chow(series, problem, chosen_kind, e) for e in event_positions),
+                       cusum=_cusums(problem))
+    drift = _drift(series, tests.cusum)
+    segments = tuple(_segment(series, problem, chosen_kind, positions, j, fit)
+                     for j in range(len(positions) + 1))
+    return BreakSet(spec=spec, n=n, kind=chosen_kind, kind_requested=kind,
+                    criterion=criterion, criterion_path=tuple(values[chosen_kind]),
+                    criterion_paths={k: tuple(v) for k, v in values.items()},
+                    ssr_path=tuple(path.ssr), trim_periods=h, trim_share=h / n,
+                    breaks=breaks, tests=tests, drift=drift, segments=segments,
+                    positions=tuple(int(p) for p in positions), method=path.method,
+                    exact=proven,
+                    iterations=path.iterations, seasonal_by_regime=problem.seasonal_by_regime,
+                    notes=tuple(notes))
+
+
+# -- choosing ----------------------------------------------------------------------------------
+def _criterion_values(problem: BreakProblem, path: KindPath, score: str) -> list[float]:
+    base, q = problem.base_count, problem.changing(path.kind)
+    return select.criterion_path(path.ssr, problem.n, base, q, score)
+
+
+def _choose(values: dict, kinds) -> tuple[str, int]:
+    """(kind, m) with the smallest criterion; ties go to fewer breaks, then to the order
+    both, level, slope."""
+    best = None
+    for k in ("both", "level", "slope"):
+        if k not in values or k not in kinds:
+            continue
+        v = np.asarray(values[k], dtype=float)
+        m = select.best_count(v)
+        if best is None or v[m] < best[2] - 1e-9 * abs(best[2]) or \
+                (abs(v[m] - best[2]) <= 1e-9 * abs(best[2]) and m < best[1]):
+            best = (k, m, float(v[m]))
+    if best is None or best[1] == 0:
+        return (best[0] if best else kinds[0]), 0
+    return best[0], best[1]
+
+
+def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int
+                ) -> list[SequentialStep]:
+    """sup-F(l+1|l) for l = 0.. until a test does not reject (or M is reached)."""
+    steps = []
+    q = problem.changing(kind)
+    key = problem.model_key(kind)
+    share = problem.h / problem.n
+    for l in range(0, M):
+        if l >= len(path.positions) or (l > 0 and not path.positions[l]):
+            break
+        pos = path.positions[l]
+        y_adj = None
+        if kind == "both" and problem.seasonal is not None and not problem.seasonal_by_regime:
+            y_adj = problem.y - problem.seasonal_part(problem.fit(kind, pos))
+        before, after, where = best_added_break(problem, kind, pos, y_adj)
+        if where is None:
+            break
+        k_large = problem.base_count + (l + 1) * q
+        stat = select.f_statistic(before, after, q, problem.n, k_large)
+        p = None
+        if not problem.seasonal_by_regime and math.isfinite(stat):
+            p = critical.sequential_pvalue(stat, key, min(max(share, 1e-3), 0.49), l)
+        steps.append(SequentialStep(l, stat, p, where))
+        if p is None or p >= select.SEQUENTIAL_LEVEL:
+            break
+    return steps
+
+
+def _supf(problem: BreakProblem, kind: str, steps) -> SupFTest:
+    key = problem.model_key(kind)
+    share = min(max(problem.h / problem.n, 1e-3), 0.49)
+    if not steps:
+        return SupFTest(math.nan, None, None, key, problem.h / problem.n)
+    stat = steps[0].statistic
+    crit = None if problem.seasonal_by_regime else critical.supf_critical(key, share, 0.95)
+    p = None if problem.seasonal_by_regime or not math.isfinite(stat) else \
+        critical.supf_pvalue(stat, key, share)
+    return SupFTest(stat, p, crit, key, problem.h / problem.n)
+
+
+# -- describing --------------------------------------------------------------------------------
+def _describe_break(series, problem: BreakProblem, kind: str, positions, i: int, fit) -> Break:
+    b = positions[i]
+    new = problem.trend_poly(fit, kind, positions, i + 1)
+    old = problem.trend_poly(fit, kind, positions, i)
+    jump_model = float(new(b) - old(b))
+    slope_new = float(new(b + 1) - new(b - 1)) / 2.0 if problem.degree == 2 else \
+        float(new(b + 1) - new(b))
+    slope_old = float(old(b + 1) - old(b - 1)) / 2.0 if problem.degree == 2 else \
+        float(old(b + 1) - old(b))
+    # exact derivative at b for the quadratic: central difference is exact for a parabola
+    log = problem.spec.log_scale
+    jump = float(math.exp(new(b)) - math.exp(old(b))) if log else jump_model
+    slope_pct = (100.0 * (math.exp(slope_new) - math.exp(slope_old))) if log else None
+    curv = None
+    if problem.degree == 2:
+        curv = float((new(b + 1) - 2 * new(b) + new(b - 1)) - (old(b + 1) - 2 * old(b) + old(b - 1))
+                     ) / 2.0
+    ci, method = _interval(problem, kind, positions, i, fit)
+    f_stat = _partial_f(problem, kind, positions, i, fit)
+    iso = lambda p: series.iso(int(p))
+    return Break(position=int(b), date=series.iso(b), label=series.label(b),
+                 ci90=ci[0.90], ci95=ci[0.95],
+                 ci90_dates=(iso(ci[0.90][0]), iso(ci[0.90][1])),
+                 ci95_dates=(iso(ci[0.95][0]), iso(ci[0.95][1])),
+                 interval_method=method, jump=jump, jump_model=jump_model,
+                 slope_change=slope_new - slope_old, slope_change_pct=slope_pct,
+                 curvature_change=curv, f_statistic=f_stat)
+
+
+def _interval(problem: BreakProblem, kind: str, positions, i: int, fit):
+    """Bai (1997) intervals for level and both breaks; the likelihood-ratio profile
+    (Hansen, 2000) for kinks, where Bai's result does not apply."""
+    n, h = problem.n, problem.h
+    cuts = [0, *positions, n]
+    a, b, c = cuts[i], cuts[i + 1], cuts[i + 2]
+    if kind == "slope" or problem.seasonal_by_regime:
+        terms = problem.terms(kind)
+        others = list(positions[:i]) + list(positions[i + 1:])
+        lo, hi = a + h if i > 0 else h, c - h if i + 1 < len(positions) else n - h
+        _, _, cand, prof = kinks.best_single(problem.y, problem.base, terms, lo, hi, others)
+        sigma2 = fit.ssr / max(fit.df_resid, 1)
+        ci = intervals.profile_interval(prof, cand, sigma2, (0.90, 0.95))
+        return ci, "likelihood-ratio profile (Hansen, 2000)"
+    X = problem.base
+    changing = [0] if kind == "level" else list(range(problem.trend.shape[1]))
+    y = problem.y
+    # other breaks are handled by the segment pair [a, c): only this break changes there
+    ci = intervals.break_interval(y, X, b, a, c, changing, (0.90, 0.95))
+    return ci, "Bai (1997)"
+
+
+def _partial_f(problem: BreakProblem, kind: str, positions, i: int, fit) -> float:
+    others = list(positions[:i]) + list(positions[i + 1:])
+    restricted = problem.fit(kind, others)
+    q = problem.changing(kind)
+    return select.f_statistic(restricted.ssr, fit.ssr, q, problem.n, fit.k)
+
+
+def _segment(series, problem: BreakProblem, kind: str, positions, j: int, fit) -> Segment:
+    cuts = [0, *positions, problem.n]
+    a, b = cuts[j], cuts[j + 1]
+    f = problem.trend_poly(fit, kind, positions, j)
+    v0, v1, v2 = float(f(a)), float(f(a + 1)), float(f(a + 2))
+    curv = (v2 - 2 * v1 + v0) / 2.0 if problem.degree == 2 else None
+    slope = (v1 - v0 - curv) if curv is not None else (v1 - v0)
+    log = problem.spec.log_scale
+    return Segment(start=a, end=b - 1, n=b - a, start_date=series.iso(a),
+                   end_date=series.iso(b - 1), start_label=series.label(a),
+                   end_label=series.label(b - 1),
+                   level=math.exp(v0) if log else v0, slope=slope,
+                   growth_pct=100.0 * (math.exp(slope) - 1.0) if log else None,
+                   curvature=curv)
+
+
+def _lag1(e: np.ndarray) -> float:
+    e = np.asarray(e, dtype=float)
+    d = float(e @ e)
+    return float(e[1:] @ e[:-1]) / d if d > 0 else 0.0
+
+
+# -- events, Chow and CUSUM --------------------------------------------------------------------
+def _event_position(series, event, h: int) -> tuple[str, int]:
+    """Position of the period containing ``event``; clear errors outside or in the edges."""
+    n = series.n
+    text = str(event)
+    if isinstance(event, (int, np.integer)) and not isinstance(event, bool):
+        p = int(event)
+        if not 0 <= p < n:
+            raise InputError(f"option --event: position {p} is outside the series (0..{n - 1})")
+    else:
+        d = _parse_date(text)
+        if d is None:
+            raise InputError(f"option --event: {text!r} is not a date")
+        end = series.start_of(n)  # start of the period after the last
+        if d < series.starts[0] or d >= end:
+            raise InputError(f"option --event: {text} is outside the series "
+                             f"({series.label(0)} to {series.label(n - 1)})")
+        p = int(np.searchsorted(series.starts, d, side="right")) - 1
+    if p < h or p > n - h:
+        raise InputError(f"option --event: {text} ({series.label(p)}) is inside the trimmed "
+                         f"edge; a tested break needs at least {h} periods on each side "
+                         f"({series.label(h)} to {series.label(n - h)})")
+    return text, p
+
+
+def _parse_date(text: str):
+    from .. import intake
+
+    try:
+        got = intake._date_from_cell(text.strip())
+    except Exception:  # intake's private helper changed: fall back to pandas
+        got = None
+    if got is not None:
+        return np.datetime64(got[0], "D")
+    import pandas as pd
+
+    try:
+        return np.datetime64(pd.Timestamp(text).date(), "D")
+    except (ValueError, TypeError):
+        return None
+
+
+def _chow(series, problem: BreakProblem, kind: str, event) -> EventTest:
+    """Chow test at the event, with the chosen kind's changing terms (kinks: hinge form)."""
+    text, p = event
+    T = problem.trend
+    fixed_parts = [problem.seasonal] if problem.seasonal is not None else []
+    if kind == "level":
+        Xc, fixed_parts = T[:, :1], [T[:, 1:]] + fixed_parts
+    elif kind == "slope":
+        t = np.arange(problem.n, dtype=float) - p
+        Xc = np.column_stack([t ** k for k in range(1, problem.degree + 1)])
+        fixed_parts = [T[:, :1]] + fixed_parts
+    else:
+        Xc = T
+    Xf = np.hstack(fixed_parts) if fixed_parts else None
+    r = chow.chow_test(problem.y, Xc, Xf, p)
+    return EventTest(event=text, position=p, date=series.iso(p), label=series.label(p),
+                     statistic=r["statistic"], p_value=r["p_value"], df1=r["df1"], df2=r["df2"])
+
+
+def _cusums(problem: BreakProblem) -> tuple[CusumSummary, ...]:
+    X = problem.base
+    out = []
+    for name, fn in (("recursive", cusum.recursive_cusum), ("ols", cusum.ols_cusum)):
+        try:
+            c = fn(problem.y, X, 0.95)
+        except InputError:
+            continue
+        out.append(CusumSummary(name, c.statistic, c.p_value, c.first_crossing))
+    return tuple(out)
+
+
+_CUSUM_NAMES = {"recursive": "CUSUM of recursive residuals (Brown, Durbin and Evans, 1975)",
+                "ols": "OLS-based CUSUM (Ploberger and Kramer, 1992)"}
+
+
+def _drift(series, cusums) -> Drift | None:
+    """The earliest period where either CUSUM path of the global trend leaves its 5% band."""
+    crossings = [(int(c.first_crossing), c.method) for c in cusums if c.first_crossing is not None]
+    if not crossings:
+        return None
+    p, method = min(crossings)
+    return Drift(p, series.iso(p), series.label(p), _CUSUM_NAMES[method])

@@ -1,0 +1,194 @@
+"""The break problem on the model scale: response, base design, break columns, trimming.
+
+Every kind of break is written the same way: the base design (trend polynomial in the scaled
+time index, plus the shared seasonal dummies) and, for each break b, columns that are zero
+before b:
+
+- ``level``: 1{t >= b}                                     (a jump, shared slope)
+- ``slope``: (t - b)^p 1{t >= b}, p = 1..degree             (a kink: continuous trend)
+- ``both``:  (t - b)^p 1{t >= b}, p = 0..degree             (every trend coefficient free)
+
+plus, with ``seasonal_by_regime``, the seasonal columns times 1{t >= b}. Regime j's trend is
+then the base polynomial plus the full polynomials (t - b)^p of the breaks before it, so the
+jump at a break is its step coefficient, the slope change its (t - b) coefficient and the
+curvature change its (t - b)^2 coefficient, all per period on the model scale.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from .. import ols
+from ..design import (TimeScale, TrendSpec, season_index, seasonal_columns, seasonal_pattern,
+                      to_model_scale, trend_columns)
+from ..errors import InputError
+from . import kinks
+
+KINDS = ("level", "slope", "both")
+
+
+@dataclass(frozen=True, eq=False)
+class BreakProblem:
+    spec: TrendSpec
+    y: np.ndarray  # model scale, seasonal pattern removed under ``adjust``
+    pattern: np.ndarray | None  # the removed pattern (``adjust``), model scale
+    first_season: int
+    scale: TimeScale
+    trend: np.ndarray  # n x (degree+1), [1, u, u^2]
+    seasonal: np.ndarray | None  # n x (s-1) effect-coded, for ``dummies``
+    season_idx: np.ndarray | None
+    seasonal_by_regime: bool
+    h: int  # minimum regime length in periods
+
+    @property
+    def n(self) -> int:
+        return len(self.y)
+
+    @property
+    def degree(self) -> int:
+        return self.spec.trend_terms - 1
+
+    @property
+    def base(self) -> np.ndarray:
+        if self.seasonal is None:
+            return self.trend
+        return np.hstack([self.trend, self.seasonal])
+
+    @property
+    def base_count(self) -> int:
+        return self.base.shape[1]
+
+    def terms(self, kind: str) -> list:
+        extra = self.seasonal if self.seasonal_by_regime else None
+        return kinks.break_terms(kind, self.degree, extra)
+
+    def changing(self, kind: str) -> int:
+        """Coefficients that change at a break of this kind."""
+        return len(self.terms(kind))
+
+    def trend_changing(self, kind: str) -> int:
+        return {"level": 1, "slope": self.degree, "both": self.degree + 1}[kind]
+
+    def model_key(self, kind: str) -> str:
+        return f"{'quadratic' if self.degree == 2 else 'linear'}-{kind}"
+
+    def design(self, kind: str, positions) -> np.ndarray:
+        return kinks.design_with_breaks(self.base, sorted(positions), self.terms(kind))
+
+    def fit(self, kind: str, positions) -> ols.LeastSquaresFit:
+        X = self.design(kind, positions)
+        try:
+            return ols.fit(X, self.y)
+        except ols.RankDeficient as exc:
+            raise InputError(f"the break model with regimes starting at "
+                             f"{', '.join(str(p) for p in positions)} cannot be fitted: {exc}"
+                             ) from None
+
+    def seasonal_part(self, fit: ols.LeastSquaresFit) -> np.ndarray:
+        """The shared seasonal component of a joint fit (zero when there is none)."""
+        if self.seasonal is None:
+            return np.zeros(self.n)
+        k = self.trend.shape[1]
+        return self.seasonal @ fit.beta[k:k + self.seasonal.shape[1]]
+
+    def trend_poly(self, fit: ols.LeastSquaresFit, kind: str, positions, regime: int):
+        """Regime ``regime``'s trend on the model scale, as a function of (float) positions."""
+        positions = sorted(positions)
+        k = self.trend.shape[1]
+        kb = self.base.shape[1]
+        terms = self.terms(kind)
+        trend_beta = fit.beta[:k]
+        blocks = []
+        for i, b in enumerate(positions[:regime]):
+            coef = fit.beta[kb + i * len(terms): kb + (i + 1) * len(terms)]
+            blocks.append((b, [(p, c) for (h, p), c in zip(terms, coef) if h is None]))
+
+        def f(t):
+            t = np.asarray(t, dtype=float)
+            u = self.scale.u(t)
+            val = trend_beta[0] + trend_beta[1] * u
+            if k == 3:
+                val = val + trend_beta[2] * u * u
+            for b, pcs in blocks:
+                for p, c in pcs:
+                    val = val + c * (t - b) ** p
+            return val
+        return f
+
+
+def default_min_length(spec: TrendSpec, seasonal_by_regime: bool) -> int:
+    """Default shortest regime: one seasonal cycle for seasonal series, so a late break can be
+    found one cycle before the end (at least trend terms + 2 points; with seasonal terms per
+    regime, every season plus the trend terms and one degree of freedom); for series without
+    seasons max(6, 2 k + 2) points, k the trend terms (common practice: enough for a trend
+    with a few residual degrees of freedom)."""
+    k = spec.trend_terms
+    if spec.seasonality != "none" and spec.season_length > 1:
+        s = spec.season_length
+        if seasonal_by_regime and spec.seasonality == "dummies":
+            return s + k
+        return max(s, k + 2)
+    return max(6, 2 * k + 2)
+
+
+def min_length_needed(spec: TrendSpec, seasonal_by_regime: bool) -> int:
+    """Fewest points a regime can have and still be fitted with one residual degree of freedom."""
+    k = spec.trend_terms
+    if seasonal_by_regime and spec.seasonality == "dummies":
+        return spec.season_length + k
+    return k + 1
+
+
+def resolve_trim(trim, n: int, spec: TrendSpec, seasonal_by_regime: bool) -> int:
+    """Minimum regime length in periods from ``--trim`` (share below 1, else periods)."""
+    need = min_length_needed(spec, seasonal_by_regime)
+    if trim is None:
+        return default_min_length(spec, seasonal_by_regime)
+    try:
+        value = float(trim)
+    except (TypeError, ValueError):
+        raise InputError(f"option --trim: {trim!r} is not a number") from None
+    if not math.isfinite(value) or value <= 0:
+        raise InputError(f"option --trim: must be a share between 0 and 0.5 or a number of "
+                         f"periods, got {trim!r}")
+    if value < 1:
+        if value >= 0.5:
+            raise InputError(f"option --trim: a share must be below 0.5, got {trim!r}")
+        h = int(math.ceil(value * n))
+    else:
+        if value != int(value):
+            raise InputError(f"option --trim: a number of periods must be whole, got {trim!r}")
+        h = int(value)
+    if h < need:
+        raise InputError(f"option --trim: regimes of {h} periods are too short for a "
+                         f"{spec.describe()}; use at least {need}")
+    return h
+
+
+def build_problem(series, spec: TrendSpec, seasonal_by_regime: bool, trim) -> BreakProblem:
+    """Model-scale response and designs for ``series`` under ``spec``."""
+    n = series.n
+    positions = np.arange(n)
+    first = series.first_season()
+    y = to_model_scale(series.values, spec)
+    pattern = None
+    sidx = None
+    s = spec.season_length
+    if spec.seasonality != "none" and s > 1:
+        sidx = season_index(positions, first, s)
+    if spec.seasonality == "adjust":
+        pattern = seasonal_pattern(y, positions, first, s)
+        y = y - pattern[sidx]
+    scale = TimeScale.for_positions(positions)
+    trend = trend_columns(positions, spec.shape, scale)
+    seasonal = seasonal_columns(positions, first, s) if spec.seasonality == "dummies" else None
+    by_regime = bool(seasonal_by_regime) and seasonal is not None
+    h = resolve_trim(trim, n, spec, by_regime)
+    y = np.asarray(y, dtype=float)
+    y.setflags(write=False)
+    return BreakProblem(spec=spec, y=y, pattern=pattern, first_season=first, scale=scale,
+                        trend=trend, seasonal=seasonal, season_idx=sidx,
+                        seasonal_by_regime=by_regime, h=h)

@@ -56,6 +56,8 @@ class Strategy:
     last_shape: str | None = None
     start: int | None = None
     start_label: str | None = None  # how a fixed start is named (a date, or "event ...")
+    from_break: int = 1  # truncated without a fixed start: the k-th last usable break
+
 
     def __post_init__(self):
         if self.name not in STRATEGIES:
@@ -81,6 +83,8 @@ class Strategy:
             name += f" then {self.last_shape}"
         if self.start is not None:
             name += f" from {self.start_label or self.start}"
+        elif self.name == "truncated" and self.from_break > 1:
+            name += f" from break {self.from_break} before the end"
         return name
 
     @property
@@ -90,16 +94,21 @@ class Strategy:
     def to_dict(self) -> dict:
         return {"strategy": self.name, "shape": self.shape, "last_shape": self.last_shape,
                 "start": self.start_label if self.start is not None else None,
+                "from_break": self.from_break if self.name == "truncated" else None,
                 "name": self.key}
 
 
-def standard_strategies(shapes=SHAPES, mixed=True) -> list[Strategy]:
+def standard_strategies(shapes=SHAPES, mixed=True, earlier_breaks: int = 0,
+                        main_shape: str | None = None) -> list[Strategy]:
     """Each strategy with each shape, plus separate fits whose last regime changes shape
-    between linear and quadratic (when both are in ``shapes``)."""
+    between linear and quadratic (when both are in ``shapes``), plus truncated fits of
+    ``main_shape`` from the 2nd .. (earlier_breaks + 1)-th last break."""
     out = []
     for name in STRATEGIES:
         for shape in shapes:
             out.append(Strategy(name, shape))
+    for k in range(2, earlier_breaks + 2):
+        out.append(Strategy("truncated", main_shape or shapes[0], from_break=k))
     if mixed:
         for a in shapes:
             for b in shapes:
@@ -256,11 +265,12 @@ class OriginFits:
             self._forecasts[key] = forecast_points(fit, positions, X_new)
         return self._forecasts[key]
 
-    def latest_start(self, shape: str) -> int:
-        """First period of the last regime long enough for its own ``shape`` trend."""
+    def latest_start(self, shape: str, k: int = 1) -> int:
+        """First period of the k-th last regime start whose history is long enough for its own
+        ``shape`` trend (all history when there are fewer usable breaks)."""
         need = self.spec_for(shape).minimum_points()
         kept = usable_breaks(self.breaks, self.origin, 1, need)
-        return kept[-1] if kept else 0
+        return kept[-k] if len(kept) >= k else 0
 
     # -- joint fits -----------------------------------------------------------------------
     def piecewise(self, layout: str, shape: str, last_shape: str | None = None) -> TrendFit:
@@ -312,7 +322,7 @@ class OriginFits:
         if name == "truncated":
             start = strategy.start
             if start is None:
-                start = self.latest_start(strategy.shape)
+                start = self.latest_start(strategy.shape, strategy.from_break)
             elif self.origin - start < self.spec_for(strategy.shape).minimum_points():
                 start = 0  # the fixed start is too recent for this origin: all history
             return self.trend_forecast(strategy.shape, start, positions)
@@ -394,7 +404,7 @@ def strategy_forecast(series, strategy: Strategy, breaks, horizon: int, spec: Tr
     start = 0  # joint fits and the window average use history from the first period
     if strategy.name == "truncated":
         start = (strategy.start if strategy.start is not None
-                 else fits.latest_start(strategy.shape))
+                 else fits.latest_start(strategy.shape, strategy.from_break))
     used = TrendSpec(strategy.last_shape or strategy.shape, spec.seasonality, spec.season_length)
     return Forecast(strategy.key + " (" + used.describe() + ")", used, starts, labels, points,
                     int(start))

@@ -121,7 +121,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     failed: list[int] = []
 
     grid = window_grid(plan.first, plan.origins[-1], w_min, window_count)
-    ranked = standard_strategies(shapes)
+    ranked = standard_strategies(shapes, earlier_breaks=max(int(max_breaks) - 1, 0),
+                                 main_shape=spec.shape)
     for p, label in _event_positions(series, events):
         ranked.append(Strategy("truncated", spec.shape, start=p, start_label=f"event {label}"))
     sweep = [Strategy("truncated", spec.shape, start=g, start_label=series.label(g))

@@ -31,10 +31,15 @@ class CandidateResult:
         return {"name": self.name, "strategy": self.strategy.name, "shape": self.strategy.shape,
                 "last_shape": self.strategy.last_shape,
                 "start": (self.strategy.start_label if self.strategy.start is not None
-                          else ("last break" if self.strategy.name == "truncated" else None)),
+                          else (_break_word(self.strategy.from_break)
+                                if self.strategy.name == "truncated" else None)),
                 "seasonality": self.seasonality, "rank": self.rank,
                 "metrics": dict(self.metrics), "per_horizon": [dict(m) for m in self.per_horizon],
                 "gain_over_global": self.gain, "vs_global": dict(self.vs_global)}
+
+
+def _break_word(k: int) -> str:
+    return "last break" if k == 1 else f"break {k} before the end"
 
 
 @dataclass(frozen=True)

@@ -128,8 +128,9 @@ def error_chart(dates, lines: dict, *, units: str, frequency: str, horizon_note:
     return _png(plt, fig)
 
 
-def cusum_chart(dates, path, lower, upper, *, frequency: str, title: str = "") -> bytes:
-    """The CUSUM path of standardised recursive residuals with its significance band."""
+def cusum_chart(dates, path, lower, upper, *, frequency: str, ylabel: str,
+                title: str = "") -> bytes:
+    """A CUSUM path with its significance band."""
     plt, fig, ax = _figure()
     d = _dates(dates)
     ax.fill_between(d, lower, upper, color=BAND, alpha=0.25, lw=0, label="5% significance band")
@@ -141,7 +142,7 @@ def cusum_chart(dates, path, lower, upper, *, frequency: str, title: str = "") -
         ax.scatter(d[outside], np.asarray(path)[outside], color=OKABE_ITO["vermillion"], s=10,
                    zorder=3, label="outside the band")
     ax.set_xlabel(f"period start ({frequency})")
-    ax.set_ylabel("cumulative sum of standardised\nrecursive residuals (no units)")
+    ax.set_ylabel(ylabel)
     ax.set_title(title, loc="left", fontsize=11)
     ax.legend(loc="upper left", fontsize=8, frameon=False)
     return _png(plt, fig)

@@ -88,15 +88,20 @@ def _cusum_chart(d: ReportData) -> Chart | None:
     lo = np.array([np.nan if v is None else v for v in c["lower"]], dtype=float)
     hi = np.array([np.nan if v is None else v for v in c["upper"]], dtype=float)
     pos = np.clip(pos, 0, s.n - 1)
+    ols = c.get("method") == "ols"
+    ylabel = ("cumulative sum of residuals,\nscaled by sigma sqrt(n) (no units)" if ols else
+              "cumulative sum of standardised\nrecursive residuals (no units)")
     png = charts.cusum_chart(s.starts[pos], path, lo, hi, frequency=s.frequency.name,
-                             title="CUSUM of the global trend")
+                             ylabel=ylabel, title="CUSUM of the global trend")
     crossing = c.get("first_crossing")
     when = (f" It first leaves the band at {s.label(int(crossing))}." if crossing is not None
             else " It stays inside the band.")
+    what = ("the global trend's residuals (OLS-based CUSUM, Ploberger and Kramer, 1992)" if ols
+            else "the global trend's standardised one-step-ahead errors (recursive residuals, "
+                 "Brown, Durbin and Evans, 1975)")
     return Chart("cusum", "CUSUM path with its 5% band",
-                 "Cumulative sum of the global trend's standardised one-step-ahead errors "
-                 "(recursive residuals). A stable trend keeps the path inside the band." + when,
-                 png)
+                 f"Cumulative sum of {what}. A stable trend keeps the path inside the band."
+                 + when, png)
 
 
 def _history_chart(d: ReportData) -> Chart | None:

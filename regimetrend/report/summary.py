@@ -32,7 +32,8 @@ def _when(data: ReportData) -> str:
         parts.append(f"{b.label}{span}")
     if len(parts) == 1:
         return f"The growth of {name} changed in {parts[0]}."
-    return (f"The growth of {name} changed {len(parts)} times: in " + ", ".join(parts[:-1])
+    times = {2: "twice", 3: "three times"}.get(len(parts), f"{len(parts)} times")
+    return (f"The growth of {name} changed {times}: in " + ", ".join(parts[:-1])
             + f" and in {parts[-1]}.")
 
 

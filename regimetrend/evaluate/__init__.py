@@ -29,44 +29,34 @@ __all__ = ["compare", "Evaluation", "break_detector"]
 
 def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3, trim=None,
                    criterion="bic", events=(), season_length=None, seasonal_by_regime=False):
-    """A callable series -> BreakSet running the break search with these settings."""
-    from ..breaks import detect_breaks
+    """A callable series -> BreakSet running the break search with these settings.
 
-    def detect(series):
-        known = tuple(e for e in events if _inside(series, e))
+    The analyst's events are only Chow-tested by the search (they do not move the breaks), so
+    they are passed on for the full series only (``series.n == full_n``); on a shortened
+    history the number of breaks considered is capped at what its length can hold."""
+    from ..breaks import detect_breaks
+    from ..breaks.problem import resolve_trim
+
+    def detect(series, with_events=True):
+        m = int(max_breaks)
+        if not with_events:
+            spec = TrendSpec(shape, seasonality, season_length or 1)
+            by_regime = seasonal_by_regime and spec.seasonality == "dummies"
+            h = resolve_trim(trim, series.n, spec, by_regime)
+            m = max(0, min(m, series.n // max(h, 1) - 1))
         return detect_breaks(series, shape=shape, seasonality=seasonality, kind=kind,
-                             max_breaks=max_breaks, trim=trim, criterion=criterion,
-                             events=known, season_length=season_length,
+                             max_breaks=m, trim=trim, criterion=criterion,
+                             events=tuple(events) if with_events else (),
+                             season_length=season_length,
                              seasonal_by_regime=seasonal_by_regime)
     return detect
 
 
-def _inside(series, event) -> bool:
-    """Whether an event date falls inside the (possibly shortened) series; an event after the
-    origin is not known there, so it is not passed to the search."""
-    try:
-        d = np.datetime64(str(event), "D")
-    except ValueError:
-        return True  # let the break search report the bad date
-    return bool(series.starts[0] < d <= series.starts[-1])
-
-
-def _event_positions(series, events) -> list[tuple[int, str]]:
-    out = []
-    for e in events:
-        if isinstance(e, (int, np.integer)):
-            p = int(e)
-        else:
-            try:
-                d = np.datetime64(str(e), "D")
-            except ValueError:
-                raise InputError(f"option --event: {e!r} is not a date") from None
-            p = int(np.searchsorted(series.starts, d))
-        if not 0 < p < series.n:
-            raise InputError(f"option --event: {e} is not inside the series "
-                             f"({series.label(0)} to {series.label(series.n - 1)})")
-        out.append((p, series.label(p)))
-    return out
+def _event_positions(full, events) -> list[tuple[int, str]]:
+    """(position, label) of each event, as the full-sample search placed it."""
+    if not events or full is None or full.tests is None:
+        return []
+    return [(int(c.position), c.label) for c in full.tests.chow]
 
 
 def compare(series, shape: str = "linear", seasonality: str = "auto",
@@ -83,7 +73,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     cycle (at least 4). ``first_origin`` counts periods known at the first origin (see
     ``rolling.plan_origins`` for the default), ``step`` the periods between origins.
     ``reuse_breaks`` reuses the full-sample breaks at every origin: the results are then
-    labelled optimistic. ``detector`` (series -> BreakSet) replaces the default break search;
+    labelled optimistic. ``detector(series, with_events)`` -> BreakSet replaces the default
+    break search (``with_events`` is False on the shortened histories of the origins);
     ``progress(done, total)`` is called after each origin."""
     spec = resolve_spec(series, shape=shape, seasonality=seasonality, season_length=season_length)
     s = spec.season_length
@@ -106,7 +97,7 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     w_min = max(min_points, 2 * s if spec.seasonality != "none" else 0, 8)
     plan = plan_origins(series.n, H, w_min, first_origin, step)
 
-    full = detector(series)
+    full = detector(series, True)
     full_positions = breakinfo.positions(full)
     if reuse_breaks:
         def breaks_at(o):
@@ -114,7 +105,7 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     else:
         def breaks_at(o):
             try:
-                return breakinfo.positions(detector(series.head(o)))
+                return breakinfo.positions(detector(series.head(o), False))
             except InputError:
                 failed.append(o)  # too little history for a search here: no breaks known
                 return ()
@@ -123,10 +114,13 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     grid = window_grid(plan.first, plan.origins[-1], w_min, window_count)
     ranked = standard_strategies(shapes, earlier_breaks=max(int(max_breaks) - 1, 0),
                                  main_shape=spec.shape)
-    for p, label in _event_positions(series, events):
+    for p, label in _event_positions(full, events):
         ranked.append(Strategy("truncated", spec.shape, start=p, start_label=f"event {label}"))
     sweep = [Strategy("truncated", spec.shape, start=g, start_label=series.label(g))
              for g in grid if 0 < g <= plan.first - w_min]
+    blist = breakinfo.break_list(full)
+    sweep += [Strategy("truncated", spec.shape, start=b["position"],
+                       start_label=f"break {series.label(b['position'])}") for b in blist]
     ranked_keys = {st.key for st in ranked}
     sweep = [st for st in sweep if st.key not in ranked_keys]
     strategies = ranked + sweep
@@ -163,10 +157,12 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     break_p = breakinfo.supf_pvalue(full)
     rec = recommend(cands, ref_result, break_p, reuse_breaks)
 
-    blist = breakinfo.break_list(full)
-    last = blist[-1] if blist else None
     trunc = next(c for c in cands if c.name == Strategy("truncated", spec.shape).key)
-    history = decide_history(series, ref_result, trunc, sweeps, last, break_p, reuse_breaks)
+    grid_results = [c for c in sweeps if not (c.strategy.start_label or "").startswith("break ")]
+    from_breaks = {c.strategy.start: c for c in sweeps
+                   if (c.strategy.start_label or "").startswith("break ")}
+    history = decide_history(series, ref_result, trunc, grid_results, from_breaks, blist,
+                             break_p, plan.origins, spec.minimum_points(), reuse_breaks)
     fitted = fit_history(series, spec).fitted()
     diag = diagnose(series, reference.key, fitted, default_window(series.n, H, s),
                     breakinfo.cusum_crossing(full), blist)

@@ -6,7 +6,8 @@ mean actual level there, and the share with the dominant sign (a trend that stil
 about half its errors on each side). The CUSUM crossing (the first period where the global
 trend's recursive-residual CUSUM left its 5% band, from the break search) dates when the
 misfit began; the break that explains it is the one whose 95% date interval holds the
-crossing, else the latest break before it, else the first break after it.
+crossing, else the latest break before it, else the first break after it. A later break that
+falls in (or just before) the last periods is named as well.
 """
 
 from __future__ import annotations
@@ -85,6 +86,12 @@ def diagnose(series, reference_name: str, fitted: np.ndarray, window: int, cross
             sentence += " explains"
     else:
         sentence += ", and no break was found to explain a misfit"
+    latest = breaks[-1] if breaks else None
+    if latest is not None and latest is not cause and latest["position"] >= n - 2 * k:
+        data["latest_break"] = {"date": series.iso(latest["position"]),
+                                "label": series.label(latest["position"])}
+        sentence += (f"; the latest break, at {series.label(latest['position'])}, falls in or "
+                     f"just before these periods")
     if share < 0.7 and abs(pct or 0.0) < 2.0:
         sentence += "; the recent errors look like noise rather than a failing trend"
     return Diagnosis(sentence + ".", data)

@@ -81,6 +81,14 @@ def _p(x):
     return "<0.001" if x < 0.001 else f"{x:.3f}"
 
 
+def _seasonal_words(model) -> str:
+    kind = model["seasonality"]
+    if kind == "none":
+        return "no seasonal terms"
+    word = "seasonal dummies" if kind == "dummies" else "seasonal adjustment"
+    return f"{word}, season length {model['season_length']}"
+
+
 def render(series, ev, outputs) -> str:
     plan = ev.plan
     lines = [f"{series.name}: {series.n} {series.frequency.name} periods, "
@@ -92,18 +100,21 @@ def render(series, ev, outputs) -> str:
               f"{series.label(plan['first_origin'] - 1)} to "
               f"{series.label(plan['origins'][-1] - 1)}, every {plan['step']} period(s); "
               f"horizons 1..{plan['horizon']}; breaks {plan['breaks']}",
-              f"reference: {ev.reference} ({ev.model['seasonality']} seasonality); "
-              f"errors in original units, point forecast = mean", ""]
+              f"reference: {ev.reference} trend ({_seasonal_words(ev.model)}); errors in "
+              f"original units, point forecast = mean", ""]
     rows = []
     for c in ev.candidates:
         m, vs = c.metrics, c.vs_global
-        rows.append([str(c.rank), c.name, fmt(m["rmse"]), fmt(m["mae"]),
+        rows.append([c.name, str(c.rank), fmt(m["rmse"]), fmt(m["mae"]),
                      fmt(m["mape"]) if m["mape"] is not None else "-", fmt(m["mase"]),
                      fmt(m["me"]), _pct(m["coverage80"]), _pct(m["coverage95"]),
                      _pct(c.gain, 1) if c.name != ev.reference else "reference",
                      _p(vs.get("p_value_better"))])
-    lines.append(table(["rank", "candidate", "RMSE", "MAE", "MAPE %", "MASE", "ME",
+    lines.append(table(["candidate", "rank", "RMSE", "MAE", "MAPE %", "MASE", "ME",
                         "80% cover", "95% cover", "gain vs global", "DM p (better)"], rows))
+    if ev.same_as:
+        lines.append("not ranked (same forecasts as another candidate): " + "; ".join(
+            f"{a} = {b}" for a, b in ev.same_as.items()))
     lines += ["", "gain vs global: 1 - RMSE / RMSE of the reference; DM p: one-sided "
                   "Diebold-Mariano (HLN) p-value that the candidate is more accurate", "",
               f"recommendation: {ev.recommended.reason}",

@@ -52,6 +52,22 @@ def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3
     return detect
 
 
+def duplicates(table, count: int) -> dict:
+    """Candidates (among the first ``count``) whose forecasts and intervals equal an earlier
+    one's at every origin, e.g. a truncated fit from an earlier break when only one break was
+    found: {index: index of the earlier candidate}. They are left out of the ranking."""
+    same = {}
+    arrays = (table.forecast, table.lower80, table.upper80, table.lower95, table.upper95)
+    for i in range(count):
+        for j in range(i):
+            if j in same:
+                continue
+            if all(np.allclose(a[i], a[j], rtol=1e-12, atol=0.0) for a in arrays):
+                same[i] = j
+                break
+    return same
+
+
 def _event_positions(full, events) -> list[tuple[int, str]]:
     """(position, label) of each event, as the full-sample search placed it."""
     if not events or full is None or full.tests is None:
@@ -144,20 +160,23 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
         results.append((st, overall, per_h, vs))
     ref_rmse = next(r[1]["rmse"] for r in results if r[0].key == reference.key)
     n_ranked = len(ranked)
-    order = sorted(range(n_ranked), key=lambda i: results[i][1]["rmse"])
-    cands = []
-    for rank, i in enumerate(order, start=1):
+
+    def result(i, rank=0, sweep_only=False):
         st, overall, per_h, vs = results[i]
         gain = 1.0 - overall["rmse"] / ref_rmse if ref_rmse > 0 else None
-        cands.append(CandidateResult(st, spec.seasonality, overall, tuple(per_h), vs, gain, rank))
-    sweeps = tuple(CandidateResult(st, spec.seasonality, o, tuple(ph), vs,
-                                   1.0 - o["rmse"] / ref_rmse if ref_rmse > 0 else None, 0, True)
-                   for st, o, ph, vs in results[n_ranked:])
+        return CandidateResult(st, spec.seasonality, overall, tuple(per_h), vs, gain, rank,
+                               sweep_only)
+
+    same_as = duplicates(table, n_ranked)
+    order = sorted((i for i in range(n_ranked) if i not in same_as),
+                   key=lambda i: results[i][1]["rmse"])
+    cands = [result(i, rank) for rank, i in enumerate(order, start=1)]
+    sweeps = tuple(result(i, 0, True) for i in range(n_ranked, len(strategies)))
     ref_result = next(c for c in cands if c.name == reference.key)
     break_p = breakinfo.supf_pvalue(full)
     rec = recommend(cands, ref_result, break_p, reuse_breaks)
 
-    trunc = next(c for c in cands if c.name == Strategy("truncated", spec.shape).key)
+    trunc = result(table.index(Strategy("truncated", spec.shape).key))
     grid_results = [c for c in sweeps if not (c.strategy.start_label or "").startswith("break ")]
     from_breaks = {c.strategy.start: c for c in sweeps
                    if (c.strategy.start_label or "").startswith("break ")}
@@ -190,4 +209,5 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                       optimistic=bool(reuse_breaks), reference=reference.key,
                       candidates=tuple(cands), sweep=sweeps, recommended=rec, history=history,
                       diagnosis=diag, breaks=breakinfo.to_dict(full), breaks_by_origin=used,
+                      same_as={table.names[i]: table.names[j] for i, j in same_as.items()},
                       errors=table, cautions=tuple(cautions))

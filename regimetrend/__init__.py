@@ -30,3 +30,36 @@ def demo_path():
 
 __all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec",
            "demo_path", "holdout_check", "load_series", "resolve_spec", "trend_forecast"]
+
+from .settings import Settings  # noqa: E402
+
+
+def analyze(series, settings=None, **choices):
+    """The whole analysis of one series (see ``regimetrend.analysis.analyze``)."""
+    from .analysis import analyze as _analyze
+
+    return _analyze(series, settings, **choices)
+
+
+def detect_breaks(series, **options):
+    """Find, test and date breaks in the trend (see ``regimetrend.breaks.detect_breaks``)."""
+    from .breaks import detect_breaks as _detect
+
+    return _detect(series, **options)
+
+
+def compare(series, **options):
+    """Rolling-origin comparison against the global trend (see ``regimetrend.evaluate``)."""
+    from .evaluate import compare as _compare
+
+    return _compare(series, **options)
+
+
+def growth_table(source, *args, **options):
+    """Growth by regime with intervals (see ``regimetrend.growth.growth_table``)."""
+    from .growth import growth_table as _growth
+
+    return _growth(source, *args, **options)
+
+
+__all__ += ["Settings", "analyze", "compare", "detect_breaks", "growth_table"]

@@ -1,0 +1,130 @@
+"""``analyze``: the whole flow for one series, as one pure function.
+
+intake (done by the caller) -> breaks -> regimes and evaluation -> growth -> the forecast from
+the recommended strategy. No printing, no global state, no files: the same series and settings
+give the same ``Analysis`` bit for bit, and it pickles, so a portfolio runner can map it over
+many series in other processes.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from .design import TrendSpec
+from .forecast import Forecast, fit_history, trend_forecast
+from .series import Series
+from .settings import Settings
+
+
+@dataclass(frozen=True, eq=False)
+class Analysis:
+    """Everything the analyst reads, from breaks to the forecast that goes into the plan."""
+
+    series: Series
+    settings: Settings
+    spec: TrendSpec
+    breaks: object  # breaks.BreakSet on the full sample
+    evaluation: object  # evaluate.Evaluation (rolling origin, recommendation, history, diagnosis)
+    growth: object  # growth.GrowthTable by regime
+    forecast: Forecast  # from the recommended strategy, refitted on all history
+    global_forecast: Forecast  # the single global trend, for comparison
+    global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
+    cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
+    cautions: tuple[str, ...]
+
+    @property
+    def recommended(self):
+        return self.evaluation.recommended
+
+    def to_dict(self) -> dict:
+        from .cli.options import json_safe
+
+        breaks = self.breaks.to_dict()
+        growth = self.growth.to_dict()
+        return json_safe({
+            "series": self.series.to_dict(),
+            "settings": self.settings.to_dict(),
+            "model": self.spec.to_dict(),
+            "breaks": breaks,
+            "evaluation": self.evaluation.to_dict(),
+            "growth": growth,
+            "forecast": self.forecast.to_dict(),
+            "global_forecast": self.global_forecast.to_dict(),
+            "cusum": self.cusum,
+            "cautions": list(self.cautions),
+        })
+
+
+def _settings(settings: Settings | None, choices: dict) -> Settings:
+    base = settings or Settings()
+    if "events" in choices and choices["events"] is not None:
+        choices = dict(choices, events=tuple(choices["events"]))
+    return replace(base, **choices) if choices else base
+
+
+def analyze(series: Series, settings: Settings | None = None, **choices) -> Analysis:
+    """Run the whole analysis of ``series``.
+
+    ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
+    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``.
+    """
+    from .breaks import cusum as cusum_paths
+    from .evaluate import break_detector, compare
+    from .growth import growth_table
+    from .regimes import strategy_forecast
+
+    settings = _settings(settings, choices)
+    spec = settings.spec_for(series)
+    horizon = settings.horizon_for(series)
+    detect = break_detector(spec.shape, spec.seasonality, settings.kind, settings.max_breaks,
+                            settings.trim, settings.criterion, settings.events,
+                            spec.season_length, settings.seasonal_by_regime)
+    breaks = detect(series, True)
+
+    def detector(history, with_events):
+        # The full-sample search is done once; shortened histories are searched afresh.
+        return breaks if history.n == series.n else detect(history, with_events)
+
+    evaluation = compare(series, shape=spec.shape, seasonality=spec.seasonality,
+                         season_length=spec.season_length, kind=settings.kind,
+                         max_breaks=settings.max_breaks, trim=settings.trim,
+                         criterion=settings.criterion, events=settings.events,
+                         seasonal_by_regime=settings.seasonal_by_regime, horizon=horizon,
+                         first_origin=settings.first_origin, step=settings.step,
+                         reuse_breaks=settings.reuse_breaks, detector=detector)
+    chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
+    forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
+    global_forecast = trend_forecast(series, spec, horizon)
+    global_fit = fit_history(series, spec)
+    y_model = global_fit.fit.X @ global_fit.fit.beta + global_fit.fit.residuals
+    cusum = cusum_paths.recursive_cusum(y_model, global_fit.fit.X).to_dict()
+    growth = growth_table(series, spec, breaks)
+    return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
+                    evaluation=evaluation, growth=growth, forecast=forecast,
+                    global_forecast=global_forecast, global_fitted=global_fit.fitted(),
+                    cusum=cusum, cautions=_cautions(series, breaks, evaluation))
+
+
+def _cautions(series: Series, breaks, evaluation) -> tuple[str, ...]:
+    """The cautions every reader of a forecast should see, then the evaluation's own."""
+    lines = ["the forecast extrapolates the regime that holds at the end of the data: it "
+             "assumes that regime continues over the horizon"]
+    if breaks.positions:
+        last = breaks.breaks[-1]
+        since = series.n - last.position
+        if since < 2 * max(series.frequency.season_length, 6):
+            lines.append(f"the latest break ({last.label}) is only {since} periods before the "
+                         "end of the series: its date and the new regime's growth rest on few "
+                         "points and are uncertain")
+        else:
+            lo, hi = (series.label(int(p)) for p in last.ci95)
+            lines.append(f"the latest break is dated {last.label}; the data are consistent "
+                         f"with any date from {lo} to {hi} (95% interval)")
+    for line in evaluation.cautions:
+        if line not in lines:
+            lines.append(line)
+    closing = "these figures support, and do not replace, business judgement"
+    lines = [x for x in lines if x != closing] + [closing]
+    return tuple(lines)

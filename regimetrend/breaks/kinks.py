@@ -283,8 +283,25 @@ def ssr_with(y, Z, terms, positions) -> float:
     return float(e @ e)
 
 
-def refine(y, Z, terms, positions, n, h) -> tuple[tuple[int, ...], float]:
+class _Scans:
+    """Memo of one-break scans within one search: the same (others, range) is scanned once."""
+
+    def __init__(self, y, Z, terms):
+        self.y, self.Z, self.terms = y, Z, terms
+        self.memo: dict = {}
+
+    def best(self, lo: int, hi: int, others) -> tuple[int | None, float]:
+        key = (lo, hi, tuple(sorted(others)))
+        if key not in self.memo:
+            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2])
+            self.memo[key] = (b, s)
+        return self.memo[key]
+
+
+def refine(y, Z, terms, positions, n, h, scans: _Scans | None = None
+           ) -> tuple[tuple[int, ...], float]:
     """Move one break at a time to its best position given the others, to a local optimum."""
+    scans = scans or _Scans(y, Z, terms)
     pos = sorted(int(p) for p in positions)
     current = ssr_with(y, Z, terms, pos)
     for _ in range(MAX_SWEEPS):
@@ -292,8 +309,7 @@ def refine(y, Z, terms, positions, n, h) -> tuple[tuple[int, ...], float]:
         for i in range(len(pos)):
             lo = (pos[i - 1] + h) if i > 0 else h
             hi = (pos[i + 1] - h) if i + 1 < len(pos) else n - h
-            others = pos[:i] + pos[i + 1:]
-            b, ssr, _, _ = best_single(y, Z, terms, lo, hi, others)
+            b, ssr = scans.best(lo, hi, pos[:i] + pos[i + 1:])
             if b is not None and ssr < current - 1e-12 * max(current, 1e-300) and b != pos[i]:
                 pos[i], current, moved = b, ssr, True
         if not moved:
@@ -309,11 +325,12 @@ def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None
     breaks (the exact ``both`` solution)."""
     y = np.asarray(y, dtype=float)
     n = len(y)
+    scans = _Scans(y, Z, terms)
     ssr = [ssr_with(y, Z, terms, ())]
     positions: list[tuple[int, ...]] = [()]
     exact = [True]
     if max_breaks >= 1:
-        b, s1, _, _ = best_single(y, Z, terms, h, n - h)
+        b, s1 = scans.best(h, n - h, ())
         if b is None:
             return ssr, positions, exact
         ssr.append(s1)
@@ -335,16 +352,18 @@ def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None
         segs = [0, *prev, n]
         best_add = None
         for i in range(len(segs) - 1):
-            b, s, _, _ = best_single(y, Z, terms, segs[i] + h, segs[i + 1] - h, prev)
+            b, s = scans.best(segs[i] + h, segs[i + 1] - h, prev)
             if b is not None and (best_add is None or s < best_add[1]):
                 best_add = (b, s)
         if best_add is not None:
-            tries.append(sorted(prev + [best_add[0]]))
+            tries.append(tuple(sorted(prev + [best_add[0]])))
         if starts_by_m is not None and m < len(starts_by_m) and len(starts_by_m[m]) == m:
-            tries.append(list(starts_by_m[m]))
+            start = tuple(sorted(starts_by_m[m]))
+            if start not in tries:
+                tries.append(start)
         if not tries:
             break
-        results = [refine(y, Z, terms, t, n, h) for t in tries]
+        results = [refine(y, Z, terms, t, n, h, scans) for t in tries]
         pos, s = min(results, key=lambda r: r[1])
         ssr.append(s)
         positions.append(pos)

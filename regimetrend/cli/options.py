@@ -142,6 +142,9 @@ def write_atomic(path, data) -> Path:
     try:
         with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})) as fh:
             fh.write(data)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes files private; outputs are ordinary files
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):

@@ -32,10 +32,16 @@ def near_end_caution(n: int, last_break: int | None, ci_high: int | None, freque
     return None
 
 
+# phrases of cautions from other stages that say what a standing caution already says
+_COVERED = ("do not replace", "extrapolates the regime", "assumes that regime continues")
+
+
 def collect(*groups) -> list[str]:
     """The standing cautions first, then the given ones, without repeats or empties."""
     seen, out = set(), []
-    for text in list(STANDING) + [c for g in groups for c in (g or ())]:
+    extra = [c for g in groups for c in (g or ())
+             if c and not any(p in str(c).lower() for p in _COVERED)]
+    for text in list(STANDING) + extra:
         if not text:
             continue
         text = str(text).strip()

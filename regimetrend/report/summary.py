@@ -68,8 +68,13 @@ def _late_failure(data: ReportData) -> str | None:
     pct_text = f" ({abs(pct):.1f}% of the level)" if pct is not None else ""
     share = diag.get("share_one_sign")
     share_text = f", {share:.0%} of them on the same side" if share is not None else ""
-    crossing = diag.get("cusum_crossing_label")
-    since = f"; its CUSUM left the 5% band in {crossing}" if crossing else ""
+    # the crossing of the CUSUM path drawn in the report, so text and chart agree
+    if data.cusum and "first_crossing" in data.cusum:
+        pos = data.cusum.get("first_crossing")
+        crossing = data.label(pos) if pos is not None else None
+    else:
+        crossing = diag.get("cusum_crossing_label")
+    since = f"; its CUSUM path left the 5% band in {crossing}" if crossing else ""
     return (f"A single trend over all history runs {way} the last {k} actual values by "
             f"{num(abs(me))} on average{pct_text}{share_text}{since}.")
 

@@ -1,0 +1,298 @@
+"""The report: files written, numbers that match the JSON, escaping and inert spreadsheet cells.
+
+The demo analysis uses the invented demo series (it is an input here, never a check value). The
+checks compare the report's outputs with each other (HTML and CSV against the JSON) and with the
+formats' own readers: Python's ``csv`` and ``html.parser``, and ``openpyxl`` for the workbook.
+"""
+
+import csv
+import io
+import json
+import math
+from html.parser import HTMLParser
+from pathlib import Path
+
+import numpy as np
+import openpyxl
+import pytest
+
+from regimetrend import load_series
+from regimetrend.cli import main
+from regimetrend.report import write_report
+from regimetrend.report.cautions import STANDING
+from regimetrend.report.html import page
+from regimetrend.report.safety import cell, esc, inert_text
+from regimetrend.report.tables import Column, Table, fmt
+from regimetrend.report.writer import table_csv, workbook_bytes
+from regimetrend.report.content import Content
+
+DEMO = Path(__file__).resolve().parents[1] / "demo" / "lumen_grid_energy.csv"
+HOSTILE = '<img src=x onerror=alert(1)><script>alert("owned")</script> & "Co"'
+CHARTS = ("series_regimes", "forecast_errors", "cusum", "history_sweep", "accuracy_by_horizon",
+          "growth_by_regime")
+TABLES = ("growth_by_regime", "candidate_ranking", "forecast")
+
+
+def demo_analysis(name=None):
+    from regimetrend.analysis import analyze
+
+    series = load_series(DEMO, name=name)
+    return analyze(series, shape="exponential", seasonality="dummies", horizon=12, step=3)
+
+
+@pytest.fixture(scope="module")
+def demo_report(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("demo_report")
+    written = write_report(demo_analysis(HOSTILE), folder, source_name="=cmd|' /C calc'!A0.csv")
+    return folder, written
+
+
+class _Cells(HTMLParser):
+    """Collects every table cell of the page by table id and column key, and all text."""
+
+    def __init__(self):
+        super().__init__()
+        self.tables, self.text, self._table, self._key, self._buf = {}, [], None, None, None
+        self.tags = []
+
+    def handle_starttag(self, tag, attrs):
+        a = dict(attrs)
+        self.tags.append((tag, a))
+        if tag == "section" and a.get("id", "").startswith("table-"):
+            self._table = a["id"][6:]
+            self.tables[self._table] = []
+        if tag == "tr" and self._table is not None:
+            self.tables[self._table].append({})
+        if tag == "span" and self._table is not None and "data-key" in a:
+            self._key, self._buf = a["data-key"], []
+
+    def handle_endtag(self, tag):
+        if tag == "span" and self._key is not None:
+            self.tables[self._table][-1][self._key] = "".join(self._buf)
+            self._key = None
+        if tag == "section" and self._table is not None:
+            self._table = None
+
+    def handle_data(self, data):
+        self.text.append(data)
+        if self._key is not None:
+            self._buf.append(data)
+
+
+def _parse(html_text):
+    p = _Cells()
+    p.feed(html_text)
+    for name in p.tables:
+        p.tables[name] = [r for r in p.tables[name] if r]
+    return p
+
+
+def _shown(text):
+    """A number as the page shows it (thousands commas, a sign, or an exponent)."""
+    return float(text.replace(",", "").replace("+", ""))
+
+
+def _close_to_shown(shown_text, value, kind):
+    if value is None:
+        return shown_text == fmt(None, kind)
+    if kind == "pvalue" and shown_text.startswith("<"):
+        return value < 1e-4
+    shown = _shown(shown_text)
+    # half a unit in the last digit shown
+    decimals = len(shown_text.split(".")[1].split("e")[0]) if "." in shown_text else 0
+    if "e" in shown_text:
+        return math.isclose(shown, value, rel_tol=5e-4)
+    return abs(shown - value) <= 0.5 * 10 ** (-decimals) + 1e-12
+
+
+# ------------------------------------------------------------------------------------------ units
+
+
+def test_formula_like_text_is_made_inert_and_numbers_stay_numbers():
+    # the four formula starts named in the issue, and tab / carriage return (common practice)
+    for text in ("=1+2", "+1", "-2", "@SUM(A1)", "\t=1", "\r=1"):
+        assert cell(text) == "'" + text
+    assert cell("Lumen Grid") == "Lumen Grid"
+    assert cell(-3.5) == -3.5 and cell(7) == 7 and cell(np.float64(-1.25)) == -1.25
+    assert cell(float("nan")) is None and cell(None) is None
+    assert inert_text("2021-04") == "2021-04"
+
+
+def test_csv_and_workbook_cells_are_inert_text_or_plain_numbers():
+    table = Table("t", "T", (Column("a", "A", "text"), Column("b", "B", "num")),
+                  ({"a": "=HYPERLINK(\"http://x\")", "b": -3.5}, {"a": "@cmd", "b": 2},
+                   {"a": "-1+1", "b": None}))
+    rows = list(csv.reader(io.StringIO(table_csv(table))))
+    assert rows[1] == ["'=HYPERLINK(\"http://x\")", "-3.5"]
+    assert rows[2] == ["'@cmd", "2"] and rows[3] == ["'-1+1", ""]
+    content = Content("=title", "sub", [], ["+sentence"], [], [table], ["-caution"], [])
+    wb = openpyxl.load_workbook(io.BytesIO(workbook_bytes(content)))
+    ws = wb["t"]
+    assert ws["A2"].value == "'=HYPERLINK(\"http://x\")" and ws["A2"].data_type == "s"
+    assert ws["B2"].value == -3.5 and ws["B2"].data_type == "n"
+    assert all(c.data_type != "f" for sheet in wb for row in sheet.iter_rows() for c in row)
+    assert wb["summary"]["A1"].value == "'=title"
+
+
+def test_page_escapes_every_user_string():
+    table = Table("x", HOSTILE, (Column("a", HOSTILE, "text"),), ({"a": HOSTILE},), HOSTILE)
+    text = page(title=HOSTILE, subtitle=HOSTILE, facts=[], summary=[HOSTILE], charts=[],
+                tables=[table], cautions=[HOSTILE], missing=[HOSTILE], footer=HOSTILE)
+    assert "<script" not in text and "<img src=x" not in text
+    assert esc(HOSTILE) in text
+    parsed = _parse(text)
+    assert not any(tag == "script" for tag, _ in parsed.tags)
+    assert HOSTILE in "".join(parsed.text)  # shown as text
+
+
+def test_fmt_rounds_for_reading():
+    assert fmt(1234.5678, "num") == "1,235"
+    assert fmt(0.012345, "num") == "0.01235"
+    assert fmt(14.1946, "pct") == "14.19"
+    assert fmt(3.2e-7, "pvalue") == "<0.0001"
+    assert fmt(None, "num") == "\u2013"
+
+
+# ------------------------------------------------------------------------------ the demo report
+
+
+def test_every_output_is_written(demo_report):
+    folder, written = demo_report
+    for name in CHARTS:
+        png = folder / "charts" / f"{name}.png"
+        assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    for name in TABLES:
+        assert (folder / "tables" / f"{name}.csv").stat().st_size > 0
+    for name in ("report.html", "report.json", "report.xlsx"):
+        assert (folder / name).exists()
+    assert set(Path(p) for p in written.values()) >= {folder / "report.html"}
+    assert not list(folder.rglob(".*"))  # no temporary files left behind
+
+
+def test_html_is_self_contained(demo_report):
+    folder, _ = demo_report
+    text = (folder / "report.html").read_text(encoding="utf-8")
+    parsed = _parse(text)
+    imgs = [a for tag, a in parsed.tags if tag == "img"]
+    assert len(imgs) == len(CHARTS)
+    assert all(a["src"].startswith("data:image/png;base64,") for a in imgs)
+    for tag, a in parsed.tags:  # nothing that would fetch: no scripts, links or remote sources
+        assert tag not in ("script", "link", "iframe", "object", "embed")
+        for attr in ("src", "href"):
+            assert not a.get(attr, "data:").lower().startswith(("http", "//", "file"))
+    assert "Content-Security-Policy" in text and "default-src 'none'" in text
+    assert (folder / "report.html").stat().st_size < 5_000_000
+
+
+def test_summary_has_five_or_six_sentences_with_the_required_content(demo_report):
+    folder, _ = demo_report
+    result = json.loads((folder / "report.json").read_text())
+    summary = result["report"]["summary"]
+    assert 5 <= len(summary) <= 6
+    text = " ".join(summary)
+    assert "95% interval" in text and "% a year" in text and "forecast" in text.lower()
+    assert "history" in text.lower()
+
+
+def test_growth_numbers_in_html_and_csv_match_the_json(demo_report):
+    folder, _ = demo_report
+    result = json.loads((folder / "report.json").read_text())
+    segments = result["growth"]["segments"]
+    html_rows = _parse((folder / "report.html").read_text())
+    rows = html_rows.tables["growth_by_regime"]
+    csv_rows = list(csv.DictReader(open(folder / "tables" / "growth_by_regime.csv")))
+    assert len(rows) == len(segments) == len(csv_rows)
+    for seg, row, crow in zip(segments, rows, csv_rows):
+        g = seg["growth"]
+        for key in ("per_period_pct", "annualised_pct"):
+            assert _close_to_shown(row[key], g[key], "pct")
+            assert _close_to_shown(row[f"{key}_low"], g[f"{key}_ci95"][0], "pct")
+            assert _close_to_shown(row[f"{key}_high"], g[f"{key}_ci95"][1], "pct")
+        assert float(crow["Annualised growth, %"]) == g["annualised_pct"]  # full precision
+        assert row["from"] == seg["start_label"] and row["to"] == seg["end_label"]
+
+
+def test_forecast_and_ranking_tables_match_the_json(demo_report):
+    folder, _ = demo_report
+    result = json.loads((folder / "report.json").read_text())
+    parsed = _parse((folder / "report.html").read_text())
+    fc = result["forecast"]["rows"]
+    shown = parsed.tables["forecast"]
+    assert len(shown) == len(fc) == 12
+    for a, b in zip(fc, shown):
+        for key in ("mean", "lower80", "upper80", "lower95", "upper95"):
+            assert _close_to_shown(b[key], a[key], "num")
+    with open(folder / "tables" / "forecast.csv") as fh:
+        for a, b in zip(fc, csv.DictReader(fh)):
+            assert float(b["Forecast (mean)"]) == a["mean"]
+            assert float(b["95% high"]) == a["upper95"]
+    cands = result["evaluation"]["candidates"]
+    ranking = parsed.tables["candidate_ranking"]
+    assert [r["candidate"] for r in ranking] == [c["name"] for c in cands]
+    for c, r in zip(cands, ranking):
+        assert _close_to_shown(r["rmse"], c["metrics"]["rmse"], "num")
+    assert sum(r["recommended"] == "yes" for r in ranking) == 1
+
+
+def test_hostile_names_show_as_text_and_stay_inert_in_spreadsheets(demo_report):
+    folder, _ = demo_report
+    text = (folder / "report.html").read_text()
+    assert "<script" not in text and "<img src=x" not in text
+    parsed = _parse(text)
+    assert HOSTILE in "".join(parsed.text)
+    wb = openpyxl.load_workbook(folder / "report.xlsx")
+    assert all(c.data_type != "f" for sheet in wb for row in sheet.iter_rows() for c in row)
+    subtitle = wb["summary"]["A2"].value
+    assert subtitle.startswith("'=cmd")  # the file name starts with '=' and stays text
+
+
+def test_cautions_include_the_standing_three(demo_report):
+    folder, _ = demo_report
+    result = json.loads((folder / "report.json").read_text())
+    for caution in STANDING:
+        assert caution in result["report"]["cautions"]
+    text = "".join(_parse((folder / "report.html").read_text()).text)
+    assert "Extrapolation assumes the last regime holds" in text
+    assert "do not replace, business judgement" in text
+
+
+def test_report_command_writes_the_folder(tmp_path, capsys):
+    out = tmp_path / "rep"
+    code = main(["report", str(DEMO), "--shape", "exponential", "--horizon", "6", "--step", "6",
+                 "--output", str(out)])
+    assert code == 0
+    assert (out / "report.html").exists() and (out / "report.xlsx").exists()
+    assert "report.html" in capsys.readouterr().out
+
+
+def test_report_command_refuses_a_file_as_output_folder(tmp_path, capsys):
+    target = tmp_path / "taken"
+    target.write_text("x")
+    assert main(["report", str(DEMO), "--output", str(target)]) == 2
+    assert "--output" in capsys.readouterr().err
+
+
+def test_a_report_without_evaluation_or_breaks_says_what_is_missing(tmp_path):
+    # an analysis of a series with no break found and no rolling-origin evaluation
+    from types import SimpleNamespace
+
+    from regimetrend import resolve_spec, trend_forecast
+    from regimetrend.growth import regime_growth
+
+    series = load_series(DEMO, name="plain")
+    spec = resolve_spec(series, shape="exponential")
+    forecast = trend_forecast(series, spec, 6)
+    growth = regime_growth(series, spec)
+    analysis = SimpleNamespace(series=series, spec=spec, breaks=None, evaluation=None,
+                               growth=growth, forecast=forecast, global_forecast=forecast,
+                               cautions=("the series is short",),
+                               to_dict=lambda: {"growth": growth.to_dict(),
+                                                "forecast": forecast.to_dict()})
+    write_report(analysis, tmp_path)
+    result = json.loads((tmp_path / "report.json").read_text())
+    assert set(result["report"]["charts"]) == {"series_regimes", "cusum", "growth_by_regime"}
+    assert len(result["report"]["not_shown"]) == 3
+    assert "The series is short." in result["report"]["cautions"]
+    assert result["report"]["summary"][0].startswith("No change of growth regime was found")
+    text = (tmp_path / "report.html").read_text()
+    assert "is not shown" in text

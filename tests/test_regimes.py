@@ -184,3 +184,21 @@ def test_shared_fits_equal_the_single_trend_fit(drivers, shape, seasonality):
         got = fits.trend_forecast(shape, start, np.arange(140, 152))
         for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95"):
             np.testing.assert_allclose(getattr(got, f), getattr(ref, f), rtol=1e-11)
+
+
+@pytest.mark.parametrize("shape", ["linear", "exponential", "quadratic"])
+def test_batched_window_fits_equal_one_by_one_fits(drivers, shape):
+    # Reference: the one-by-one single-trend fits (themselves checked against statsmodels).
+    y = drivers.values[:150]
+    starts = (0, 30, 60, 90, 120)
+    batched = OriginFits(y, drivers.first_season(), "dummies", 12, window_starts=starts)
+    avg = batched.forecast(Strategy("window-average", shape), 12)
+    single = OriginFits(y, drivers.first_season(), "dummies", 12)
+    ahead = np.arange(150, 162)
+    parts = [single.trend(shape, s).forecast(ahead) for s in starts]
+    for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95"):
+        np.testing.assert_allclose(getattr(avg, f), np.mean([getattr(p, f) for p in parts], 0),
+                                   rtol=1e-10)
+    for s, p in zip(starts, parts):
+        np.testing.assert_allclose(batched.trend_forecast(shape, s, ahead).upper95, p.upper95,
+                                   rtol=1e-10)

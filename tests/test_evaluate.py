@@ -260,3 +260,16 @@ def test_one_shared_table_gives_each_origins_own_search(shape, seasonality, by_r
                             max_breaks=2, trim=trim, season_length=12,
                             seasonal_by_regime=by_regime)
         assert got[o] == tuple(ref.positions), o
+
+
+def test_per_horizon_scores_equal_the_metrics_module_column_by_column(nile_eval):
+    # Reference: regimetrend.metrics.accuracy applied to each horizon's column separately.
+    from regimetrend.evaluate.scores import score
+
+    t = nile_eval.errors
+    c = t.index(nile_eval.candidates[0].name)
+    for j, m in enumerate(nile_eval.candidates[0].per_horizon):
+        ref = score(t.actual[:, j], t.forecast[c][:, j], t.lower80[c][:, j], t.upper80[c][:, j],
+                    t.lower95[c][:, j], t.upper95[c][:, j], t.scale)
+        for key, value in ref.items():
+            assert m[key] == pytest.approx(value, rel=1e-12, abs=1e-12), key

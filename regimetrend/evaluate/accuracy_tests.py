@@ -66,14 +66,13 @@ def autocovariances(d: np.ndarray, lags: int) -> np.ndarray:
     return np.array([float(c[k:] @ c[:T - k]) / T for k in range(lags + 1)])
 
 
-def diebold_mariano(loss_diff, lags: int) -> DMResult:
-    """HLN-corrected Diebold-Mariano test on a loss differential with ``lags`` autocovariances."""
-    d = np.asarray(loss_diff, dtype=float)
+def _statistic(d: np.ndarray, lags: int):
+    """(HLN statistic or None, raw DM or None, mean difference, lags used, Bartlett used)."""
     T = d.size
     lags = max(0, min(int(lags), T - 1)) if T else 0
     dbar = float(d.mean()) if T else float("nan")
     if T < 2:
-        return DMResult(None, None, None, max(T - 1, 0), lags, None, dbar, False)
+        return None, None, dbar, lags, False
     g = autocovariances(d, lags)
     v = g[0] + 2.0 * g[1:].sum()
     bartlett = False
@@ -82,16 +81,35 @@ def diebold_mariano(loss_diff, lags: int) -> DMResult:
         v = g[0] + 2.0 * float(w @ g[1:])
         bartlett = True
     if not v > 0:  # identical losses: nothing to test
-        return DMResult(None, None, None, T - 1, lags, None, dbar, bartlett)
+        return None, None, dbar, lags, bartlett
     raw = dbar / math.sqrt(v / T)
     h = lags + 1
     factor = (T + 1 - 2 * h + h * (h - 1) / T) / T
     stat = raw * math.sqrt(factor) if factor > 0 else float("nan")
-    if not math.isfinite(stat):
-        return DMResult(None, None, None, T - 1, lags, raw, dbar, bartlett)
-    p_two = float(2.0 * stats.t.sf(abs(stat), T - 1))
-    p_better = float(stats.t.sf(stat, T - 1))
-    return DMResult(stat, p_two, p_better, T - 1, lags, raw, dbar, bartlett)
+    return (stat if math.isfinite(stat) else None), raw, dbar, lags, bartlett
+
+
+def _tests(diffs, lags_list) -> list[DMResult]:
+    """DM tests of several loss differentials, p-values from one vectorised t call."""
+    parts = [_statistic(np.asarray(d, dtype=float), L) for d, L in zip(diffs, lags_list)]
+    dfs = np.array([max(np.asarray(d).size - 1, 1) for d in diffs], dtype=float)
+    stats_ = np.array([p[0] if p[0] is not None else np.nan for p in parts])
+    p_better = stats.t.sf(stats_, dfs)
+    p_two = 2.0 * stats.t.sf(np.abs(stats_), dfs)
+    out = []
+    for i, (stat, raw, dbar, lags, bart) in enumerate(parts):
+        T = np.asarray(diffs[i]).size
+        if stat is None:
+            out.append(DMResult(None, None, None, max(T - 1, 0), lags, raw, dbar, bart))
+        else:
+            out.append(DMResult(stat, float(p_two[i]), float(p_better[i]), T - 1, lags, raw,
+                                dbar, bart))
+    return out
+
+
+def diebold_mariano(loss_diff, lags: int) -> DMResult:
+    """HLN-corrected Diebold-Mariano test on a loss differential with ``lags`` autocovariances."""
+    return _tests([np.asarray(loss_diff, dtype=float)], [lags])[0]
 
 
 def overlap_lags(horizon: int, step: int) -> int:
@@ -107,6 +125,7 @@ def compare_errors(e_ref: np.ndarray, e_cand: np.ndarray, step: int) -> tuple[DM
     e_cand = np.asarray(e_cand, dtype=float)
     d = e_ref ** 2 - e_cand ** 2
     H = d.shape[1]
-    pooled = diebold_mariano(d.mean(axis=1), overlap_lags(H, step))
-    per_h = [diebold_mariano(d[:, j], overlap_lags(j + 1, step)) for j in range(H)]
-    return pooled, per_h
+    diffs = [d.mean(axis=1)] + [d[:, j] for j in range(H)]
+    lags = [overlap_lags(H, step)] + [overlap_lags(j + 1, step) for j in range(H)]
+    res = _tests(diffs, lags)
+    return res[0], res[1:]

@@ -75,6 +75,34 @@ def _event_positions(full, events) -> list[tuple[int, str]]:
     return [(int(c.position), c.label) for c in full.tests.chow]
 
 
+def _origin_breaks(series, plan, full, detector, own_search, reuse_breaks, spec, kind,
+                   max_breaks, trim, criterion, seasonal_by_regime):
+    """``breaks_at(o)`` for every origin, and the list of origins whose search failed."""
+    failed: list[int] = []
+    if reuse_breaks:
+        full_positions = breakinfo.positions(full)
+        return (lambda o: tuple(b for b in full_positions if b < o)), failed
+    if own_search and redetect.shared_table_applies(kind, spec, seasonal_by_regime, criterion,
+                                                    series.n):
+        table = redetect.origin_breaks(series, plan.origins, spec, max_breaks, trim, criterion,
+                                       seasonal_by_regime)
+
+        def from_table(o):
+            if table[o] is None:
+                failed.append(o)  # too little history for a search here: no breaks known
+                return ()
+            return table[o]
+        return from_table, failed
+
+    def search(o):
+        try:
+            return breakinfo.positions(detector(series.head(o), False))
+        except InputError:
+            failed.append(o)  # too little history for a search here: no breaks known
+            return ()
+    return search, failed
+
+
 def compare(series, shape: str = "linear", seasonality: str = "auto",
             season_length: int | None = None, kind: str = "auto", max_breaks: int = 3,
             trim=None, criterion: str = "bic", events=(), seasonal_by_regime: bool = False,
@@ -105,7 +133,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     if spec.shape == "exponential" and np.any(series.values <= 0):
         raise InputError("option --shape: the exponential shape needs positive values")
     H = int(horizon) if horizon is not None else max(s, 4)
-    if detector is None:
+    own_search = detector is None
+    if own_search:
         detector = break_detector(spec.shape, spec.seasonality, kind, max_breaks, trim,
                                   criterion, tuple(events), s, seasonal_by_regime)
     specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
@@ -114,27 +143,9 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     plan = plan_origins(series.n, H, w_min, first_origin, step)
 
     full = detector(series, True)
-    full_positions = breakinfo.positions(full)
-    if reuse_breaks:
-        def breaks_at(o):
-            return tuple(b for b in full_positions if b < o)
-    elif redetect.shared_table_applies(kind, spec, seasonal_by_regime, criterion, series.n):
-        table_breaks = redetect.origin_breaks(series, plan.origins, spec, max_breaks, trim,
-                                              criterion, seasonal_by_regime)
-
-        def breaks_at(o):
-            if table_breaks[o] is None:
-                failed.append(o)
-                return ()
-            return table_breaks[o]
-    else:
-        def breaks_at(o):
-            try:
-                return breakinfo.positions(detector(series.head(o), False))
-            except InputError:
-                failed.append(o)  # too little history for a search here: no breaks known
-                return ()
-    failed: list[int] = []
+    breaks_at, failed = _origin_breaks(series, plan, full, detector, own_search, reuse_breaks,
+                                       spec, kind, max_breaks, trim, criterion,
+                                       seasonal_by_regime)
 
     grid = window_grid(plan.first, plan.origins[-1], w_min, window_count)
     ranked = standard_strategies(shapes, earlier_breaks=max(int(max_breaks) - 1, 0),

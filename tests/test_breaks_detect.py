@@ -213,3 +213,94 @@ def test_quadratic_shape_reports_curvature_per_segment():
     assert any(abs(p - 60) <= 2 for p in result.positions)
     assert result.segments[0].curvature == pytest.approx(0.01, abs=0.003)
     assert result.breaks[0].jump == pytest.approx(15.0, abs=2.0)
+
+
+def _quarterly(values, start="2005-01"):
+    starts = pd.date_range(start, periods=len(values), freq="QS").values.astype("datetime64[D]")
+    return Series("planted", starts, np.asarray(values, dtype=float), Frequency("quarter"))
+
+
+def test_partial_structure_iteration_reaches_the_joint_optimum_for_one_break():
+    # Brute force: statsmodels OLS of the joint model (regime trends + one seasonal pattern)
+    # at every admissible date; the iterated search must land on its minimum.
+    import statsmodels.api as sm
+
+    from regimetrend.breaks.problem import build_problem
+    from regimetrend.design import TrendSpec
+
+    rng = np.random.default_rng(17)
+    n = 72
+    t = np.arange(n, dtype=float)
+    y = 20 + 0.2 * t + np.where(t >= 45, 3 - 0.3 * (t - 45), 0) + 2 * ((t % 4) == 1)
+    series = _quarterly(y + rng.normal(0, 0.7, n))
+    result = detect_breaks(series, seasonality="dummies", kind="both", max_breaks=1)
+    problem = build_problem(series, TrendSpec("linear", "dummies", 4), False, None)
+    h = problem.h
+    ssr = {b: sm.OLS(problem.y, problem.design("both", [b])).fit().ssr
+           for b in range(h, n - h + 1)}
+    assert result.positions == (min(ssr, key=ssr.get),)
+    assert result.ssr_path[1] == pytest.approx(min(ssr.values()), rel=1e-9)
+
+
+def test_segment_slopes_equal_separate_fits_for_kind_both():
+    # Reference library: statsmodels OLS on each regime separately (no shared terms).
+    import statsmodels.api as sm
+
+    rng = np.random.default_rng(23)
+    t = np.arange(80, dtype=float)
+    y = np.where(t < 50, 5 + 0.4 * t, 30 - 0.2 * (t - 50)) + rng.normal(0, 0.5, 80)
+    result = detect_breaks(_annual(y), kind="both", max_breaks=1)
+    assert result.positions == (50,)
+    for seg in result.segments:
+        tt = np.arange(seg.start, seg.end + 1, dtype=float) - seg.start
+        ref = sm.OLS(y[seg.start:seg.end + 1], sm.add_constant(tt)).fit().params
+        assert seg.level == pytest.approx(ref[0], rel=1e-9)
+        assert seg.slope == pytest.approx(ref[1], rel=1e-9)
+
+
+def test_supf_statistic_equals_brute_force_f_on_nile():
+    # Reference library: statsmodels OLS SSR with a step at every admissible year.
+    import statsmodels.api as sm
+
+    nile = rseries("Nile", "year")
+    result = detect_breaks(nile, kind="level")
+    y, n, h = nile.values, nile.n, result.trim_periods
+    t = np.arange(n, dtype=float)
+    base = sm.add_constant(t)
+    ssr0 = sm.OLS(y, base).fit().ssr
+    stats = []
+    for b in range(h, n - h + 1):
+        fit = sm.OLS(y, np.column_stack([base, (t >= b).astype(float)])).fit()
+        stats.append((ssr0 - fit.ssr) / (fit.ssr / (n - 3)))
+    assert result.tests.supf.statistic == pytest.approx(max(stats), rel=1e-9)
+
+
+def test_one_cycle_regimes_fall_back_to_the_profile_interval():
+    # Two regimes of exactly one cycle around a break: a step is collinear with the trend and
+    # the seasons there, so Bai's local fit is singular and the profile interval is used.
+    rng = np.random.default_rng(0)
+    t = np.arange(130, dtype=float)
+    y = (100 + 0.5 * t + np.where(t >= 91, 0.8 * (t - 91) + 5, 0)
+         + 5 * np.sin(2 * np.pi * t / 12) + rng.normal(0, 2, 130))
+    result = detect_breaks(_monthly(y), shape="quadratic", seasonality="dummies", kind="level")
+    assert result.n_breaks >= 1
+    assert all(b.ci95[0] <= b.position <= b.ci95[1] for b in result.breaks)
+    assert {b.interval_method for b in result.breaks} <= {"Bai (1997)",
+                                                         "likelihood-ratio profile (Hansen, 2000)"}
+
+
+def test_pelt_method_finds_the_planted_break_and_says_so():
+    rng = np.random.default_rng(31)
+    y = _planted("both", 400, 260, 1.0, rng)
+    result = detect_breaks(_annual(y, start=1500), method="pelt")
+    assert result.method == "pelt" and result.kind == "both"
+    assert any(abs(p - 260) <= 2 for p in result.positions)
+    assert any("PELT" in note for note in result.notes)
+
+
+def test_result_pickles_and_repeats_exactly():
+    import pickle
+
+    nile = rseries("Nile", "year")
+    a, b = detect_breaks(nile), detect_breaks(nile)
+    assert pickle.loads(pickle.dumps(a)).to_dict() == a.to_dict() == b.to_dict()

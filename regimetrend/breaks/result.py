@@ -173,7 +173,7 @@ class Drift:
                 "method": self.method}
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class BreakSet:
     """The breaks found in a series' trend, with the evidence for them."""
 

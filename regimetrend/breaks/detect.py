@@ -8,8 +8,9 @@ Chow tests at the analyst's events, CUSUM drift of the global trend -> ``BreakSe
 Kind ``auto`` searches ``both``, ``level`` and ``slope`` and lets the criterion choose among
 all (kind, m) pairs, each break counted as its changing coefficients plus its date. With the
 ``sequential`` criterion the kind is chosen by BIC and the count by the sequential tests.
-Series of ``exact.PELT_LENGTH`` points or more (or ``method="pelt"``) are searched by PELT with
-kind ``both`` only.
+Series of ``exact.PELT_LENGTH`` points or more (or ``method="pelt"``) are searched by PELT for
+kind ``both`` (its break count is then PELT's, not chosen from a path); the tied kinds keep
+their O(n) one-break scans, exact for one break and refined beyond.
 """
 
 from __future__ import annotations
@@ -97,10 +98,7 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
                          f"needs at least {max(2 * h, spec.minimum_points())}")
     event_positions = [_event_position(series, e, h) for e in events]
     long_series = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
-    kinds = ("both",) if long_series else (KINDS if kind == "auto" else (kind,))
-    if long_series and kind not in ("auto", "both"):
-        raise InputError(f"option --kind: {kind} needs the exact search; series of "
-                         f"{exact.PELT_LENGTH} periods or more use kind both (PELT)")
+    kinds = KINDS if kind == "auto" else (kind,)
 
     paths: dict[str, KindPath] = {}
     if "both" in kinds or kind == "auto":

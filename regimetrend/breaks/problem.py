@@ -69,9 +69,6 @@ class BreakProblem:
         """Coefficients that change at a break of this kind."""
         return len(self.terms(kind))
 
-    def trend_changing(self, kind: str) -> int:
-        return {"level": 1, "slope": self.degree, "both": self.degree + 1}[kind]
-
     def model_key(self, kind: str) -> str:
         return f"{'quadratic' if self.degree == 2 else 'linear'}-{kind}"
 

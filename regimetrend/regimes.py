@@ -341,18 +341,30 @@ class OriginFits:
         todo = [s for s in starts if (shape, s, len(positions)) not in self._forecasts]
         if spec.seasonality == "adjust" or len(todo) < 2:
             return
-        scales = [TimeScale.for_positions(np.arange(s, self.origin)) for s in todo]
+        first = np.asarray(todo, dtype=float)
+        last = float(self.origin - 1)
+        center = (first + last) / 2.0  # TimeScale.for_positions of each window
+        spread = np.maximum((last - first) / 2.0, 1.0)
         p0, p1 = int(positions[0]), int(positions[-1]) + 1
-        X = np.stack([self._design(spec, sc, 0, self.origin) for sc in scales])
-        for w, s in enumerate(todo):
-            X[w, :s] = 0.0
-        X_new = np.stack([self._design(spec, sc, p0, p1) for sc in scales])
+        X = self._stacked_design(spec, center, spread, 0, self.origin)
+        X[np.arange(self.origin)[None, :] < first[:, None]] = 0.0
+        X_new = self._stacked_design(spec, center, spread, p0, p1)
         got = batched_forecasts(X, self._model_y(spec), np.asarray(todo), X_new,
                                 spec.log_scale, np.asarray(positions))
         if got is None:
             return  # a window's design is singular: the one-by-one path reports it
         for s, fc in zip(todo, got):
             self._forecasts[(shape, s, len(positions))] = fc
+
+    def _stacked_design(self, spec, center, spread, start: int, stop: int) -> np.ndarray:
+        """(windows, stop - start, k) designs: [1, u, (u^2)] on each window's own time scale,
+        then the shared seasonal columns."""
+        u = (np.arange(start, stop, dtype=float)[None, :] - center[:, None]) / spread[:, None]
+        cols = [np.ones_like(u), u] + ([u * u] if spec.shape == "quadratic" else [])
+        if spec.seasonality == "dummies":
+            season = self._seasonal(start, stop)
+            cols += [np.broadcast_to(season[:, j], u.shape) for j in range(season.shape[1])]
+        return np.stack(cols, axis=-1)
 
     def window_starts_for(self, shape: str) -> tuple[int, ...]:
         need = self.spec_for(shape).minimum_points()

@@ -35,7 +35,7 @@ import time  # noqa: E402
 import numpy as np  # noqa: E402
 
 from regimetrend.evaluate import compare  # noqa: E402
-from regimetrend.regimes import TERMS, standard_strategies, usable_breaks, window_grid  # noqa: E402
+from regimetrend.regimes import TERMS, usable_breaks  # noqa: E402
 from regimetrend.design import TrendSpec  # noqa: E402
 from regimetrend.series import Frequency, Series  # noqa: E402
 

@@ -70,14 +70,21 @@ def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind
                        season_length, seasonal_by_regime, method)
 
 
-def _one_blas_thread():
-    try:
-        from threadpoolctl import threadpool_limits
-    except ImportError:  # optional: without it BLAS keeps its own thread count
-        import contextlib
+_BLAS = []  # the threadpoolctl controller, found once per process (finding it costs ~1 ms)
 
+
+def _one_blas_thread():
+    import contextlib
+
+    if not _BLAS:
+        try:
+            from threadpoolctl import ThreadpoolController
+            _BLAS.append(ThreadpoolController())
+        except ImportError:  # optional: without it BLAS keeps its own thread count
+            _BLAS.append(None)
+    if _BLAS[0] is None:
         return contextlib.nullcontext()
-    return threadpool_limits(1, user_api="blas")
+    return _BLAS[0].limit(limits=1, user_api="blas")
 
 
 def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, events,

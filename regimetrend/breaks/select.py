@@ -12,13 +12,16 @@ the result so an analyst can see how close the runner-up was.
 p counts every estimated quantity: the coefficients of the model without breaks, and for each
 break its changing coefficients plus the break date itself (a date is estimated too).
 
-Default: ``bic``. Yao (1988) shows it estimates the number of mean shifts consistently, and in
-Bai and Perron's (2003) simulations it does well when the breaks are real and the errors are not
-strongly autocorrelated, which is the situation of a trend whose seasonal pattern is held common
-(the partial structure removes most of the serial dependence a seasonal series would otherwise
-show). LWZ penalises harder (fewer false breaks, more missed small ones); the sequential rule
-controls the size of each step but depends on the asymptotic table at short trimmings, where it
-is least reliable. The planted-break study in ``benchmarks/planted_breaks.py`` measures all three.
+Default: ``bic``. Yao (1988) shows it estimates the number of mean shifts consistently, and
+Bai and Perron (2003) report that it does well when the breaks are real and the errors are not
+strongly autocorrelated, while it can pick too many breaks under strong serial correlation (both
+from memory). Holding the seasonal pattern common to all regimes (the partial structure) takes
+the seasonal swing out of the residuals, which is what keeps a trend's residuals close to that
+favourable case. LWZ penalises harder (fewer false breaks, more missed small ones); the
+sequential rule controls the size of each step but leans on the asymptotic table at short
+trimmings, where it is least reliable. ``benchmarks/planted_breaks.py`` measures all three on
+planted breaks and on series without breaks (its figures: BIC finds a false break in about 4-11%
+of 100-point series, LWZ in almost none, the sequential rule at about the size of the sup-F test).
 """
 
 from __future__ import annotations

@@ -66,6 +66,13 @@ def _png(plt, fig) -> bytes:
     return buf.getvalue()
 
 
+def _wrap(text: str, width: int = 38) -> str:
+    """An axis label on at most a few short lines (long series names make long units)."""
+    import textwrap
+
+    return "\n".join(textwrap.wrap(str(text), width)) or str(text)
+
+
 def _dates(values) -> np.ndarray:
     return np.asarray(values, dtype="datetime64[D]")
 
@@ -104,7 +111,7 @@ def series_chart(dates, values, *, units: str, frequency: str, regimes=(), break
         ax.plot(d, band.mean, color=colour, lw=2.0, ls="-" if k == 0 else "--",
                 label=f"{band.label}: forecast")
     ax.set_xlabel(f"period start ({frequency})")
-    ax.set_ylabel(units)
+    ax.set_ylabel(_wrap(units))
     ax.set_title(title, loc="left", fontsize=11)
     fig.set_size_inches(WIDTH, HEIGHT + 1.3)
     ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), fontsize=7.5, frameon=False,
@@ -122,7 +129,7 @@ def error_chart(dates, lines: dict, *, units: str, frequency: str, horizon_note:
                 CANDIDATE_COLOURS[k % len(CANDIDATE_COLOURS)], lw=1.4,
                 ls=STYLES[k % len(STYLES)], marker="o", ms=2.5, label=label)
     ax.set_xlabel(f"forecast target period ({frequency}){horizon_note}")
-    ax.set_ylabel(f"error, actual minus forecast ({units})")
+    ax.set_ylabel(_wrap(f"error, actual minus forecast ({units})"))
     ax.set_title(title, loc="left", fontsize=11)
     ax.legend(loc="best", fontsize=8, frameon=False)
     return _png(plt, fig)
@@ -148,24 +155,30 @@ def cusum_chart(dates, path, lower, upper, *, frequency: str, ylabel: str,
     return _png(plt, fig)
 
 
-def history_chart(dates, scores, *, metric: str, frequency: str, chosen=None,
-                  after_break=None, title: str = "") -> bytes:
-    """Forecast accuracy against the first period of the history kept (the history sweep);
-    ``after_break`` is (date, score) of the trend fitted from the last break, when known."""
+def history_chart(dates, scores, *, metric: str, frequency: str, chosen=None, points=(),
+                  title: str = "") -> bytes:
+    """Forecast accuracy against the first period of the history kept (the history sweep).
+    ``points`` are extra (date, score, label) marks, e.g. fits that start at a break."""
     plt, fig, ax = _figure()
     d = _dates(dates)
-    ax.plot(d, scores, color=REGIME, lw=1.6, marker="o", ms=3.5,
-            label=f"fixed start: {metric}")
-    if after_break is not None and after_break[1] is not None:
-        ax.scatter(_dates([after_break[0]]), [after_break[1]], marker="D", s=40,
-                   color=OKABE_ITO["green"], zorder=3,
-                   label="start at the last break (found again at each origin)")
+    ax.plot(d, scores, color=REGIME, lw=1.6, marker="o", ms=3.5, label="fixed start dates")
+    markers = ("D", "^", "s", "v")
+    colours = (OKABE_ITO["green"], OKABE_ITO["purple"], OKABE_ITO["orange"], OKABE_ITO["sky"])
+    kinds: dict[str, int] = {}
+    for date, value, label in points:
+        if value is None:
+            continue
+        first = label not in kinds
+        k = kinds.setdefault(label, len(kinds))
+        ax.scatter(_dates([date]), [value], marker=markers[k % 4], s=42, zorder=3,
+                   color=colours[k % 4], edgecolor=ACTUAL, lw=0.5,
+                   label=label if first else None)
     if chosen is not None:
         c = _dates([chosen])[0]
         ax.axvline(c, color=OKABE_ITO["vermillion"], lw=1.2, ls="--",
                    label=f"recommended start {str(c)}")
     ax.set_xlabel(f"first period of the history used for fitting ({frequency})")
-    ax.set_ylabel(metric)
+    ax.set_ylabel(_wrap(metric))
     ax.set_title(title, loc="left", fontsize=11)
     ax.legend(loc="best", fontsize=8, frameon=False)
     return _png(plt, fig)
@@ -189,7 +202,7 @@ def horizon_chart(horizons, lines: dict, *, metric: str, highlight: str | None =
                 label=label + (" (recommended)" if bold else ""))
         k += 1
     ax.set_xlabel("forecast horizon (periods ahead)")
-    ax.set_ylabel(metric)
+    ax.set_ylabel(_wrap(metric))
     ax.set_title(title, loc="left", fontsize=11)
     ax.legend(loc="upper left", fontsize=7.5, frameon=False, ncol=2)
     return _png(plt, fig)

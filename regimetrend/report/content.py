@@ -112,17 +112,21 @@ def _history_chart(d: ReportData) -> Chart | None:
     dates = [r["start"] for r in rows]
     keep = dig(d.evaluation, "history", "keep_from")
     evidence = dig(d.evaluation, "history", "evidence") or {}
-    after = None
-    if evidence.get("rmse_after_last_break") is not None and d.breaks:
-        after = (d.breaks[-1].date, evidence["rmse_after_last_break"])
+    points = [(b.get("date"), b.get("rmse_from_break"), "start at a break (its full-sample date)")
+              for b in evidence.get("breaks") or [] if b.get("date")]
+    redetected = evidence.get("rmse_after_redetected_last_break",
+                              evidence.get("rmse_after_last_break"))
+    if redetected is not None and d.breaks:
+        points.append((d.breaks[-1].date, redetected,
+                       "start at the last break, found again at each origin"))
     png = charts.history_chart(dates, [r["rmse"] for r in rows],
                                metric=f"rolling-origin RMSE ({d.units})",
                                frequency=d.series.frequency.name, chosen=keep,
-                               after_break=after, title="How much history to keep")
+                               points=points, title="How much history to keep")
     return Chart("history_sweep", "Accuracy against the history kept",
-                 "Rolling-origin RMSE of the trend fitted from each start date (the first point "
-                 "uses all history), and of the trend fitted from the last break. Lower is "
-                 "better; the dashed line marks the recommended start when history is cut.", png)
+                 "Rolling-origin RMSE of the trend fitted from each fixed start date (the first "
+                 "point uses all history) and from the breaks. Lower is better; the dashed line "
+                 "marks the recommended start when history is cut.", png)
 
 
 def _horizon_chart(d: ReportData) -> Chart | None:

@@ -64,7 +64,7 @@ def _global_trend_residual(y: np.ndarray, degree: int, season_index: np.ndarray 
 
 
 class SegmentCost:
-    """SSR of a polynomial trend of ``degree`` 1 (linear) or 2 (quadratic) on any segment.
+    """SSR of a polynomial trend of ``degree`` 0 (mean), 1 (linear) or 2 (quadratic) on any segment.
 
     ``season_index`` (0..s-1 per position) with ``season_length`` s > 1 adds season indicators
     that are re-estimated on every segment. ``min_size`` is the shortest segment priced; shorter

@@ -296,3 +296,16 @@ def test_a_report_without_evaluation_or_breaks_says_what_is_missing(tmp_path):
     assert result["report"]["summary"][0].startswith("No change of growth regime was found")
     text = (tmp_path / "report.html").read_text()
     assert "is not shown" in text
+
+
+def test_dollar_signs_in_names_are_drawn_as_text():
+    # matplotlib reads text between two dollar signs as mathematical markup (its mathtext);
+    # a name like this one must neither fail nor lose its signs
+    from regimetrend.report import charts
+
+    name = "Sales $ (USD) net of $refunds_{x}^"
+    png = charts.series_chart(np.array(["2020-01-01", "2020-02-01", "2020-03-01"],
+                                       dtype="datetime64[D]"), [1.0, 2.0, 3.0], units=name,
+                              frequency="monthly", title=name)
+    assert png[:8] == b"\x89PNG\r\n\x1a\n"
+    assert charts._plain(name).count(r"\$") == 2

@@ -66,11 +66,16 @@ def _png(plt, fig) -> bytes:
     return buf.getvalue()
 
 
+def _plain(text) -> str:
+    """Text matplotlib draws as it is: a dollar sign would otherwise start mathematical markup."""
+    return str(text).replace("$", r"\$")
+
+
 def _wrap(text: str, width: int = 38) -> str:
     """An axis label on at most a few short lines (long series names make long units)."""
     import textwrap
 
-    return "\n".join(textwrap.wrap(str(text), width)) or str(text)
+    return _plain("\n".join(textwrap.wrap(str(text), width)) or str(text))
 
 
 def _dates(values) -> np.ndarray:
@@ -95,24 +100,24 @@ def series_chart(dates, values, *, units: str, frequency: str, regimes=(), break
     ax.plot(_dates(dates), values, color=ACTUAL, lw=1.1, label="actual")
     if global_fit is not None:
         ax.plot(_dates(global_fit.dates), global_fit.mean, color=GLOBAL, lw=1.4, ls="--",
-                label=global_fit.label)
+                label=_plain(global_fit.label))
     if regime_fit is not None:
         ax.plot(_dates(regime_fit.dates), regime_fit.mean, color=REGIME, lw=1.4,
-                label=regime_fit.label)
+                label=_plain(regime_fit.label))
     for k, band in enumerate(forecasts):
         colour = REGIME if k == 0 else GLOBAL
         d = _dates(band.dates)
         if band.lower95 is not None:
             ax.fill_between(d, band.lower95, band.upper95, color=colour, alpha=0.12, lw=0,
-                            label=f"{band.label}: 95% interval")
+                            label=_plain(f"{band.label}: 95% interval"))
         if band.lower80 is not None:
             ax.fill_between(d, band.lower80, band.upper80, color=colour, alpha=0.22, lw=0,
-                            label=f"{band.label}: 80% interval")
+                            label=_plain(f"{band.label}: 80% interval"))
         ax.plot(d, band.mean, color=colour, lw=2.0, ls="-" if k == 0 else "--",
-                label=f"{band.label}: forecast")
+                label=_plain(f"{band.label}: forecast"))
     ax.set_xlabel(f"period start ({frequency})")
     ax.set_ylabel(_wrap(units))
-    ax.set_title(title, loc="left", fontsize=11)
+    ax.set_title(_plain(title), loc="left", fontsize=11)
     fig.set_size_inches(WIDTH, HEIGHT + 1.3)
     ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), fontsize=7.5, frameon=False,
               ncol=3)
@@ -127,10 +132,10 @@ def error_chart(dates, lines: dict, *, units: str, frequency: str, horizon_note:
     for k, (label, errors) in enumerate(lines.items()):
         ax.plot(_dates(dates), errors, color=(GLOBAL, REGIME)[k % 2] if k < 2 else
                 CANDIDATE_COLOURS[k % len(CANDIDATE_COLOURS)], lw=1.4,
-                ls=STYLES[k % len(STYLES)], marker="o", ms=2.5, label=label)
+                ls=STYLES[k % len(STYLES)], marker="o", ms=2.5, label=_plain(label))
     ax.set_xlabel(f"forecast target period ({frequency}){horizon_note}")
     ax.set_ylabel(_wrap(f"error, actual minus forecast ({units})"))
-    ax.set_title(title, loc="left", fontsize=11)
+    ax.set_title(_plain(title), loc="left", fontsize=11)
     ax.legend(loc="best", fontsize=8, frameon=False)
     return _png(plt, fig)
 
@@ -150,7 +155,7 @@ def cusum_chart(dates, path, lower, upper, *, frequency: str, ylabel: str,
                    zorder=3, label="outside the band")
     ax.set_xlabel(f"period start ({frequency})")
     ax.set_ylabel(ylabel)
-    ax.set_title(title, loc="left", fontsize=11)
+    ax.set_title(_plain(title), loc="left", fontsize=11)
     ax.legend(loc="upper left", fontsize=8, frameon=False)
     return _png(plt, fig)
 
@@ -172,14 +177,14 @@ def history_chart(dates, scores, *, metric: str, frequency: str, chosen=None, po
         k = kinds.setdefault(label, len(kinds))
         ax.scatter(_dates([date]), [value], marker=markers[k % 4], s=42, zorder=3,
                    color=colours[k % 4], edgecolor=ACTUAL, lw=0.5,
-                   label=label if first else None)
+                   label=_plain(label) if first else None)
     if chosen is not None:
         c = _dates([chosen])[0]
         ax.axvline(c, color=OKABE_ITO["vermillion"], lw=1.2, ls="--",
                    label=f"recommended start {str(c)}")
     ax.set_xlabel(f"first period of the history used for fitting ({frequency})")
     ax.set_ylabel(_wrap(metric))
-    ax.set_title(title, loc="left", fontsize=11)
+    ax.set_title(_plain(title), loc="left", fontsize=11)
     ax.legend(loc="best", fontsize=8, frameon=False)
     return _png(plt, fig)
 
@@ -195,15 +200,15 @@ def horizon_chart(horizons, lines: dict, *, metric: str, highlight: str | None =
         bold = label == highlight
         if label == reference:
             ax.plot(horizons, values, color=ACTUAL, lw=1.8, ls="--", marker="s", ms=3,
-                    label=label + " (reference)")
+                    label=_plain(label + " (reference)"))
             continue
         ax.plot(horizons, values, color=others[k % len(others)],
                 lw=2.6 if bold else 1.2, ls=STYLES[k % len(STYLES)], marker="o", ms=3,
-                label=label + (" (recommended)" if bold else ""))
+                label=_plain(label + (" (recommended)" if bold else "")))
         k += 1
     ax.set_xlabel("forecast horizon (periods ahead)")
     ax.set_ylabel(_wrap(metric))
-    ax.set_title(title, loc="left", fontsize=11)
+    ax.set_title(_plain(title), loc="left", fontsize=11)
     ax.legend(loc="upper left", fontsize=7.5, frameon=False, ncol=2)
     return _png(plt, fig)
 
@@ -228,6 +233,6 @@ def growth_chart(labels, values, lower, upper, *, quantity: str, title: str = ""
     ax.set_xticks(x, labels, fontsize=8)
     ax.set_xlabel("regime (first period to last period)")
     ax.set_ylabel(quantity)
-    ax.set_title(title, loc="left", fontsize=11)
+    ax.set_title(_plain(title), loc="left", fontsize=11)
     ax.legend(loc="upper left", fontsize=8, frameon=False)
     return _png(plt, fig)

@@ -36,7 +36,7 @@ def _series_chart(d: ReportData) -> Chart:
     regimes = []
     edges = [0] + [b.position for b in d.breaks] + [s.n]
     for a, b in zip(edges[:-1], edges[1:]):
-        regimes.append((s.starts[a], s.starts[b - 1]))
+        regimes.append((s.starts[a], s.starts[min(b, s.n - 1)]))  # shaded up to the next
     spans = [(s.starts[b.low], s.starts[b.high]) for b in d.breaks
              if b.low is not None and b.high is not None]
     global_fit = (charts.Band("global trend, fitted", s.starts, d.global_fitted)

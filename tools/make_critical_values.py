@@ -30,8 +30,10 @@ For each trimming tau on the grid the sup runs over b = h .. T - h with h = roun
 probability grid. Draws are split into two halves to measure the simulation error: the largest
 difference between the halves' 90/95/99% quantiles is stored next to each table.
 
-Seeded: numpy SeedSequence(SEED) spawns one independent stream per model, so the result does not
-depend on the number of worker processes.
+Seeded: numpy SeedSequence(SEED) spawns one stream per model family and from it one per block of
+draws, so the result does not depend on the number of worker processes. The models of a family
+(linear: level/slope/both; quadratic: the same; stationary: q = 1..5) share their draws, which
+cuts the time by about three; each model's own distribution is unaffected.
 """
 
 from __future__ import annotations
@@ -42,6 +44,7 @@ import os
 import sys
 import time
 from concurrent.futures import ProcessPoolExecutor
+from functools import lru_cache
 
 import numpy as np
 
@@ -49,7 +52,7 @@ SEED = 20261202
 GRID_POINTS = 1000
 TRIMS = (0.01, 0.02, 0.03, 0.05, 0.075, 0.10, 0.15, 0.20, 0.25)
 CHUNK = 2500
-DEFAULT_DRAWS = 200_000
+DEFAULT_DRAWS = 2_000_000
 
 # Probability grid of the stored quantiles: coarse in the body, fine in the upper tail.
 PROBABILITIES = tuple(np.round(np.concatenate([
@@ -86,8 +89,17 @@ def _break_columns(t: np.ndarray, b: int, terms: int, kind: str) -> np.ndarray:
     return np.column_stack([after] + [d ** p for p in range(1, terms)])
 
 
+FAMILIES = {  # one simulation pass serves every model of a family (shared draws)
+    "linear": [m for m, (terms, _) in TREND_MODELS.items() if terms == 2],
+    "quadratic": [m for m, (terms, _) in TREND_MODELS.items() if terms == 3],
+    "stationary": list(STATIONARY_MODELS),
+}
+BLOCKS = 8  # draws of a family are simulated in independently seeded blocks
+
+
+@lru_cache(maxsize=None)
 def _trend_setup(terms: int, kind: str, h_min: int):
-    """Deterministic parts: null projection and the inverse Gram matrix of M_Z D_b per position."""
+    """Deterministic parts for one kind: inverse Gram matrices of M_Z D_b per position."""
     T = GRID_POINTS
     t = np.arange(T) / T
     Z = np.column_stack([t ** p for p in range(terms)])
@@ -98,86 +110,116 @@ def _trend_setup(terms: int, kind: str, h_min: int):
         D = _break_columns(t, b, terms, kind)
         zd = Z.T @ D
         grams.append(D.T @ D - zd.T @ ztz_inv @ zd)
-    gram_inv = np.linalg.inv(np.array(grams))
-    return t, Z, ztz_inv, positions, gram_inv
+    return np.linalg.inv(np.array(grams))
 
 
-def _trend_chunk(rng, n_draws, terms, kind, setup):
-    """sup-F path F(b) for a chunk of draws: array (n_draws, len(positions))."""
-    t, Z, ztz_inv, positions, gram_inv = setup
+def _trend_chunk(rng, n_draws, terms, gram_invs, h_min):
+    """F(b) paths of every kind for one chunk of draws: {kind: (n_draws, positions)}."""
+    from math import comb
     T = GRID_POINTS
+    t = np.arange(T) / T
+    Z = np.column_stack([t ** p for p in range(terms)])
+    ztz_inv = np.linalg.inv(Z.T @ Z)
+    positions = np.arange(h_min, T - h_min + 1)
     y = rng.standard_normal((n_draws, T))
     e = y - (y @ Z) @ ztz_inv @ Z.T  # residuals M_Z y
     # Suffix sums S_j(b) = sum_{i >= b} e_i t_i^j for j = 0..terms-1.
     suffix = [np.cumsum((e * t ** j)[:, ::-1], axis=1)[:, ::-1][:, positions]
               for j in range(terms)]
     tb = t[positions]
+    # sum_{i >= b} e_i (t_i - t_b)^p by the binomial expansion
+    centred = {p: sum(comb(p, j) * (-tb) ** (p - j) * suffix[j] for j in range(p + 1))
+               for p in range(1, terms)}
+    columns = {"level": [suffix[0]],
+               "slope": [centred[p] for p in range(1, terms)],
+               "both": [suffix[0]] + [centred[p] for p in range(1, terms)]}
+    paths = {}
+    for kind, v in columns.items():
+        g = gram_invs[kind]
+        q = len(v)
+        red = np.zeros_like(v[0])
+        for i in range(q):
+            red += g[:, i, i] * v[i] * v[i]
+            for j in range(i + 1, q):
+                red += 2.0 * g[:, i, j] * v[i] * v[j]
+        paths[kind] = red / q
+    return paths, positions
 
-    def centred(p):  # sum_{i >= b} e_i (t_i - t_b)^p by the binomial expansion
-        from math import comb
-        return sum(comb(p, j) * (-tb) ** (p - j) * suffix[j] for j in range(p + 1))
 
-    if kind == "level":
-        v = [suffix[0]]
-    elif kind == "slope":
-        v = [centred(p) for p in range(1, terms)]
-    else:
-        v = [suffix[0]] + [centred(p) for p in range(1, terms)]
-    q = len(v)
-    red = np.zeros_like(v[0])
-    for i in range(q):
-        red += gram_inv[:, i, i] * v[i] * v[i]
-        for j in range(i + 1, q):
-            red += 2.0 * gram_inv[:, i, j] * v[i] * v[j]
-    return red / q, positions
-
-
-def _stationary_chunk(rng, n_draws, q, h_min):
+def _stationary_chunk(rng, n_draws, h_min):
+    """Andrews' bridge functional for q = 1..5 from the same five components."""
     T = GRID_POINTS
     positions = np.arange(h_min, T - h_min + 1)
     lam = positions / T
     total = np.zeros((n_draws, positions.size))
-    for _ in range(q):
+    paths = {}
+    for q in range(1, max(STATIONARY_MODELS.values()) + 1):
         s = np.cumsum(rng.standard_normal((n_draws, T)), axis=1)
-        bridge = s[:, positions - 1] - lam * s[:, -1:]
-        total += bridge ** 2
-    return total / (T * lam * (1.0 - lam)) / q, positions
+        total += (s[:, positions - 1] - lam * s[:, -1:]) ** 2
+        paths[f"stationary-q{q}"] = total / (T * lam * (1.0 - lam)) / q
+    return paths, positions
 
 
-def simulate_model(args) -> dict:
-    """All trims of one model: sup-F draws -> quantiles, plus the half-split stability."""
-    model, draws, seed_seq = args
+def _nested_maxima(path: np.ndarray, h_values, h_min: int) -> np.ndarray:
+    """sup over b = h .. T - h for every h, widening from the largest h (views, no copies)."""
+    T = GRID_POINTS
+    out = np.empty((len(h_values), path.shape[0]), dtype=np.float32)
+    order = sorted(range(len(h_values)), key=lambda k: -h_values[k])
+    current, lo, hi = None, None, None
+    for k in order:
+        new_lo, new_hi = h_values[k] - h_min, T - h_values[k] - h_min + 1
+        if current is None:
+            current = path[:, new_lo:new_hi].max(axis=1)
+        else:
+            if new_lo < lo:
+                current = np.maximum(current, path[:, new_lo:lo].max(axis=1))
+            if new_hi > hi:
+                current = np.maximum(current, path[:, hi:new_hi].max(axis=1))
+        lo, hi = new_lo, new_hi
+        out[k] = current
+    return out
+
+
+def simulate_block(args) -> dict:
+    """sup-F draws of every model of a family, every trim: {model: (len(TRIMS), draws)}."""
+    family, draws, seed_seq = args
     rng = np.random.default_rng(seed_seq)
     h_values = [int(round(tau * GRID_POINTS)) for tau in TRIMS]
     h_min = min(h_values)
-    sups = np.empty((len(TRIMS), draws))
-    setup = None
-    if model in TREND_MODELS:
-        terms, kind = TREND_MODELS[model]
-        setup = _trend_setup(terms, kind, h_min)
-    start = time.time()
+    models = FAMILIES[family]
+    sups = {m: np.empty((len(TRIMS), draws), dtype=np.float32) for m in models}
+    if family != "stationary":
+        terms = 2 if family == "linear" else 3
+        gram_invs = {TREND_MODELS[m][1]: _trend_setup(terms, TREND_MODELS[m][1], h_min)
+                     for m in models}
     done = 0
     while done < draws:
         m = min(CHUNK, draws - done)
-        if setup is not None:
-            path, positions = _trend_chunk(rng, m, terms, kind, setup)
+        if family == "stationary":
+            paths, positions = _stationary_chunk(rng, m, h_min)
         else:
-            path, positions = _stationary_chunk(rng, m, STATIONARY_MODELS[model], h_min)
-        for k, h in enumerate(h_values):
-            keep = (positions >= h) & (positions <= GRID_POINTS - h)
-            sups[k, done:done + m] = path[:, keep].max(axis=1)
+            by_kind, positions = _trend_chunk(rng, m, terms, gram_invs, h_min)
+            paths = {f"{family}-{kind}": path for kind, path in by_kind.items()}
+        for model, path in paths.items():
+            sups[model][:, done:done + m] = _nested_maxima(path, h_values, h_min)
         done += m
+    return sups
+
+
+def summarise(model: str, sups: np.ndarray) -> dict:
+    """Quantile table per trim, and the gap between the two halves' 90/95/99% quantiles."""
     probs = np.array(PROBABILITIES)
-    half = draws // 2
+    half = sups.shape[1] // 2
     table, stability = {}, {}
     for k, tau in enumerate(TRIMS):
         key = f"{tau:g}"
-        table[key] = np.round(np.quantile(sups[k], probs), 4).tolist()
-        a = np.quantile(sups[k, :half], [0.90, 0.95, 0.99])
-        b = np.quantile(sups[k, half:], [0.90, 0.95, 0.99])
+        draws = sups[k].astype(np.float64)
+        table[key] = np.round(np.quantile(draws, probs), 4).tolist()
+        a = np.quantile(draws[:half], [0.90, 0.95, 0.99])
+        b = np.quantile(draws[half:], [0.90, 0.95, 0.99])
         stability[key] = np.round(np.abs(a - b), 4).tolist()
-    return {"model": model, "q": changing_count(model), "quantiles": table,
-            "half_split_abs_diff_90_95_99": stability, "seconds": round(time.time() - start, 1)}
+    return {"q": changing_count(model), "quantiles": table,
+            "half_split_abs_diff_90_95_99": stability}
 
 
 def main(argv=None) -> int:
@@ -187,39 +229,50 @@ def main(argv=None) -> int:
     parser.add_argument("--out", default=os.path.join(os.path.dirname(__file__), "..",
                                                        "regimetrend", "breaks",
                                                        "critical_values.json"))
-    parser.add_argument("--models", nargs="*", default=None, help="subset of models (testing)")
+    parser.add_argument("--families", nargs="*", default=None, choices=list(FAMILIES),
+                        help="subset of model families (for quick checks)")
     opts = parser.parse_args(argv)
-    models = opts.models or (list(TREND_MODELS) + list(STATIONARY_MODELS))
-    all_models = list(TREND_MODELS) + list(STATIONARY_MODELS)
-    seeds = dict(zip(all_models, np.random.SeedSequence(SEED).spawn(len(all_models))))
-    jobs = [(m, opts.draws, seeds[m]) for m in models]
+    families = opts.families or list(FAMILIES)
+    per_block = -(-opts.draws // BLOCKS)
+    draws = per_block * BLOCKS
+    root = np.random.SeedSequence(SEED)
+    seeds = dict(zip(FAMILIES, root.spawn(len(FAMILIES))))
+    jobs = [(f, per_block, seq) for f in families for seq in seeds[f].spawn(BLOCKS)]
     start = time.time()
     if opts.workers > 1:
         with ProcessPoolExecutor(max_workers=opts.workers) as pool:
-            results = list(pool.map(simulate_model, jobs))
+            blocks = list(pool.map(simulate_block, jobs))
     else:
-        results = [simulate_model(j) for j in jobs]
+        blocks = [simulate_block(j) for j in jobs]
+    models = {}
+    for f in families:
+        parts = [b for b, job in zip(blocks, jobs) if job[0] == f]
+        for m in FAMILIES[f]:
+            models[m] = summarise(m, np.concatenate([p[m] for p in parts], axis=1))
     elapsed = time.time() - start
     out = {
         "meta": {
             "what": "asymptotic null distribution of sup-F (F scale: Wald / q), one break",
             "generator": "tools/make_critical_values.py",
-            "seed": SEED, "draws": opts.draws, "grid_points": GRID_POINTS,
+            "seed": SEED, "draws": draws, "blocks": BLOCKS, "grid_points": GRID_POINTS,
             "trims": list(TRIMS), "probabilities": list(PROBABILITIES),
             "trim_rule": "both regimes have at least round(trim * grid_points) points",
+            "shared_draws": "models of one family (linear, quadratic, stationary) share draws",
             "wall_seconds": round(elapsed, 1), "workers": opts.workers,
         },
-        "models": {r["model"]: {k: v for k, v in r.items() if k != "model"} for r in results},
+        "models": models,
     }
     tmp = opts.out + ".tmp"
     with open(tmp, "w") as fh:
         json.dump(out, fh, separators=(",", ":"))
     os.replace(tmp, opts.out)
-    for r in results:
-        worst = max(max(v) for v in r["half_split_abs_diff_90_95_99"].values())
-        sys.stdout.write(f"{r['model']:18s} q={r['q']}  {r['seconds']:7.1f}s  "
-                         f"max half-split diff {worst:.4f}\n")
-    sys.stdout.write(f"total {elapsed:.1f}s -> {os.path.abspath(opts.out)}\n")
+    for name, entry in models.items():
+        gaps = np.array(list(entry["half_split_abs_diff_90_95_99"].values()))
+        worst = gaps.max(axis=0)
+        sys.stdout.write(f"{name:18s} q={entry['q']}  largest half-split gap over trims "
+                         f"90% {worst[0]:.4f}  95% {worst[1]:.4f}  99% {worst[2]:.4f}\n")
+    sys.stdout.write(f"{draws} draws per model, total {elapsed:.1f}s with {opts.workers} "
+                     f"worker(s) -> {os.path.abspath(opts.out)}\n")
     return 0
 
 

@@ -12,7 +12,9 @@ with coefficient change Delta on the changing regressors x_t,
 
 W1, W2 independent standard Brownian motions, Q_i the second moments of x_t and Omega_i the
 long-run variance of x_t u_t in regime i (before: 1, after: 2). We take Omega_i = sigma_i^2 Q_i:
-white-noise errors whose variance may differ between the regimes (the heterogeneous form). The
+white-noise errors whose variance may differ between the regimes (the heterogeneous form), with
+sigma_i^2 = SSR_i / n_i from the fit with the break; optionally sigma_i^2 is the Bartlett
+long-run variance of the regime's residuals, for serially correlated errors. The
 interval for k0 is [k_hat - floor(c_hi / L) - 1, k_hat - floor(c_lo / L) + 1] with c_lo, c_hi
 the (1 -/+ level)/2 quantiles of argmax V; its CDF is evaluated in closed form (derived below)
 and inverted with a bracketing root finder.
@@ -113,12 +115,25 @@ def _bai_bounds(k_hat: int, L: float, xi: float, phi: float, level: float) -> tu
     return (int(k_hat - math.floor(c_hi / L) - 1), int(k_hat - math.floor(c_lo / L) + 1))
 
 
+def _long_run_variance(u: np.ndarray) -> float:
+    """Bartlett-kernel (Newey-West) long-run variance of a residual stretch, mean zero."""
+    n = u.size
+    lags = ols.newey_west_lags(n)
+    value = float(u @ u) / n
+    for j in range(1, min(lags, n - 1) + 1):
+        value += 2.0 * (1.0 - j / (lags + 1.0)) * float(u[j:] @ u[:-j]) / n
+    return value
+
+
 def break_interval(y, X, position, segment_start, segment_end, changing: list[int],
-                   levels=DEFAULT_LEVELS) -> dict[float, tuple[int, int]]:
+                   levels=DEFAULT_LEVELS, *, autocorrelated: bool = False
+                   ) -> dict[float, tuple[int, int]]:
     """Bai (1997) interval for the break at ``position`` between [start, position) and
     [position, end); ``changing`` are the columns of X whose coefficients change.
 
-    Returns {level: (first, last)} of admissible break positions, clipped to
+    ``autocorrelated=True`` replaces each regime's noise variance by its Bartlett long-run
+    variance (Omega_i = lrv_i Q_i), which widens the interval when residuals are serially
+    correlated. Returns {level: (first, last)} of admissible break positions, clipped to
     segment_start + 1 .. segment_end - 1.
     """
     y = np.asarray(y, dtype=float).ravel()
@@ -148,8 +163,11 @@ def break_interval(y, X, position, segment_start, segment_end, changing: list[in
     change = Xc @ delta  # Delta' x_t at every period of the segment
     u = res.residuals
     n1, n2 = b - start, end - b
-    sigma1 = float(u[:n1] @ u[:n1]) / n1
-    sigma2 = float(u[n1:] @ u[n1:]) / n2
+    if autocorrelated:
+        sigma1, sigma2 = _long_run_variance(u[:n1]), _long_run_variance(u[n1:])
+    else:
+        sigma1 = float(u[:n1] @ u[:n1]) / n1
+        sigma2 = float(u[n1:] @ u[n1:]) / n2
     lo_clip, hi_clip = start + 1, end - 1
     whole = {lv: (lo_clip, hi_clip) for lv in levels}
     if sigma1 <= 0.0 or sigma2 <= 0.0:

@@ -22,6 +22,7 @@ import numpy as np
 from ..design import TrendSpec, season_index, to_model_scale
 
 _BLOCK_ELEMENTS = 2_000_000
+_BLOCK_ENDS = 128
 
 
 def shared_table_applies(kind: str, spec: TrendSpec, seasonal_by_regime: bool,
@@ -72,20 +73,21 @@ def origin_breaks(series, origins, spec: TrendSpec, max_breaks: int, trim, crite
 
 
 def _table(cost, M: int, h: int, top: int):
-    """F[m, j] and arg-mins for j = 0..top (ends), as in the exact search."""
+    """F[m, j] and arg-mins for j = 0..top (ends), as in the exact search; each block of ends
+    prices only the starts that can precede them (the lower triangle)."""
     F = np.full((M + 1, top + 1), np.inf)
     arg = np.zeros((M + 1, top + 1), dtype=np.intp)
-    starts = np.arange(top + 1)
-    block = max(1, _BLOCK_ELEMENTS // (top + 1))
+    block = max(1, min(_BLOCK_ENDS, _BLOCK_ELEMENTS // (top + 1)))
     for j0 in range(h, top + 1, block):
         ends = np.arange(j0, min(j0 + block, top + 1))
-        C = cost.costs(starts[None, :], ends[:, None])
+        width = int(ends[-1]) - h + 1  # starts 0..width-1 leave at least h points
+        C = cost.costs(np.arange(width)[None, :], ends[:, None])
         F[0, ends] = C[:, 0]
         for m in range(1, M + 1):
             lo = m * h
-            if lo > ends[-1] - h:
+            if lo >= width:
                 break
-            total = F[m - 1, lo:][None, :] + C[:, lo:]
+            total = F[m - 1, lo:width][None, :] + C[:, lo:]
             k = np.argmin(total, axis=1)
             F[m, ends] = total[np.arange(len(ends)), k]
             arg[m, ends] = k + lo

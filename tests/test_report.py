@@ -309,3 +309,14 @@ def test_dollar_signs_in_names_are_drawn_as_text():
                               frequency="monthly", title=name)
     assert png[:8] == b"\x89PNG\r\n\x1a\n"
     assert charts._plain(name).count(r"\$") == 3
+
+
+def test_report_command_json_has_growth_segments_and_outputs(tmp_path, capsys):
+    out = tmp_path / "rep"
+    code = main(["report", str(DEMO), "--shape", "exponential", "--horizon", "4", "--step", "8",
+                 "--output", str(out), "--json"])
+    assert code == 0
+    result = json.loads(capsys.readouterr().out)
+    for seg in result["growth"]["segments"]:
+        assert {"per_period_pct", "annualised_pct", "annualised_pct_ci95"} <= set(seg["growth"])
+    assert Path(result["outputs"]["html"]) == out / "report.html"

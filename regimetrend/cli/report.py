@@ -7,6 +7,7 @@ report, the charts as PNG, the tables as CSV and one workbook, and the full resu
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 from . import options
@@ -37,7 +38,7 @@ def register(sub) -> None:
     p.add_argument("--output", metavar="DIR", required=True,
                    help="folder for the report files (created when missing)")
     p.add_argument("--json", action="store_true",
-                   help="print the list of written files as JSON instead of lines")
+                   help="print the full result as JSON, with the files written under 'outputs'")
     p.set_defaults(run=run)
 
 
@@ -68,7 +69,9 @@ def run(args) -> int:
                              shape=spec.shape, seasonality=spec.seasonality,
                              season_length=spec.season_length, **_settings(args))
     if args.json:
-        print(options.dumps(written))
+        result = json.loads(Path(written["json"]).read_text(encoding="utf-8"))
+        result["outputs"] = written
+        print(options.dumps(result))
     else:
         print(f"report for {series.name} written to {folder}")
         for key, path in written.items():

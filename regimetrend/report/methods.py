@@ -15,12 +15,13 @@ METHODS = (
     ("Break search",
      "Breaks are the first periods of new regimes. The best break dates for each number of "
      "breaks come from an exact search over all segmentations (dynamic programming on segment "
-     "costs); the number of breaks is chosen by an information criterion or sequential tests, "
-     "the sup-F test asks whether there is any break at all, and each break date gets a 95% "
-     "interval.",
+     "costs); very long series are searched by PELT instead. The number of breaks is chosen "
+     "by an information criterion or sequential tests, the sup-F test asks whether there is "
+     "any break at all, and each break date gets a 95% interval.",
      "Bai, J. and Perron, P. (1998), Econometrica 66(1), 47-78; Bai and Perron (2003), Journal "
      "of Applied Econometrics 18(1), 1-22; Andrews, D. W. K. (1993), Econometrica 61(4), "
-     "821-856."),
+     "821-856; Killick, R., Fearnhead, P. and Eckley, I. A. (2012), Journal of the American "
+     "Statistical Association 107(500), 1590-1598."),
     ("Known dates and drift",
      "A break at a known date is tested with the Chow test. The CUSUM path of recursive "
      "residuals shows when one global trend starts to drift; leaving its 5% band signals "

@@ -59,7 +59,7 @@ def test_compare_text_shows_ranking_recommendation_history_and_diagnosis(nile_cs
     code, out, _ = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
                        "--step", "3")
     assert code == 0
-    for word in ("rank", "candidate", "RMSE", "recommendation:", "rule:", "history:",
+    for word in ("rank", "candidate", "RMSE", "recommendation:", "rule:", "history:", "horizon",
                  "diagnosis:", "caution:", "global linear"):
         assert word in out
     assert "OPTIMISTIC" not in out

@@ -118,8 +118,18 @@ def render(series, ev, outputs) -> str:
     lines += ["", "gain vs global: 1 - RMSE / RMSE of the reference; DM p: one-sided "
                   "Diebold-Mariano (HLN) p-value that the candidate is more accurate", "",
               f"recommendation: {ev.recommended.reason}",
-              f"rule: {ev.recommended.rule}", "",
-              f"history: {ev.history.sentence}"]
+              f"rule: {ev.recommended.rule}", ""]
+    rec = ev.candidate(ev.recommended.name)
+    ref = ev.candidate(ev.reference)
+    if rec.name != ref.name:
+        rows = [[str(a["horizon"]), fmt(b["rmse"]), fmt(a["rmse"]),
+                 _p(dm.get("p_value_better"))]
+                for a, b, dm in zip(rec.per_horizon, ref.per_horizon,
+                                    rec.vs_global.get("per_horizon", []))]
+        lines.append(table(["horizon", f"RMSE {ref.name}", f"RMSE {rec.name}",
+                            "DM p (better)"], rows))
+        lines.append("")
+    lines.append(f"history: {ev.history.sentence}")
     sweep = ev.history.evidence.get("sweep", [])
     if len(sweep) > 1:
         lines.append(table(["fit from", "RMSE", "MAE", "gain vs all history"],

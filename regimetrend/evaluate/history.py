@@ -82,7 +82,7 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
         last = rows[-1]
         return HistoryDecision(None, None,
                                f"keep all history: the break at {last['label']}{interval(last)} "
-                               f"is not significant (sup-F p = {_p(break_p)}).", evidence)
+                               f"is not significant (sup-F {_p(break_p)}).", evidence)
     chosen = None
     for r in reversed(rows):
         if r["judgeable"] and r["rmse_from_break"] is not None and r["rmse_from_break"] <= rmse_all:
@@ -97,12 +97,12 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     tail = " (optimistic: full-sample breaks reused)" if optimistic else ""
     if chosen is None:
         return HistoryDecision(None, None,
-                               f"keep all history: the breaks are significant (sup-F p = "
+                               f"keep all history: the breaks are significant (sup-F "
                                f"{_p(break_p)}), but no trend fitted from a break date forecast "
                                f"better than the trend on all history on the rolling origin"
                                f"{recent_note}{tail}.", evidence)
     sentence = (f"keep the history from {chosen['label']}: the break there{interval(chosen)} is "
-                f"significant (sup-F p = {_p(break_p)}) and the trend fitted from it forecast "
+                f"significant (sup-F {_p(break_p)}) and the trend fitted from it forecast "
                 f"better on the rolling origin (RMSE {chosen['rmse_from_break']:.4g} against "
                 f"{rmse_all:.4g} with all history){recent_note}{tail}.")
     return HistoryDecision(chosen["date"], chosen["label"], sentence, evidence)

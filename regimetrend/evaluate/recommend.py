@@ -36,9 +36,10 @@ def rule_text(reference: str, alpha: float = ALPHA, large_gain: float = LARGE_GA
 
 
 def _p(x) -> str:
+    """A p-value for a sentence: 'p = 0.012', 'p < 0.001' or 'p not available'."""
     if x is None:
-        return "n/a"
-    return "< 0.001" if x < 0.001 else f"{x:.3f}"
+        return "p not available"
+    return "p < 0.001" if x < 0.001 else f"p = {x:.3f}"
 
 
 def recommend(candidates, reference, break_p: float | None, optimistic: bool = False,
@@ -63,13 +64,13 @@ def recommend(candidates, reference, break_p: float | None, optimistic: bool = F
         if by_test:
             basis = "accuracy test"
             reason = (f"{best.name} is recommended: {gain}, and the Diebold-Mariano test finds "
-                      f"it more accurate (one-sided p = {_p(p_better)}){tail}.")
+                      f"it more accurate (one-sided {_p(p_better)}){tail}.")
         else:
             basis = "large gain with a significant break"
             reason = (f"{best.name} is recommended: {gain}, a gain of at least {large_gain:.0%}, "
-                      f"and the sup-F test finds a break (p = {_p(break_p)}), although the "
+                      f"and the sup-F test finds a break ({_p(break_p)}), although the "
                       f"Diebold-Mariano test alone cannot tell the two apart "
-                      f"(one-sided p = {_p(p_better)}){tail}.")
+                      f"(one-sided {_p(p_better)}){tail}.")
         return Recommendation(best.strategy.name, best.strategy.shape, best.name, reason, rule,
                               basis)
     others = [c for c in candidates if c.name != reference.name and c.gain is not None]
@@ -77,13 +78,13 @@ def recommend(candidates, reference, break_p: float | None, optimistic: bool = F
         best = min(others, key=lambda c: c.metrics["rmse"])
         if best.gain > 0:
             detail = (f"the best, {best.name}, has a {best.gain:.0%} lower RMSE with one-sided "
-                      f"Diebold-Mariano p = {_p(best.vs_global.get('p_value_better'))}")
+                      f"Diebold-Mariano {_p(best.vs_global.get('p_value_better'))}")
         else:
             detail = f"none has a lower RMSE (the best, {best.name}, is {-best.gain:.0%} worse)"
     else:
         detail = "there are no other candidates"
     reason = (f"the {reference.name} trend is kept: no candidate beats it by a margin the "
               f"Diebold-Mariano test can tell apart, nor by {large_gain:.0%} with a significant "
-              f"break (sup-F p = {_p(break_p)}); {detail}{tail}.")
+              f"break (sup-F {_p(break_p)}); {detail}{tail}.")
     return Recommendation(reference.strategy.name, reference.strategy.shape, reference.name,
                           reason, rule, "global kept")

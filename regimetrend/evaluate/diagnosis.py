@@ -67,11 +67,12 @@ def diagnose(series, reference_name: str, fitted: np.ndarray, window: int, cross
                                     "label": series.label(cause["position"]),
                                     "ci95": [series.iso(lo), series.iso(hi)] if lo is not None
                                     else None}
-    direction = "under-forecast" if me > 0 else "over-forecast"
+    direction = "below" if me > 0 else "above"
     pct_text = f" ({abs(pct):.1f}% of the level)" if pct is not None else ""
     sentence = (f"Over the last {k} periods ({series.label(n - k)} to {series.label(n - 1)}) the "
-                f"{reference_name} trend {direction} by {abs(me):.4g} on average{pct_text}, "
-                f"with {max(pos, neg)} of {k} errors {dominant}")
+                f"{reference_name} trend fitted to all history ran {direction} the actual values "
+                f"by {abs(me):.4g} on average{pct_text}, with {max(pos, neg)} of {k} errors "
+                f"(actual minus trend) {dominant}")
     if crossing is not None:
         sentence += f"; its CUSUM left the 5% band at {series.label(crossing)}"
     else:

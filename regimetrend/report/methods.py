@@ -23,11 +23,12 @@ METHODS = (
      "821-856; Killick, R., Fearnhead, P. and Eckley, I. A. (2012), Journal of the American "
      "Statistical Association 107(500), 1590-1598."),
     ("Known dates and drift",
-     "A break at a known date is tested with the Chow test. The CUSUM path of recursive "
-     "residuals shows when one global trend starts to drift; leaving its 5% band signals "
-     "instability.",
+     "A break at a known date is tested with the Chow test. CUSUM paths (of recursive "
+     "residuals, and of ordinary residuals) show when one global trend starts to drift; a path "
+     "leaving its 5% band signals instability.",
      "Chow, G. C. (1960), Econometrica 28(3), 591-605; Brown, R. L., Durbin, J. and Evans, "
-     "J. M. (1975), Journal of the Royal Statistical Society B 37(2), 149-192."),
+     "J. M. (1975), Journal of the Royal Statistical Society B 37(2), 149-192; Ploberger, W. "
+     "and Kramer, W. (1992), Econometrica 60(2), 271-285."),
     ("Strategies",
      "global: one trend over all history. separate: one trend per regime, fitted jointly with "
      "shared seasonal terms, forecast from the last regime. truncated: the trend fitted only on "

@@ -158,14 +158,14 @@ def rolling() -> None:
     y = y + rng.normal(0, 2, n)
     starts = (np.datetime64("2012-01", "M") + np.arange(n)).astype("datetime64[D]")
     series = Series("bench", starts, y, Frequency("month"))
-    t0 = time.perf_counter()
+    t0, c0 = time.perf_counter(), time.process_time()
     calls = 0
     for origin in range(96, 120):
         for shape in ("linear", "exponential", "quadratic"):
             detect_breaks(series.head(origin), shape=shape, seasonality="dummies")
             calls += 1
-    total = time.perf_counter() - t0
-    print(f"{calls} calls on 96..119 points: {total:.2f} s in total, "
+    total, cpu = time.perf_counter() - t0, time.process_time() - c0
+    print(f"{calls} calls on 96..119 points: {total:.2f} s in total ({cpu:.2f} s of CPU), "
           f"{1000 * total / calls:.1f} ms per call")
 
 

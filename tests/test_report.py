@@ -288,7 +288,12 @@ def test_a_report_without_evaluation_or_breaks_says_what_is_missing(tmp_path):
                                cautions=("the series is short",),
                                to_dict=lambda: {"growth": growth.to_dict(),
                                                 "forecast": forecast.to_dict()})
+    (tmp_path / "charts").mkdir()
+    (tmp_path / "charts" / "forecast_errors.png").write_bytes(b"from an earlier run")
+    (tmp_path / "charts" / "mine.png").write_bytes(b"the analyst's own file")
     write_report(analysis, tmp_path)
+    assert not (tmp_path / "charts" / "forecast_errors.png").exists()
+    assert (tmp_path / "charts" / "mine.png").exists()
     result = json.loads((tmp_path / "report.json").read_text())
     assert set(result["report"]["charts"]) == {"series_regimes", "cusum", "growth_by_regime"}
     assert len(result["report"]["not_shown"]) == 3

@@ -90,6 +90,24 @@ def report_json(data, content: Content) -> dict:
     return result
 
 
+CHART_NAMES = ("series_regimes", "forecast_errors", "cusum", "history_sweep",
+               "accuracy_by_horizon", "growth_by_regime")
+TABLE_NAMES = ("growth_by_regime", "candidate_ranking", "forecast", "breaks")
+
+
+def _remove_stale(folder: Path, content: Content) -> None:
+    """Drop report files of an earlier run that this run did not write (only our own names),
+    so a folder never mixes two analyses."""
+    shown = {c.name for c in content.charts}
+    tabled = {t.name for t in content.tables}
+    for name in CHART_NAMES:
+        if name not in shown:
+            (folder / "charts" / f"{name}.png").unlink(missing_ok=True)
+    for name in TABLE_NAMES:
+        if name not in tabled:
+            (folder / "tables" / f"{name}.csv").unlink(missing_ok=True)
+
+
 def write_report(analysis, folder, *, source_name: str | None = None) -> dict:
     """Write the HTML report, charts, CSV tables, workbook and JSON for ``analysis`` into
     ``folder``; returns {output name: path}."""
@@ -115,4 +133,5 @@ def write_report(analysis, folder, *, source_name: str | None = None) -> dict:
                             f"report.json; tables as CSV in tables/ and in report.xlsx; charts "
                             f"as PNG in charts/.")
     written["html"] = write_atomic(folder / "report.html", page)
+    _remove_stale(folder, content)
     return {k: str(v) for k, v in written.items()}

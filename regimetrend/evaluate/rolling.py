@@ -150,6 +150,8 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
             progress(i + 1, O)
     origins = np.asarray(plan.origins)
     targets = origins[:, None] + np.arange(H)[None, :]
-    table = ErrorTable(tuple(s.key for s in strategies), origins, targets, values[targets],
-                       scale, **out, breaks_used=tuple(used))
+    arrays = dict(out, origins=origins, targets=targets, actual=values[targets], scale=scale)
+    for a in arrays.values():
+        a.setflags(write=False)  # the record of what was forecast is not to be edited
+    table = ErrorTable(tuple(s.key for s in strategies), breaks_used=tuple(used), **arrays)
     return table, tuple(used)

@@ -185,12 +185,55 @@ def test_planted_no_break_rejects_at_about_the_nominal_rate():
     assert 0.0 <= rejections / reps <= 0.12
 
 
-def test_generator_is_seeded_and_reproducible(tmp_path, monkeypatch):
+def _generator():
     spec = importlib.util.spec_from_file_location(
         "make_critical_values", os.path.join(ROOT, "tools", "make_critical_values.py"))
     gen = importlib.util.module_from_spec(spec)
-    monkeypatch.setitem(sys.modules, "make_critical_values", gen)  # workers pickle by name
     spec.loader.exec_module(gen)
+    return gen
+
+
+@pytest.mark.parametrize("family", ["linear", "quadratic"])
+def test_generator_prefix_sums_equal_explicit_regressions(family):
+    # The trend tables have no published counterpart, so the vectorised statistic is checked
+    # against explicit least-squares fits (numpy lstsq) of the same draws, position by position.
+    gen = _generator()
+    terms = 2 if family == "linear" else 3
+    h_min = 10
+    grams = {kind: gen._trend_setup(terms, kind, h_min) for kind in ("level", "slope", "both")}
+    paths, positions = gen._trend_chunk(np.random.default_rng(3), 2, terms, grams, h_min)
+    y = np.random.default_rng(3).standard_normal((2, gen.GRID_POINTS))
+    t = np.arange(gen.GRID_POINTS) / gen.GRID_POINTS
+    Z = np.column_stack([t ** p for p in range(terms)])
+
+    def ssr(X, v):
+        return float(np.sum((v - X @ np.linalg.lstsq(X, v, rcond=None)[0]) ** 2))
+
+    for kind, path in paths.items():
+        for j in (0, 1, 137, 500, positions.size - 1):
+            b = int(positions[j])
+            D = gen._break_columns(t, b, terms, kind)
+            for r in range(2):
+                explicit = (ssr(Z, y[r]) - ssr(np.column_stack([Z, D]), y[r])) / D.shape[1]
+                assert path[r, j] == pytest.approx(explicit, rel=1e-7, abs=1e-9), (kind, b)
+
+
+def test_generator_bridge_equals_mean_shift_regression():
+    # Stationary q = 1: Andrews' bridge functional is the mean-shift F statistic (sigma known).
+    gen = _generator()
+    paths, positions = gen._stationary_chunk(np.random.default_rng(4), 1, 10)
+    y = np.random.default_rng(4).standard_normal(gen.GRID_POINTS)
+    for j in (0, 400, positions.size - 1):
+        b = int(positions[j])
+        X = np.column_stack([np.ones(y.size), (np.arange(y.size) >= b).astype(float)])
+        gain = np.sum((y - y.mean()) ** 2) - np.sum(
+            (y - X @ np.linalg.lstsq(X, y, rcond=None)[0]) ** 2)
+        assert paths["stationary-q1"][0, j] == pytest.approx(gain, rel=1e-8)
+
+
+def test_generator_is_seeded_and_reproducible(tmp_path, monkeypatch):
+    gen = _generator()
+    monkeypatch.setitem(sys.modules, "make_critical_values", gen)  # workers pickle by name
     out1, out2 = tmp_path / "a.json", tmp_path / "b.json"
     for out in (out1, out2):
         gen.main(["--draws", "400", "--workers", "1", "--out", str(out),

@@ -79,8 +79,12 @@ def changing_count(model: str) -> int:
     return {"level": 1, "slope": terms - 1, "both": terms}[kind]
 
 
-def _break_columns(t: np.ndarray, b: int, terms: int, kind: str) -> np.ndarray:
+def _break_columns(t: np.ndarray, b: int, terms: int, kind: str,
+                   before: bool = False) -> np.ndarray:
+    """Break columns D_b of a kind; with ``before`` the same polynomials on the periods < b."""
     after = (np.arange(t.size) >= b).astype(float)
+    if before:
+        after = 1.0 - after
     d = (t - t[b]) * after
     if kind == "level":
         return after[:, None]
@@ -99,17 +103,25 @@ BLOCKS = 8  # draws of a family are simulated in independently seeded blocks
 
 @lru_cache(maxsize=None)
 def _trend_setup(terms: int, kind: str, h_min: int):
-    """Deterministic parts for one kind: inverse Gram matrices of M_Z D_b per position."""
+    """Deterministic parts for one kind: inverse Gram matrices of M_Z D_b per position.
+
+    D_b = P_b - E_b with P_b = (t - t_b)^p on all periods (a polynomial inside the span of Z)
+    and E_b its part before b, so M_Z D_b = -M_Z E_b. Early positions use E_b (short support),
+    late ones D_b itself, and the projection is by QR: no cancellation at either edge.
+    """
     T = GRID_POINTS
     t = np.arange(T) / T
     Z = np.column_stack([t ** p for p in range(terms)])
-    ztz_inv = np.linalg.inv(Z.T @ Z)
+    Q, _ = np.linalg.qr(Z)
     positions = np.arange(h_min, T - h_min + 1)
     grams = []
     for b in positions:
         D = _break_columns(t, b, terms, kind)
-        zd = Z.T @ D
-        grams.append(D.T @ D - zd.T @ ztz_inv @ zd)
+        if b < T // 2:
+            D = _break_columns(t, b, terms, kind, before=True)
+        D = D - Q @ (Q.T @ D)
+        D = D - Q @ (Q.T @ D)  # second pass: re-orthogonalisation
+        grams.append(D.T @ D)
     return np.linalg.inv(np.array(grams))
 
 
@@ -123,11 +135,19 @@ def _trend_chunk(rng, n_draws, terms, gram_invs, h_min):
     positions = np.arange(h_min, T - h_min + 1)
     y = rng.standard_normal((n_draws, T))
     e = y - (y @ Z) @ ztz_inv @ Z.T  # residuals M_Z y
-    # Suffix sums S_j(b) = sum_{i >= b} e_i t_i^j for j = 0..terms-1.
-    suffix = [np.cumsum((e * t ** j)[:, ::-1], axis=1)[:, ::-1][:, positions]
-              for j in range(terms)]
+    # S_j(b) = sum_{i >= b} e_i t_i^j for late positions (suffix sums); for early ones the
+    # prefix sums sum_{i < b} e_i t_i^j, equal to -S_j(b) because e is orthogonal to Z. The
+    # common sign flip leaves the quadratic form unchanged and avoids cancellation.
+    early = positions < T // 2
+    weighted = [e * t ** j for j in range(terms)]
+    suffix = []
+    for w in weighted:
+        late_sums = np.cumsum(w[:, ::-1], axis=1)[:, ::-1][:, positions]
+        early_sums = np.concatenate([np.zeros((w.shape[0], 1)), np.cumsum(w, axis=1)],
+                                    axis=1)[:, positions]
+        suffix.append(np.where(early, early_sums, late_sums))
     tb = t[positions]
-    # sum_{i >= b} e_i (t_i - t_b)^p by the binomial expansion
+    # sum over the same side of e_i (t_i - t_b)^p by the binomial expansion
     centred = {p: sum(comb(p, j) * (-tb) ** (p - j) * suffix[j] for j in range(p + 1))
                for p in range(1, terms)}
     columns = {"level": [suffix[0]],

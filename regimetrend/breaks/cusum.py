@@ -4,8 +4,9 @@
     w_r = (y_r - x_r' b_{r-1}) / sqrt(1 + x_r' (X_{r-1}' X_{r-1})^-1 x_r)
 are one-step-ahead prediction errors of the trend fitted to the periods before r, standardised
 so that they are independent N(0, sigma^2) when the trend is stable. The path
-W_r = sum_{j <= r} w_j / sigma_hat, with sigma_hat^2 = sum w_j^2 / m = SSR / (n - k) of the full
-fit (as in Brown, Durbin and Evans), is compared with the straight-line boundaries
+W_r = sum_{j <= r} w_j / sigma_hat, with sigma_hat^2 = sum w_j^2 / m (which is SSR / (n - k) of
+the full fit when the recursion starts at k, as in Brown, Durbin and Evans; statsmodels uses the
+sample variance of the w_j instead), is compared with the straight-line boundaries
     +- a (sqrt(m) + 2 (r - r0) / sqrt(m)),   a = 0.850 / 0.948 / 1.143 at 10% / 5% / 1%,
 m the number of recursive residuals and r0 the number of periods used to start the recursion
 (k, or more if the first k rows are singular, e.g. with seasonal terms). The first crossing is

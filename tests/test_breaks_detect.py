@@ -304,3 +304,24 @@ def test_result_pickles_and_repeats_exactly():
     nile = rseries("Nile", "year")
     a, b = detect_breaks(nile), detect_breaks(nile)
     assert pickle.loads(pickle.dumps(a)).to_dict() == a.to_dict() == b.to_dict()
+
+
+def test_seasons_by_regime_break_is_the_brute_force_optimum():
+    # Reference library: statsmodels OLS with regime-specific trends and season effects.
+    import statsmodels.api as sm
+
+    from regimetrend.breaks.problem import build_problem
+    from regimetrend.design import TrendSpec
+
+    rng = np.random.default_rng(29)
+    n = 60
+    t = np.arange(n, dtype=float)
+    swing = np.where(t < 36, 1.0, 3.0) * np.where(t % 4 == 2, 1.0, -1.0 / 3)
+    series = _quarterly(10 + 0.1 * t + swing + rng.normal(0, 0.3, n))
+    result = detect_breaks(series, seasonality="dummies", kind="both", max_breaks=1,
+                           seasonal_by_regime=True)
+    problem = build_problem(series, TrendSpec("linear", "dummies", 4), True, None)
+    ssr = {b: sm.OLS(problem.y, problem.design("both", [b])).fit().ssr
+           for b in range(problem.h, n - problem.h + 1)}
+    assert result.positions == (min(ssr, key=ssr.get),)
+    assert abs(result.positions[0] - 36) <= 2

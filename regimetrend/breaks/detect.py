@@ -137,8 +137,13 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
         notes.append(f"Series of {exact.PELT_LENGTH} periods or more are searched by PELT with "
                      f"a BIC-matched penalty; only that break count is evaluated.")
     if not proven and path.method != "pelt":
-        notes.append("More than two breaks of a tied kind: the break set is a local optimum "
-                     "(one break moved at a time), not a proven global one.")
+        if chosen_kind == "both":
+            notes.append("Seasonal terms shared by the regimes: the breaks are the settled "
+                         "point of the seasonal/trend back-and-forth (exact given the seasonal "
+                         "pattern), not a proven joint optimum.")
+        else:
+            notes.append("More than two breaks of a tied kind: the break set is a local "
+                         "optimum (one break moved at a time), not a proven global one.")
     if not path.settled:
         notes.append(f"The seasonal pattern and the breaks did not settle within "
                      f"{path.iterations} rounds; the last round is reported.")

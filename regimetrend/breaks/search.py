@@ -66,7 +66,9 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
         else:
             path = exact.exact_search(cost, max_breaks, h)
             sets = list(path.positions)
-            flags = [True] * len(sets)
+            # With a shared seasonal pattern the search is exact given that pattern; the
+            # joint optimum is only reached as the iteration's fixed point.
+            flags = [True] + [not shared] * (len(sets) - 1)
         ssr, seasons = [], []
         for pos in sets:
             s, part = _joint_ssr(problem, "both", pos)

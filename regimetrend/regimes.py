@@ -14,8 +14,8 @@ positions ``o..`` with 80% and 95% prediction intervals in original units.
 - ``truncated``: the trend fitted only on the history from a start: the last detected break, a
   user event, or a fixed start of the history sweep.
 - ``continuous``: a piecewise trend joined at the breaks (hinge terms ``max(t - b, 0)`` on the
-  time index, zero up to the break; quadratic pieces add squared hinges), so the slope changes at a break but the
-  trend has no jump.
+  time index, zero up to the break; quadratic pieces add squared hinges), so the slope changes
+  at a break but the trend has no jump.
 - ``window-average``: the average of the forecasts of the same trend fitted on several
   estimation windows that all end at the origin (Pesaran and Pick, 2011), a hedge when the
   break date is uncertain. Interval ends are averaged quantile by quantile (quantile averaging).
@@ -142,15 +142,20 @@ class PiecewiseFit(TrendFit):
     shapes: tuple[str, ...] = ()
     scales: tuple[TimeScale, ...] = field(default=())
 
-    def design(self, positions) -> np.ndarray:
+    def trend_design(self, positions) -> np.ndarray:
         positions = np.asarray(positions, dtype=float)
         if self.layout == "separate":
-            X = separate_columns(positions, self.knots, self.shapes, self.scales)
-        else:
-            X = continuous_columns(positions, self.knots, self.spec.shape, self.scale)
+            return separate_columns(positions, self.knots, self.shapes, self.scales)
+        return continuous_columns(positions, self.knots, self.spec.shape, self.scale)
+
+    def design(self, positions, seasonal=None) -> np.ndarray:
+        """Design rows at ``positions``; ``seasonal`` may pass their seasonal columns in."""
+        X = self.trend_design(positions)
         if self.spec.seasonality == "dummies":
-            X = np.hstack([X, seasonal_columns(positions.astype(int), self.first_season,
-                                               self.spec.season_length)])
+            if seasonal is None:
+                seasonal = seasonal_columns(np.asarray(positions, dtype=int), self.first_season,
+                                            self.spec.season_length)
+            X = np.hstack([X, seasonal])
         return X
 
 
@@ -301,7 +306,8 @@ class OriginFits:
                        for i in range(len(bounds) - 1))
         proto = PiecewiseFit(spec, positions, self.first_season, scale, None, pattern,
                              layout, knots, shapes, scales)
-        X = proto.design(positions)
+        X = proto.design(positions, self._seasonal(0, self.origin)
+                         if spec.seasonality == "dummies" else None)
         try:
             result = ols.fit(X, y)
         except ols.RankDeficient as exc:
@@ -330,7 +336,13 @@ class OriginFits:
             key = (name, strategy.shape, strategy.last_shape or strategy.shape, "fc", horizon)
             if key not in self._forecasts:
                 fit = self.piecewise(name, strategy.shape, strategy.last_shape)
-                self._forecasts[key] = forecast_points(fit, positions)
+                X_new = None
+                if isinstance(fit, PiecewiseFit):
+                    X_new = fit.design(positions, self._seasonal(self.origin, self.origin + horizon)
+                                       if fit.spec.seasonality == "dummies" else None)
+                elif fit.spec.seasonality != "adjust":
+                    X_new = self._design(fit.spec, fit.scale, self.origin, self.origin + horizon)
+                self._forecasts[key] = forecast_points(fit, positions, X_new)
             return self._forecasts[key]
         return self.window_average(strategy.shape, positions)
 

@@ -1,4 +1,5 @@
-"""``regimetrend compare FILE``: regime-aware candidates against one global trend, rolling origin."""
+"""``regimetrend compare FILE``: regime-aware candidates against one global trend on a rolling
+origin."""
 
 from __future__ import annotations
 

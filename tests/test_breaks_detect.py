@@ -325,3 +325,12 @@ def test_seasons_by_regime_break_is_the_brute_force_optimum():
            for b in range(problem.h, n - problem.h + 1)}
     assert result.positions == (min(ssr, key=ssr.get),)
     assert abs(result.positions[0] - 36) <= 2
+
+
+def test_exact_fits_are_not_split_by_rounding_noise():
+    line = _annual(1.0 + 2.0 * np.arange(40))
+    assert detect_breaks(line).n_breaks == 0
+    step = detect_breaks(_annual(np.r_[np.zeros(20), np.ones(20)]), kind="level")
+    assert step.positions == (20,)
+    assert step.tests.supf.p_value == 0.0
+    assert step.breaks[0].ci95 == (20, 20) or step.breaks[0].ci95[0] <= 20 <= step.breaks[0].ci95[1]

@@ -176,7 +176,8 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
 # -- choosing ----------------------------------------------------------------------------------
 def _criterion_values(problem: BreakProblem, path: KindPath, score: str) -> list[float]:
     base, q = problem.base_count, problem.changing(path.kind)
-    return select.criterion_path(path.ssr, problem.n, base, q, score)
+    return select.criterion_path(path.ssr, problem.n, base, q, score,
+                                 select.exact_fit_floor(problem.y))
 
 
 def _choose(values: dict, kinds) -> tuple[str, int]:
@@ -214,10 +215,12 @@ def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int
         if where is None:
             break
         k_large = problem.base_count + (l + 1) * q
-        stat = select.f_statistic(before, after, q, problem.n, k_large)
+        stat = select.f_statistic(before, after, q, problem.n, k_large,
+                                  select.exact_fit_floor(problem.y))
         p = None
-        if not problem.seasonal_by_regime and math.isfinite(stat):
-            p = critical.sequential_pvalue(stat, key, min(max(share, 1e-3), 0.49), l)
+        if not problem.seasonal_by_regime and not math.isnan(stat):
+            p = 0.0 if math.isinf(stat) else \
+                critical.sequential_pvalue(stat, key, min(max(share, 1e-3), 0.49), l)
         steps.append(SequentialStep(l, stat, p, where))
         if p is None or p >= select.SEQUENTIAL_LEVEL:
             break
@@ -231,8 +234,7 @@ def _supf(problem: BreakProblem, kind: str, steps) -> SupFTest:
         return SupFTest(math.nan, None, None, key, problem.h / problem.n)
     stat = steps[0].statistic
     crit = None if problem.seasonal_by_regime else critical.supf_critical(key, share, 0.95)
-    p = None if problem.seasonal_by_regime or not math.isfinite(stat) else \
-        critical.supf_pvalue(stat, key, share)
+    p = steps[0].p_value  # the first sequential step is sup-F(1|0)
     return SupFTest(stat, p, crit, key, problem.h / problem.n)
 
 
@@ -295,6 +297,8 @@ def _profile_interval(problem: BreakProblem, kind: str, positions, i: int, fit):
     hi = positions[i + 1] - h if i + 1 < len(positions) else n - h
     _, _, cand, prof = kinks.best_single(problem.y, problem.base, terms, lo, hi, others)
     sigma2 = fit.ssr / max(fit.df_resid, 1)
+    if fit.ssr <= select.exact_fit_floor(problem.y):  # exact fit: the date is exact too
+        return {0.90: (positions[i], positions[i]), 0.95: (positions[i], positions[i])}
     return intervals.profile_interval(prof, cand, sigma2, (0.90, 0.95))
 
 
@@ -302,7 +306,8 @@ def _partial_f(problem: BreakProblem, kind: str, positions, i: int, fit) -> floa
     others = list(positions[:i]) + list(positions[i + 1:])
     restricted = problem.fit(kind, others)
     q = problem.changing(kind)
-    return select.f_statistic(restricted.ssr, fit.ssr, q, problem.n, fit.k)
+    return select.f_statistic(restricted.ssr, fit.ssr, q, problem.n, fit.k,
+                              select.exact_fit_floor(problem.y))
 
 
 def _segment(series, problem: BreakProblem, kind: str, positions, j: int, fit) -> Segment:

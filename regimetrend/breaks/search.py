@@ -74,9 +74,12 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
             s, part = _joint_ssr(problem, "both", pos)
             ssr.append(s)
             seasons.append(part)
-        values = select.criterion_path(ssr, n, base, changing, criterion) if not use_pelt else \
-            [select.bic(s, n, select.parameter_count(base, changing, len(p)))
-             for s, p in zip(ssr, sets)]
+        floor = select.exact_fit_floor(problem.y)
+        if use_pelt:
+            values = [select.bic(max(s, floor), n, select.parameter_count(base, changing, len(p)))
+                      for s, p in zip(ssr, sets)]
+        else:
+            values = select.criterion_path(ssr, n, base, changing, criterion, floor)
         pick = select.best_count(values)
         if not shared or sets[pick] == chosen:
             settled = True

@@ -62,10 +62,23 @@ def lwz(ssr: float, n: int, p: int) -> float:
     return math.log(max(ssr, 1e-300) / (n - p)) + p * LWZ_C0 * math.log(n) ** (2 + LWZ_D0) / n
 
 
-def criterion_path(ssr_path, n: int, base: int, changing: int, criterion: str) -> list[float]:
-    """Criterion value for each m = 0..M (``bic`` or ``lwz``; ``sequential`` is scored by BIC)."""
+def criterion_path(ssr_path, n: int, base: int, changing: int, criterion: str,
+                   floor: float = 0.0) -> list[float]:
+    """Criterion value for each m = 0..M (``bic`` or ``lwz``; ``sequential`` is scored by BIC).
+
+    SSRs below ``floor`` count as ``floor``: a fit that is exact up to rounding cannot be
+    improved by a break, and rounding noise must not pick one (see ``exact_fit_floor``)."""
     score = lwz if criterion == "lwz" else bic
-    return [score(s, n, parameter_count(base, changing, m)) for m, s in enumerate(ssr_path)]
+    return [score(max(s, floor), n, parameter_count(base, changing, m))
+            for m, s in enumerate(ssr_path)]
+
+
+def exact_fit_floor(y) -> float:
+    """SSR below which a trend fit is exact up to rounding: 1e-12 of the total sum of squares
+    about the mean plus 1e-24 of the raw sum of squares (rounding noise of an exact fit is about
+    1e-32 of the latter)."""
+    y = np.asarray(y, dtype=float)
+    return 1e-12 * float(((y - y.mean()) ** 2).sum()) + 1e-24 * float((y * y).sum()) + 1e-300
 
 
 def best_count(values) -> int:
@@ -85,11 +98,14 @@ def sequential_count(p_values, level: float = SEQUENTIAL_LEVEL) -> int:
     return m
 
 
-def f_statistic(ssr_small: float, ssr_large: float, changing: int, n: int, k_large: int
-                ) -> float:
-    """F-scale statistic ((SSR_l - SSR_l+1) / q) / (SSR_l+1 / (n - k_l+1))."""
+def f_statistic(ssr_small: float, ssr_large: float, changing: int, n: int, k_large: int,
+                floor: float = 0.0) -> float:
+    """F-scale statistic ((SSR_l - SSR_l+1) / q) / (SSR_l+1 / (n - k_l+1)); 0 when the smaller
+    model already fits exactly (SSR at or below ``floor``)."""
     if not (np.isfinite(ssr_small) and np.isfinite(ssr_large)) or n - k_large <= 0:
         return math.nan
-    if ssr_large <= 0:
+    if ssr_small <= floor:
+        return 0.0
+    if ssr_large <= floor:
         return math.inf
     return max(ssr_small - ssr_large, 0.0) / changing / (ssr_large / (n - k_large))

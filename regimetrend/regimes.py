@@ -326,11 +326,8 @@ class OriginFits:
         if name == "global":
             return self.trend_forecast(strategy.shape, 0, positions)
         if name == "truncated":
-            start = strategy.start
-            if start is None:
-                start = self.latest_start(strategy.shape, strategy.from_break)
-            elif self.origin - start < self.spec_for(strategy.shape).minimum_points():
-                start = 0  # the fixed start is too recent for this origin: all history
+            # a fixed start too recent for this origin falls back to all history
+            (start,) = self.single_starts(strategy)
             return self.trend_forecast(strategy.shape, start, positions)
         if name in ("separate", "continuous"):
             key = (name, strategy.shape, strategy.last_shape or strategy.shape, "fc", horizon)
@@ -345,6 +342,29 @@ class OriginFits:
                 self._forecasts[key] = forecast_points(fit, positions, X_new)
             return self._forecasts[key]
         return self.window_average(strategy.shape, positions)
+
+    def single_starts(self, strategy: Strategy) -> tuple[int, ...]:
+        """Starts of the single trends a strategy forecasts from (empty for joint fits)."""
+        if strategy.name == "global":
+            return (0,)
+        if strategy.name == "truncated":
+            if strategy.start is None:
+                return (self.latest_start(strategy.shape, strategy.from_break),)
+            if self.origin - strategy.start < self.spec_for(strategy.shape).minimum_points():
+                return (0,)
+            return (strategy.start,)
+        if strategy.name == "window-average":
+            return self.window_starts_for(strategy.shape)
+        return ()
+
+    def prefit(self, strategies, horizon: int) -> None:
+        """Fit every single trend the strategies need, one batched QR per shape."""
+        positions = np.arange(self.origin, self.origin + horizon)
+        wanted: dict = {}
+        for st in strategies:
+            wanted.setdefault(st.shape, set()).update(self.single_starts(st))
+        for shape, starts in wanted.items():
+            self.prefit_windows(shape, sorted(starts), positions)
 
     def prefit_windows(self, shape: str, starts, positions) -> None:
         """Fit the single trends of several window starts in one batched QR (see

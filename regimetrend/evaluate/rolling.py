@@ -139,6 +139,7 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
         fits = OriginFits(values[:o], first_season, seasonality, season_length, known,
                           window_starts, block)
         scale[i] = naive_scale(values[:o], season_length)
+        fits.prefit(strategies, H)
         for c, strategy in enumerate(strategies):
             p = fits.forecast(strategy, H)
             out["forecast"][c, i] = p.mean

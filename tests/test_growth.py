@@ -252,3 +252,13 @@ def test_growth_table_reads_an_analysis_and_a_breakset():
     assert again is computed
     direct = growth_table(s, spec, breakset, kind="both")
     assert direct.kind == "both" and direct.changes[0].p_value is not None
+
+
+def test_growth_table_pickles_for_portfolio_runs():
+    import pickle
+
+    s = _rseries("JohnsonJohnson", "quarter", "1960-01-01")
+    g = regime_growth(s, TrendSpec("exponential", "dummies", 4), [40])
+    back = pickle.loads(pickle.dumps(g))
+    assert back.to_dict() == g.to_dict()
+    assert np.array_equal(back.fitted, g.fitted)

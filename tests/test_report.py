@@ -283,8 +283,14 @@ def test_a_report_without_evaluation_or_breaks_says_what_is_missing(tmp_path):
     spec = resolve_spec(series, shape="exponential")
     forecast = trend_forecast(series, spec, 6)
     growth = regime_growth(series, spec)
+    from regimetrend.breaks.cusum import recursive_cusum
+    from regimetrend.forecast import fit_history
+
+    fit = fit_history(series, spec)
+    cusum = recursive_cusum(fit.fit.X @ fit.fit.beta + fit.fit.residuals, fit.fit.X).to_dict()
     analysis = SimpleNamespace(series=series, spec=spec, breaks=None, evaluation=None,
                                growth=growth, forecast=forecast, global_forecast=forecast,
+                               global_fitted=fit.fitted(), cusum=cusum,
                                cautions=("the series is short",),
                                to_dict=lambda: {"growth": growth.to_dict(),
                                                 "forecast": forecast.to_dict()})

@@ -1,21 +1,12 @@
-"""Options shared by several commands, and safe output helpers.
-
-Outputs are written to a temporary file in the target folder and renamed into place, so a
-failure never leaves a half-written file and the input is never touched.
-"""
+"""Options shared by several commands."""
 
 from __future__ import annotations
 
 import argparse
-import json
-import math
-import os
-import tempfile
 from pathlib import Path
 
-import numpy as np
-
 from ..errors import InputError
+from ..output import dumps, json_safe, write_atomic  # noqa: F401  (re-exported for commands)
 
 
 def add_input_options(p) -> None:
@@ -51,8 +42,9 @@ def add_break_options(p) -> None:
                    help="a known event date to test as a break (repeatable)")
     p.add_argument("--trim", type=_trim, default=None,
                    help="shortest regime: a share of the series (below 1) or a number of periods")
-    p.add_argument("--criterion", default="bic", choices=("bic", "lwz", "sequential"),
-                   help="how the number of breaks is chosen (default bic)")
+    p.add_argument("--criterion", default="sequential", choices=("sequential", "bic", "lwz"),
+                   help="how the number of breaks is chosen: sequential sup-F tests at 5%% "
+                        "(default), or the BIC or LWZ information criterion")
     p.add_argument("--seasonal-by-regime", action="store_true",
                    help="let the seasonal pattern change at each break too")
 
@@ -107,50 +99,6 @@ def model_from_args(args, series):
 
     return resolve_spec(series, shape=args.shape, seasonality=args.seasonality,
                         season_length=args.season_length)
-
-
-def json_safe(obj):
-    """Plain JSON types: NaN and infinities become null, numpy scalars become Python ones."""
-    if isinstance(obj, dict):
-        return {str(k): json_safe(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [json_safe(v) for v in obj]
-    if isinstance(obj, np.ndarray):
-        return [json_safe(v) for v in obj.tolist()]
-    if isinstance(obj, (np.floating, float)):
-        v = float(obj)
-        return v if math.isfinite(v) else None
-    if isinstance(obj, np.integer):
-        return int(obj)
-    if isinstance(obj, np.bool_):
-        return bool(obj)
-    if isinstance(obj, np.datetime64):
-        return str(obj.astype("datetime64[D]"))
-    return obj
-
-
-def dumps(obj) -> str:
-    return json.dumps(json_safe(obj), indent=2, allow_nan=False)
-
-
-def write_atomic(path, data) -> Path:
-    """Write text or bytes to ``path`` through a temporary file renamed into place."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    mode = "wb" if isinstance(data, (bytes, bytearray)) else "w"
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
-    try:
-        with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})) as fh:
-            fh.write(data)
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes files private; outputs are ordinary files
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-    return path
 
 
 def check_output_folder(folder) -> Path:

@@ -1,10 +1,8 @@
 """What the report reads from an ``Analysis``, gathered in one place as plain values.
 
-The report never computes statistics: it reads the results of the stages before it. The one
-exception is the in-sample line of the global trend for the first chart, refitted here with the
-same spec when the analysis does not carry it (a plotting aid, the same model as the global
-forecast). Everything is read defensively so a missing stage (a series too short for the rolling
-origin, say) drops the parts of the report that need it instead of failing.
+The report never computes statistics: it reads the results of the stages before it. A stage
+that is missing (a series too short for the rolling origin, say) drops the parts of the report
+that need it, and the page says so, instead of failing.
 """
 
 from __future__ import annotations
@@ -122,27 +120,10 @@ def _sup_f(breakset) -> float | None:
         return None
 
 
-def _cusum(analysis, breakset, series: Series, spec) -> dict | None:
-    """The CUSUM path with its band: carried by the analysis or the break search when they have
-    it, else drawn again with the break search's own CUSUM function on the global trend (the
-    same fit whose drift the break search reports)."""
-    for holder, name in ((analysis, "cusum"), (breakset, "cusum_path"), (breakset, "drift")):
-        d = _to_dict(_get(holder, name))
-        if isinstance(d, dict) and "path" in d:
-            return d
-    if spec is None:
-        return None
-    from ..breaks import cusum
-    from ..forecast import fit_history
-
-    fit = fit_history(series, spec).fit
-    y = fit.X @ fit.beta + fit.residuals
-    method = str(_get(_get(breakset, "drift"), "method") or "recursive")
-    try:
-        path = (cusum.ols_cusum if "ols" in method.lower() else cusum.recursive_cusum)(y, fit.X)
-    except (ValueError, np.linalg.LinAlgError):  # InputError is a ValueError; the report
-        return None  # then says the chart is missing
-    return path.to_dict()
+def _cusum(analysis) -> dict | None:
+    """The CUSUM path of the global trend with its band, as the analysis computed it."""
+    d = _to_dict(_get(analysis, "cusum"))
+    return d if isinstance(d, dict) and "path" in d else None
 
 
 def _fitted(line, n: int):
@@ -164,10 +145,6 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
     ev_dict = _to_dict(evaluation)
     rec = _get(_get(evaluation, "recommended"), "name")
     global_fitted = _fitted(_get(analysis, "global_fitted"), series.n)
-    if global_fitted is None and spec is not None:
-        from ..forecast import fit_history
-
-        global_fitted = fit_history(series, spec).fitted()
     regime_fitted = _fitted(_get(growth_obj, "fitted"), series.n)
     cautions = tuple(str(c) for c in (_get(analysis, "cautions") or ()))
     return ReportData(
@@ -176,7 +153,7 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
         units=_get(analysis, "units") or series.name,
         result=_to_dict(analysis) or {}, growth=_to_dict(growth_obj), growth_obj=growth_obj,
         breaks=_breaks(breakset, series), breaks_dict=_to_dict(breakset),
-        sup_f_p=_sup_f(breakset), cusum=_cusum(analysis, breakset, series, spec),
+        sup_f_p=_sup_f(breakset), cusum=_cusum(analysis),
         evaluation=ev_dict,
         evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
         reference=_get(evaluation, "reference"), recommended=rec,

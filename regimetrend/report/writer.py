@@ -15,7 +15,7 @@ import csv
 import io
 from pathlib import Path
 
-from ..cli.options import dumps, write_atomic
+from ..output import dumps, write_atomic
 from . import html
 from .content import Content, build
 from .extract import gather

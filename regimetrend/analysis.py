@@ -39,7 +39,7 @@ class Analysis:
         return self.evaluation.recommended
 
     def to_dict(self) -> dict:
-        from .cli.options import json_safe
+        from .output import json_safe
 
         breaks = self.breaks.to_dict()
         growth = self.growth.to_dict()
@@ -82,18 +82,13 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
                             settings.trim, settings.criterion, settings.events,
                             spec.season_length, settings.seasonal_by_regime)
     breaks = detect(series, True)
-
-    def detector(history, with_events):
-        # The full-sample search is done once; shortened histories are searched afresh.
-        return breaks if history.n == series.n else detect(history, with_events)
-
     evaluation = compare(series, shape=spec.shape, seasonality=spec.seasonality,
                          season_length=spec.season_length, kind=settings.kind,
                          max_breaks=settings.max_breaks, trim=settings.trim,
                          criterion=settings.criterion, events=settings.events,
                          seasonal_by_regime=settings.seasonal_by_regime, horizon=horizon,
                          first_origin=settings.first_origin, step=settings.step,
-                         reuse_breaks=settings.reuse_breaks, detector=detector)
+                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks)
     chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
     forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
     global_forecast = trend_forecast(series, spec, horizon)

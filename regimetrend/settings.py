@@ -36,7 +36,7 @@ class Settings:
     kind: str = "auto"
     max_breaks: int = 3
     trim: float | int | None = None
-    criterion: str = "bic"
+    criterion: str = "sequential"
     events: tuple[str, ...] = ()
     seasonal_by_regime: bool = False
     horizon: int | None = None

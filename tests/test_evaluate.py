@@ -261,7 +261,7 @@ def test_one_shared_table_gives_each_origins_own_search(shape, seasonality, by_r
     got = origin_breaks(s, origins, spec, 2, trim, "bic", by_regime)
     for o in origins:
         ref = detect_breaks(s.head(o), shape=shape, seasonality=seasonality, kind="both",
-                            max_breaks=2, trim=trim, season_length=12,
+                            max_breaks=2, trim=trim, season_length=12, criterion="bic",
                             seasonal_by_regime=by_regime)
         assert got[o] == tuple(ref.positions), o
 

@@ -51,7 +51,7 @@ def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, 
 
 
 def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind: str = "auto",
-                  max_breaks: int = 3, trim=None, criterion: str = "bic", events=(),
+                  max_breaks: int = 3, trim=None, criterion: str = "sequential", events=(),
                   season_length: int | None = None, seasonal_by_regime: bool = False,
                   method: str = "auto") -> BreakSet:
     """Breaks in the trend of ``series``; see the module docstring for the flow.
@@ -117,10 +117,14 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
     score_name = "lwz" if criterion == "lwz" else "bic"
     values = {k: _criterion_values(problem, p, score_name) for k, p in paths.items()}
     chosen_kind, m = _choose(values, kinds)
+    seq_fallback = False
     if criterion == "sequential":
         seq = _sequential(problem, chosen_kind, paths[chosen_kind], M)
-        m = min(select.sequential_count([st.p_value for st in seq]),
-                len(paths[chosen_kind].ssr) - 1)
+        if seq and seq[0].p_value is None:
+            seq_fallback = True  # no table for this model: keep the BIC's count
+        else:
+            m = min(select.sequential_count([st.p_value for st in seq]),
+                    len(paths[chosen_kind].ssr) - 1)
     path = paths[chosen_kind]
     positions = tuple(path.positions[m]) if m < len(path.positions) else ()
     if not positions:
@@ -130,6 +134,9 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
                  else _sequential(problem, chosen_kind, path, max(min(M, len(path.ssr) - 1), 1)))
     proven = bool(path.exact[m]) if m < len(path.exact) else False
     notes = [CAUTION_TESTS]
+    if seq_fallback:
+        notes.append("The sequential tests have no p-values for this model, so the number of "
+                     "breaks was chosen by the BIC.")
     if problem.seasonal_by_regime:
         notes.append("Seasonal terms change with the regime: the sup-F table covers trend "
                      "changes only, so no p-value is given for it.")
@@ -410,9 +417,17 @@ _CUSUM_NAMES = {"recursive": "CUSUM of recursive residuals (Brown, Durbin and Ev
 
 
 def _drift(series, cusums) -> Drift | None:
-    """The earliest period where either CUSUM path of the global trend leaves its 5% band."""
-    crossings = [(int(c.first_crossing), c.method) for c in cusums if c.first_crossing is not None]
-    if not crossings:
-        return None
-    p, method = min(crossings)
-    return Drift(p, series.iso(p), series.label(p), _CUSUM_NAMES[method])
+    """Where the global trend started to drift: the first period where the CUSUM of its
+    recursive residuals leaves the 5% band.
+
+    The recursive residuals are one-step-ahead errors of the trend fitted on the history up to
+    each period, so their CUSUM dates the first period the trend known so far stopped
+    forecasting well. The OLS-based CUSUM cumulates residuals of the fit to all data, which a
+    late break bends from the start, so its crossing says little about when: it is used only
+    when the recursive path stays inside its band."""
+    by_method = {c.method: c for c in cusums if c.first_crossing is not None}
+    for method in ("recursive", "ols"):
+        if method in by_method:
+            p = int(by_method[method].first_crossing)
+            return Drift(p, series.iso(p), series.label(p), _CUSUM_NAMES[method])
+    return None

@@ -28,7 +28,7 @@ __all__ = ["compare", "Evaluation", "break_detector"]
 
 
 def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3, trim=None,
-                   criterion="bic", events=(), season_length=None, seasonal_by_regime=False):
+                   criterion="sequential", events=(), season_length=None, seasonal_by_regime=False):
     """A callable series -> BreakSet running the break search with these settings.
 
     The analyst's events are only Chow-tested by the search (they do not move the breaks), so
@@ -105,10 +105,10 @@ def _origin_breaks(series, plan, full, detector, own_search, reuse_breaks, spec,
 
 def compare(series, shape: str = "linear", seasonality: str = "auto",
             season_length: int | None = None, kind: str = "auto", max_breaks: int = 3,
-            trim=None, criterion: str = "bic", events=(), seasonal_by_regime: bool = False,
+            trim=None, criterion: str = "sequential", events=(), seasonal_by_regime: bool = False,
             horizon: int | None = None, first_origin: int | None = None, step: int = 1,
             reuse_breaks: bool = False, shapes=None, window_count: int = 10,
-            detector=None, progress=None) -> Evaluation:
+            detector=None, progress=None, full_breaks=None) -> Evaluation:
     """Rolling-origin comparison of every candidate against the global ``shape`` trend.
 
     ``shape`` is the analyst's shape: it sets the reference (global) trend, the break search
@@ -119,7 +119,9 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     ``reuse_breaks`` reuses the full-sample breaks at every origin: the results are then
     labelled optimistic. ``detector(series, with_events)`` -> BreakSet replaces the default
     break search (``with_events`` is False on the shortened histories of the origins);
-    ``progress(done, total)`` is called after each origin."""
+    ``progress(done, total)`` is called after each origin. ``full_breaks`` is the break search
+    already run on the whole series with these settings (``analyze`` passes it to avoid running
+    it twice); the origins are still searched afresh."""
     spec = resolve_spec(series, shape=shape, seasonality=seasonality, season_length=season_length)
     s = spec.season_length
     cautions = []
@@ -142,7 +144,7 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     w_min = max(min_points, 2 * s if spec.seasonality != "none" else 0, 8)
     plan = plan_origins(series.n, H, w_min, first_origin, step)
 
-    full = detector(series, True)
+    full = full_breaks if full_breaks is not None else detector(series, True)
     breaks_at, failed = _origin_breaks(series, plan, full, detector, own_search, reuse_breaks,
                                        spec, kind, max_breaks, trim, criterion,
                                        seasonal_by_regime)

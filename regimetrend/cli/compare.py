@@ -16,17 +16,7 @@ def register(sub) -> None:
     options.add_input_options(p)
     options.add_model_options(p)
     options.add_break_options(p)
-    p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
-                   help="forecast horizons 1..H scored at every origin (default: one seasonal "
-                        "cycle, at least 4)")
-    p.add_argument("--first-origin", type=options._positive_int, default=None, metavar="N",
-                   help="periods known at the first origin (default: the later of half the "
-                        "series and the start of the last 24 origins)")
-    p.add_argument("--step", type=options._positive_int, default=1, metavar="K",
-                   help="periods between origins (default 1)")
-    p.add_argument("--reuse-breaks", action="store_true",
-                   help="reuse the full-sample breaks at every origin instead of finding them "
-                        "again (faster; results are labelled optimistic)")
+    options.add_evaluation_options(p)
     p.add_argument("--errors", metavar="FILE.csv",
                    help="write every rolling-origin forecast with its actual value to this CSV")
     p.add_argument("--json", action="store_true", help="print the full result as JSON")

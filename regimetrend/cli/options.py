@@ -49,6 +49,21 @@ def add_break_options(p) -> None:
                    help="let the seasonal pattern change at each break too")
 
 
+def add_evaluation_options(p) -> None:
+    """The rolling-origin options of ``compare`` and ``report``."""
+    p.add_argument("--horizon", type=_positive_int, default=None, metavar="H",
+                   help="forecast horizons 1..H scored at every origin (default: one seasonal "
+                        "cycle, at least 4)")
+    p.add_argument("--first-origin", type=_positive_int, default=None, metavar="N",
+                   help="periods known at the first origin (default: the later of half the "
+                        "series and the start of the last 24 origins)")
+    p.add_argument("--step", type=_positive_int, default=1, metavar="K",
+                   help="periods between origins (default 1)")
+    p.add_argument("--reuse-breaks", action="store_true",
+                   help="reuse the full-sample breaks at every origin instead of finding them "
+                        "again (faster; results are labelled optimistic)")
+
+
 def add_output_options(p, output_help: str = "folder for the output files") -> None:
     p.add_argument("--json", action="store_true", help="print the full result as JSON")
     p.add_argument("--output", metavar="DIR", help=output_help)

@@ -13,28 +13,13 @@ from pathlib import Path
 from . import options
 
 
-def add_evaluation_options(p) -> None:
-    """The rolling-origin options, as ``compare`` names them."""
-    p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
-                   help="forecast horizons 1..H, scored on the rolling origin and forecast "
-                        "(default: one seasonal cycle, at least 4)")
-    p.add_argument("--first-origin", type=options._positive_int, default=None, metavar="N",
-                   help="periods known at the first origin (default: the later of half the "
-                        "series and the start of the last 24 origins)")
-    p.add_argument("--step", type=options._positive_int, default=1, metavar="K",
-                   help="periods between origins (default 1)")
-    p.add_argument("--reuse-breaks", action="store_true",
-                   help="reuse the full-sample breaks at every origin instead of finding them "
-                        "again (faster; results are labelled optimistic)")
-
-
 def register(sub) -> None:
     p = sub.add_parser("report", help="write the full analysis as an HTML report with charts, "
                                       "CSV and workbook tables and JSON")
     options.add_input_options(p)
     options.add_model_options(p)
     options.add_break_options(p)
-    add_evaluation_options(p)
+    options.add_evaluation_options(p)
     p.add_argument("--output", metavar="DIR", required=True,
                    help="folder for the report files (created when missing)")
     p.add_argument("--json", action="store_true",

@@ -14,9 +14,17 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from scipy import stats
+
+
+@lru_cache(maxsize=4096)
+def t_quantile(level: float, df: int) -> float:
+    """Two-sided t quantile for a central interval of ``level`` (cached: fits in a rolling
+    origin ask for the same few values thousands of times)."""
+    return float(stats.t.ppf(0.5 + level / 2.0, df))
 
 
 def newey_west_lags(n: int) -> int:
@@ -86,7 +94,7 @@ class LeastSquaresFit:
         se_pred = np.sqrt(np.maximum(self.sigma2 * (1.0 + leverage), 0.0))
         bands = {}
         for level in levels:
-            q = stats.t.ppf(0.5 + level / 2.0, self.df_resid)
+            q = t_quantile(level, self.df_resid)
             bands[level] = (mean - q * se_pred, mean + q * se_pred)
         return Prediction(mean=mean, se_fit=se_fit, se_pred=se_pred, bands=bands, df=self.df_resid)
 

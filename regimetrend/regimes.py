@@ -31,15 +31,14 @@ before it), so a strategy never fails because a break was found close to an orig
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from functools import lru_cache
 
 import numpy as np
-from scipy import stats
 
 from . import ols
 from .design import (SHAPES, TimeScale, TrendSpec, seasonal_columns, seasonal_pattern,
                      season_index, to_model_scale, trend_columns)
 from .errors import InputError
+from .ols import t_quantile
 from .trendfit import PointForecasts, TrendFit, fit_trend
 
 STRATEGIES = ("global", "separate", "truncated", "continuous", "window-average")
@@ -410,13 +409,6 @@ class OriginFits:
         avg = {f: np.mean([getattr(p, f) for p in parts], axis=0)
                for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95")}
         return PointForecasts(np.asarray(positions), **avg)
-
-
-@lru_cache(maxsize=4096)
-def t_quantile(level: float, df: int) -> float:
-    """Two-sided Student-t quantile for a central interval of ``level`` (cached: the same few
-    degrees of freedom recur across thousands of fits)."""
-    return float(stats.t.ppf(0.5 + level / 2.0, df))
 
 
 def forecast_points(fit: TrendFit, positions, X_new=None) -> PointForecasts:

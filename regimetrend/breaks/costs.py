@@ -152,7 +152,7 @@ class SegmentCost:
 
     def _costs_seasonal(self, a, b, L):
         """Season means plus polynomial slope terms, by the Schur complement on the seasons."""
-        s, d = self.season_length, self.degree
+        d = self.degree
         syy = _diff(self._pyy, a, b)
         cnt = self._pcount[b] - self._pcount[a]  # (..., s)
         sy = _diff(self._psy, a, b)  # (..., s)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..output import json_safe as json_clean  # noqa: F401  (re-exported)
 from ..regimes import Strategy
 
 OPTIMISTIC_NOTE = ("optimistic: the breaks were found once on the full sample and reused at "
@@ -115,27 +116,3 @@ class Evaluation:
                 "breaks_by_origin": [list(b) for b in self.breaks_by_origin],
                 "identical_candidates": dict(self.same_as or {}),
                 "cautions": list(self.cautions)})
-
-
-def json_clean(obj):
-    """Plain JSON types: NaN/inf -> None, numpy scalars and arrays -> Python ones."""
-    import math
-
-    import numpy as np
-
-    if isinstance(obj, dict):
-        return {str(k): json_clean(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [json_clean(v) for v in obj]
-    if isinstance(obj, np.ndarray):
-        return [json_clean(v) for v in obj.tolist()]
-    if isinstance(obj, (bool, np.bool_)):
-        return bool(obj)
-    if isinstance(obj, (np.integer,)):
-        return int(obj)
-    if isinstance(obj, (float, np.floating)):
-        v = float(obj)
-        return v if math.isfinite(v) else None
-    if isinstance(obj, np.datetime64):
-        return str(obj.astype("datetime64[D]"))
-    return obj

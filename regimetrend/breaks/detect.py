@@ -18,7 +18,9 @@ from __future__ import annotations
 import math
 
 import numpy as np
+from scipy.stats import f as f_dist
 
+from .. import ols
 from ..design import TrendSpec
 from ..errors import InputError
 from . import critical, cusum, chow, exact, intervals, kinks, select
@@ -28,8 +30,12 @@ from .result import (Break, BreakSet, BreakTests, CusumSummary, Drift, EventTest
 from .search import KindPath, best_added_break, search_both, search_tied
 
 METHODS = ("auto", "exact", "pelt")
+SERIAL_CORRELATION = ("allow", "ignore")
 CAUTION_TESTS = ("The tests assume serially uncorrelated errors; with autocorrelated "
                  "residuals they find breaks too often, so read p-values as indicative.")
+NOTE_ROBUST = ("The tests allow for serially correlated errors: each F statistic is scaled by "
+               "the residual variance over its long-run (Newey-West, Bartlett kernel, Andrews "
+               "bandwidth) variance, so autocorrelation alone does not pass for a break.")
 
 
 def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, int]:
@@ -53,8 +59,12 @@ def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, 
 def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind: str = "auto",
                   max_breaks: int = 3, trim=None, criterion: str = "sequential", events=(),
                   season_length: int | None = None, seasonal_by_regime: bool = False,
-                  method: str = "auto") -> BreakSet:
+                  method: str = "auto", serial_correlation: str = "allow") -> BreakSet:
     """Breaks in the trend of ``series``; see the module docstring for the flow.
+
+    ``serial_correlation``: ``allow`` (default) makes the sup-F, sequential and Chow tests
+    robust to autocorrelated errors (see ``robust_factor``); ``ignore`` gives the classical
+    tests, exact only for uncorrelated errors.
 
     ``trim``: shortest regime, a share of the series (below 1) or a number of periods; the
     default lets the last regime be one seasonal cycle (``problem.default_min_length``).
@@ -67,7 +77,7 @@ def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind
     """
     with _one_blas_thread():
         return _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, events,
-                       season_length, seasonal_by_regime, method)
+                       season_length, seasonal_by_regime, method, serial_correlation)
 
 
 _BLAS = []  # the threadpoolctl controller, found once per process (finding it costs ~1 ms)
@@ -87,8 +97,27 @@ def _one_blas_thread():
     return _BLAS[0].limit(limits=1, user_api="blas")
 
 
+def robust_factor(residuals, enabled: bool = True) -> float:
+    """Residual variance over long-run variance, gamma_0 / omega^2 (1 when disabled).
+
+    With deterministic trend and seasonal regressors the autocorrelation-robust (HAC) Wald
+    statistic of a coefficient change equals the classical one times this factor, so the
+    sup-F limit distributions, and their table, apply unchanged (Bai and Perron, 1998, allow
+    serial correlation this way; from memory)."""
+    if not enabled:
+        return 1.0
+    e = np.asarray(residuals, dtype=float)
+    lrv = ols.prewhitened_long_run_variance(e)
+    g0 = float(e @ e) / max(e.size, 1)
+    return g0 / lrv if lrv > 0 and g0 > 0 else 1.0
+
+
 def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, events,
-            season_length, seasonal_by_regime, method) -> BreakSet:
+            season_length, seasonal_by_regime, method, serial_correlation) -> BreakSet:
+    if serial_correlation not in SERIAL_CORRELATION:
+        raise InputError(f"option --serial-correlation: {serial_correlation!r} is not one of "
+                         f"{', '.join(SERIAL_CORRELATION)}")
+    robust = serial_correlation == "allow"
     kind, criterion, method, M = _check_options(kind, criterion, method, max_breaks)
     s = series.frequency.season_length if season_length is None else int(season_length)
     spec = TrendSpec(shape, seasonality, s if seasonality != "none" else max(s, 1))
@@ -119,7 +148,7 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
     chosen_kind, m = _choose(values, kinds)
     seq_fallback = False
     if criterion == "sequential":
-        seq = _sequential(problem, chosen_kind, paths[chosen_kind], M)
+        seq = _sequential(problem, chosen_kind, paths[chosen_kind], M, robust)
         if seq and seq[0].p_value is None:
             seq_fallback = True  # no table for this model: keep the BIC's count
         else:
@@ -131,9 +160,10 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
         m = 0
     fit = problem.fit(chosen_kind, positions)
     seq_steps = (seq if criterion == "sequential"
-                 else _sequential(problem, chosen_kind, path, max(min(M, len(path.ssr) - 1), 1)))
+                 else _sequential(problem, chosen_kind, path, max(min(M, len(path.ssr) - 1), 1),
+                                  robust))
     proven = bool(path.exact[m]) if m < len(path.exact) else False
-    notes = [CAUTION_TESTS]
+    notes = [NOTE_ROBUST if robust else CAUTION_TESTS]
     if seq_fallback:
         notes.append("The sequential tests have no p-values for this model, so the number of "
                      "breaks was chosen by the BIC.")
@@ -164,7 +194,8 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
                    for i in range(len(positions)))
     tests = BreakTests(supf=_supf(problem, chosen_kind, seq_steps),
                        sequential=tuple(seq_steps),
-                       chow=tuple(_chow(series, problem, chosen_kind, e) for e in event_positions),
+                       chow=tuple(_chow(series, problem, chosen_kind, e, robust)
+                                 for e in event_positions),
                        cusum=_cusums(problem))
     drift = _drift(series, tests.cusum)
     segments = tuple(_segment(series, problem, chosen_kind, positions, j, fit)
@@ -204,7 +235,7 @@ def _choose(values: dict, kinds) -> tuple[str, int]:
     return best[0], best[1]
 
 
-def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int
+def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int, robust: bool = True
                 ) -> list[SequentialStep]:
     """sup-F(l+1|l) for l = 0.. until a test does not reject (or M is reached)."""
     steps = []
@@ -224,6 +255,9 @@ def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int
         k_large = problem.base_count + (l + 1) * q
         stat = select.f_statistic(before, after, q, problem.n, k_large,
                                   select.exact_fit_floor(problem.y))
+        if robust and math.isfinite(stat) and stat > 0:
+            larger = problem.fit(kind, sorted([*pos, where]))
+            stat *= robust_factor(larger.residuals)
         p = None
         if not problem.seasonal_by_regime and not math.isnan(stat):
             p = 0.0 if math.isinf(stat) else \
@@ -381,7 +415,7 @@ def _parse_date(text: str):
         return None
 
 
-def _chow(series, problem: BreakProblem, kind: str, event) -> EventTest:
+def _chow(series, problem: BreakProblem, kind: str, event, robust: bool = True) -> EventTest:
     """Chow test at the event, with the chosen kind's changing terms (kinks: hinge form)."""
     text, p = event
     T = problem.trend
@@ -396,8 +430,14 @@ def _chow(series, problem: BreakProblem, kind: str, event) -> EventTest:
         Xc = T
     Xf = np.hstack(fixed_parts) if fixed_parts else None
     r = chow.chow_test(problem.y, Xc, Xf, p)
+    stat, p_value = r["statistic"], r["p_value"]
+    if robust and math.isfinite(stat) and stat > 0:
+        after = (np.arange(problem.n) >= p).astype(float)[:, None]
+        parts = [Xc, Xc * after] + ([Xf] if Xf is not None else [])
+        stat *= robust_factor(ols.fit(np.hstack(parts), problem.y).residuals)
+        p_value = float(f_dist.sf(stat, r["df1"], r["df2"]))
     return EventTest(event=text, position=p, date=series.iso(p), label=series.label(p),
-                     statistic=r["statistic"], p_value=r["p_value"], df1=r["df1"], df2=r["df2"])
+                     statistic=stat, p_value=p_value, df1=r["df1"], df2=r["df2"])
 
 
 def _cusums(problem: BreakProblem) -> tuple[CusumSummary, ...]:

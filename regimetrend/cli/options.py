@@ -47,6 +47,9 @@ def add_break_options(p) -> None:
                         "(default), or the BIC or LWZ information criterion")
     p.add_argument("--seasonal-by-regime", action="store_true",
                    help="let the seasonal pattern change at each break too")
+    p.add_argument("--serial-correlation", default="allow", choices=("allow", "ignore"),
+                   help="allow (default): break tests robust to autocorrelated errors; "
+                        "ignore: classical tests, exact only for uncorrelated errors")
 
 
 def add_evaluation_options(p) -> None:

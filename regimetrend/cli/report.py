@@ -30,7 +30,8 @@ def register(sub) -> None:
 def _settings(args) -> dict:
     return {"kind": args.kind, "max_breaks": args.max_breaks, "trim": args.trim,
             "criterion": args.criterion, "events": tuple(args.event),
-            "seasonal_by_regime": args.seasonal_by_regime, "horizon": args.horizon,
+            "seasonal_by_regime": args.seasonal_by_regime,
+            "serial_correlation": args.serial_correlation, "horizon": args.horizon,
             "first_origin": args.first_origin, "step": args.step,
             "reuse_breaks": args.reuse_breaks}
 

@@ -25,7 +25,8 @@ def scan(series, args):
                          kind=args.kind, max_breaks=args.max_breaks, trim=args.trim,
                          criterion=args.criterion, events=tuple(args.event),
                          season_length=spec.season_length,
-                         seasonal_by_regime=args.seasonal_by_regime)
+                         seasonal_by_regime=args.seasonal_by_regime,
+                         serial_correlation=args.serial_correlation)
 
 
 def run(args) -> int:

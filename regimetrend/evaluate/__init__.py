@@ -28,7 +28,8 @@ __all__ = ["compare", "Evaluation", "break_detector"]
 
 
 def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3, trim=None,
-                   criterion="sequential", events=(), season_length=None, seasonal_by_regime=False):
+                   criterion="sequential", events=(), season_length=None, seasonal_by_regime=False,
+                   serial_correlation="allow"):
     """A callable series -> BreakSet running the break search with these settings.
 
     The analyst's events are only Chow-tested by the search (they do not move the breaks), so
@@ -48,7 +49,8 @@ def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3
                              max_breaks=m, trim=trim, criterion=criterion,
                              events=tuple(events) if with_events else (),
                              season_length=season_length,
-                             seasonal_by_regime=seasonal_by_regime)
+                             seasonal_by_regime=seasonal_by_regime,
+                             serial_correlation=serial_correlation)
     return detect
 
 
@@ -106,6 +108,7 @@ def _origin_breaks(series, plan, full, detector, own_search, reuse_breaks, spec,
 def compare(series, shape: str = "linear", seasonality: str = "auto",
             season_length: int | None = None, kind: str = "auto", max_breaks: int = 3,
             trim=None, criterion: str = "sequential", events=(), seasonal_by_regime: bool = False,
+            serial_correlation: str = "allow",
             horizon: int | None = None, first_origin: int | None = None, step: int = 1,
             reuse_breaks: bool = False, shapes=None, window_count: int = 10,
             detector=None, progress=None, full_breaks=None) -> Evaluation:
@@ -138,7 +141,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     own_search = detector is None
     if own_search:
         detector = break_detector(spec.shape, spec.seasonality, kind, max_breaks, trim,
-                                  criterion, tuple(events), s, seasonal_by_regime)
+                                  criterion, tuple(events), s, seasonal_by_regime,
+                                  serial_correlation)
     specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
     min_points = max(sp.minimum_points() for sp in specs)
     w_min = max(min_points, 2 * s if spec.seasonality != "none" else 0, 8)

@@ -12,6 +12,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from . import cautions
 from .design import TrendSpec
 from .forecast import Forecast, fit_history, trend_forecast
 from .series import Series
@@ -32,7 +33,7 @@ class Analysis:
     global_forecast: Forecast  # the single global trend, for comparison
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
-    cautions: tuple[str, ...]
+    cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
 
     @property
     def recommended(self):
@@ -101,27 +102,4 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
     return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
                     evaluation=evaluation, growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
-                    cusum=cusum, cautions=_cautions(series, breaks, evaluation))
-
-
-def _cautions(series: Series, breaks, evaluation) -> tuple[str, ...]:
-    """The cautions every reader of a forecast should see, then the evaluation's own."""
-    lines = ["the forecast extrapolates the regime that holds at the end of the data: it "
-             "assumes that regime continues over the horizon"]
-    if breaks.positions:
-        last = breaks.breaks[-1]
-        since = series.n - last.position
-        if since < 2 * max(series.frequency.season_length, 6):
-            lines.append(f"the latest break ({last.label}) is only {since} periods before the "
-                         "end of the series: its date and the new regime's growth rest on few "
-                         "points and are uncertain")
-        else:
-            lo, hi = (series.label(int(p)) for p in last.ci95)
-            lines.append(f"the latest break is dated {last.label}; the data are consistent "
-                         f"with any date from {lo} to {hi} (95% interval)")
-    for line in evaluation.cautions:
-        if line not in lines:
-            lines.append(line)
-    closing = "these figures support, and do not replace, business judgement"
-    lines = [x for x in lines if x != closing] + [closing]
-    return tuple(lines)
+                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions))

@@ -19,7 +19,7 @@ import pytest
 from regimetrend import load_series
 from regimetrend.cli import main
 from regimetrend.report import write_report
-from regimetrend.report.cautions import STANDING
+from regimetrend.cautions import STANDING
 from regimetrend.report.html import page
 from regimetrend.report.safety import cell, esc, inert_text
 from regimetrend.report.tables import Column, Table, fmt

@@ -41,7 +41,7 @@ def run(args) -> int:
     fc = trend_forecast(series, spec, h)
     result = {"series": series.to_dict(), "model": spec.to_dict(),
               "forecast": fc.rows(), "point_forecast": "mean",
-              "holdout": held.to_dict(), "cautions": caution_lines(series, None)}
+              "holdout": held.to_dict(), "cautions": caution_lines()}
     outputs = {}
     if args.output:
         folder = Path(args.output)
@@ -90,7 +90,7 @@ def render(series, spec, held, fc, outputs) -> str:
              f"{fmt(r['lower95'])} to {fmt(r['upper95'])}"] for r in fc.rows()]
     lines.append(table(["period", "mean", "median", "80% interval", "95% interval"], rows))
     lines.append("")
-    lines += [f"caution: {c}" for c in caution_lines(series, None)]
+    lines += [f"caution: {c}" for c in caution_lines()]
     for name, path in outputs.items():
         lines.append(f"wrote {path}")
     return "\n".join(lines)

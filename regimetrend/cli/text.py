@@ -1,4 +1,4 @@
-"""Plain-text helpers for the terminal: number formatting, aligned tables, standard cautions."""
+"""Plain-text helpers for the terminal: number formatting, aligned tables, the cautions."""
 
 from __future__ import annotations
 
@@ -31,14 +31,8 @@ def table(header: list[str], rows: list[list[str]]) -> str:
     return "\n".join(out)
 
 
-def caution_lines(series, last_break_position) -> list[str]:
-    """The cautions shown with every forecast."""
-    lines = ["the forecast extrapolates the trend: it assumes the current regime holds over "
-             "the horizon",
-             "these figures support, and do not replace, business judgement"]
-    if last_break_position is not None:
-        since = series.n - int(last_break_position)
-        if since < 2 * max(series.frequency.season_length, 6):
-            lines.insert(1, f"the latest break is only {since} periods before the end of the "
-                            "series, so its date and the new regime's growth are uncertain")
-    return lines
+def caution_lines() -> list[str]:
+    """The standing cautions shown with a plain trend forecast."""
+    from ..cautions import EXTRAPOLATION, JUDGEMENT
+
+    return [EXTRAPOLATION, JUDGEMENT]

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..cautions import JUDGEMENT
 from ..design import SHAPES, TrendSpec
 from ..errors import InputError
 from ..forecast import fit_history
@@ -216,7 +217,7 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                  "cannot tell two candidates apart does not show they are equally good",
                  "the history sweep and the recommendation are chosen on the same rolling "
                  "origin they are scored on, so the winner's figures flatter it a little",
-                 "these figures support, and do not replace, business judgement"]
+                 JUDGEMENT]
     if failed:
         cautions.insert(0, f"the break search could not run on the history up to "
                            f"{len(failed)} origin(s) (first {series.label(failed[0] - 1)}); "

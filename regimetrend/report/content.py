@@ -7,7 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import charts
-from .cautions import collect, near_end_caution
+from ..cautions import assemble
 from .extract import ReportData
 from .html import Chart, Fact
 from .summary import summary_sentences
@@ -225,11 +225,7 @@ def build(d: ReportData) -> Content:
                    tuple(dict(r, label=b.label, low=d.label(b.low), high=d.label(b.high))
                          for r, b in zip(bt.rows, d.breaks)), bt.note)
         tables.append(bt)
-    last = d.breaks[-1] if d.breaks else None
-    extra = [near_end_caution(s.n, last.position if last else None,
-                              last.high if last else None, s.frequency.name)]
-    ev_cautions = (d.evaluation or {}).get("cautions") or []
-    cautions = collect(extra, d.cautions, ev_cautions)
+    cautions = list(assemble(d.cautions))  # the analysis's cautions; standing ones always
     spec_text = d.spec.describe() if d.spec is not None else ""
     source = f"{d.source_name}: " if d.source_name else ""
     subtitle = (f"{source}{s.n} {s.frequency.name} periods, {s.label(0)} to "

@@ -1,0 +1,67 @@
+"""The cautions that travel with every forecast and growth figure.
+
+Forecasts and growth rates from regimetrend can drive costly decisions (budgets, capacity,
+targets), so every result says what the numbers assume and where they are weakest. The standing
+cautions are written once here; ``for_analysis`` adds the ones a particular analysis calls for.
+The report and the CLI show these texts; they do not write their own.
+"""
+
+from __future__ import annotations
+
+EXTRAPOLATION = ("Extrapolation assumes the last regime holds: the forecast continues the trend "
+                 "of the most recent regime, and a new change of regime after the end of the "
+                 "data is not foreseen.")
+LATE_BREAK = ("A break near the end of the series is uncertain: its date interval is wide and "
+              "the last regime's growth rests on few periods, so recent growth figures can move "
+              "a lot as new data arrive.")
+JUDGEMENT = ("These results support, and do not replace, business judgement: check the break "
+             "dates against what is known about the business (contracts, prices, launches, "
+             "definitions) before acting on them.")
+STANDING = (EXTRAPOLATION, LATE_BREAK, JUDGEMENT)
+
+
+def sentence(text: str) -> str:
+    """Capital first letter, full stop at the end."""
+    text = " ".join(str(text).split())
+    if text and text[0].islower():
+        text = text[0].upper() + text[1:]
+    return text if not text or text.endswith(".") else text + "."
+
+
+def near_end(series, position: int | None, ci_high: int | None) -> str | None:
+    """A caution when the last regime is short (under two seasonal cycles, or under 15% of the
+    series) or its break's 95% interval reaches the last periods of the data."""
+    if position is None:
+        return None
+    n = series.n
+    tail = n - int(position)
+    short = tail < max(2 * series.frequency.season_length, 4, int(0.15 * n))
+    reaches = ci_high is not None and ci_high >= n - max(2, int(0.05 * n))
+    if short or reaches:
+        return (f"The last break ({series.label(int(position))}) leaves only {tail} "
+                f"{series.frequency.name} periods in the last regime; its growth figures and the "
+                f"forecast from it are less certain than the intervals alone suggest.")
+    return None
+
+
+def assemble(*groups) -> tuple[str, ...]:
+    """The standing cautions first, then the given ones, as sentences, without repeats."""
+    seen, out = set(), []
+    for text in list(STANDING) + [c for g in groups for c in (g or ()) if c]:
+        text = sentence(text)
+        if text and text.lower() not in seen:
+            seen.add(text.lower())
+            out.append(text)
+    return tuple(out)
+
+
+def for_analysis(series, breaks, evaluation_cautions=()) -> tuple[str, ...]:
+    """Standing cautions, the last break's own, then the evaluation's."""
+    extra = []
+    if breaks is not None and breaks.breaks:
+        last = breaks.breaks[-1]
+        lo, hi = (int(p) for p in last.ci95)
+        extra.append(near_end(series, last.position, hi))
+        extra.append(f"The latest break is dated {last.label}; the data are consistent with any "
+                     f"date from {series.label(lo)} to {series.label(hi)} (95% interval).")
+    return assemble(extra, evaluation_cautions)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import sys
 
 from ..errors import InputError
@@ -57,6 +58,9 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         print("regimetrend: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:  # output piped into a reader that stopped early (head, less)
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 1
 
 
 if __name__ == "__main__":

@@ -8,7 +8,9 @@ everything went.
 
 from __future__ import annotations
 
+import json
 import shutil
+import textwrap
 from pathlib import Path
 
 from . import options
@@ -38,7 +40,13 @@ def run(args) -> int:
                              horizon=12)
     print("Demo: Lumen Grid, a fictional EV charging network; monthly energy sold (MWh), "
           f"{series.label(0)} to {series.label(series.n - 1)} (invented data).")
+    report = json.loads(Path(written["json"]).read_text(encoding="utf-8")).get("report", {})
+    print()
+    for line in report.get("summary", []):
+        print(textwrap.fill(line, width=96))
+    print()
     print(f"input copied to {data_copy}")
     for key, path in written.items():
         print(f"{key}: {path}")
+    print(f"\nopen {written['html']} in a browser for the full report")
     return 0

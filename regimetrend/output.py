@@ -10,9 +10,13 @@ import json
 import math
 import os
 import tempfile
+from contextlib import contextmanager
+from contextvars import ContextVar
 from pathlib import Path
 
 import numpy as np
+
+from .errors import InputError
 
 
 def json_safe(obj):
@@ -39,12 +43,52 @@ def dumps(obj) -> str:
     return json.dumps(json_safe(obj), indent=2, allow_nan=False)
 
 
-def write_atomic(path, data) -> Path:
-    """Write text or bytes to ``path`` through a temporary file renamed into place."""
+_PROTECTED: ContextVar[tuple] = ContextVar("regimetrend_protected_inputs", default=())
+
+
+@contextmanager
+def protecting(*inputs):
+    """Within this block, ``write_atomic`` refuses to replace any of ``inputs``."""
+    paths = tuple(Path(p) for p in inputs if p is not None and Path(p).exists())
+    token = _PROTECTED.set(_PROTECTED.get() + paths)
+    try:
+        yield
+    finally:
+        _PROTECTED.reset(token)
+
+
+def check_targets(paths, what: str = "output") -> None:
+    """Refuse, before anything is written, a target that is a folder or a protected input."""
+    for path in paths:
+        path = Path(path)
+        if path.is_dir():
+            raise InputError(f"{what}: {path} is a folder, not a file name")
+        if path.exists() and any(os.path.samefile(path, p) for p in _PROTECTED.get()):
+            raise InputError(f"{what}: {path} is the input file, which regimetrend never "
+                             f"overwrites; choose another name")
+
+
+def write_atomic(path, data, what: str = "output", make_folders: bool = True) -> Path:
+    """Write text or bytes to ``path`` through a temporary file renamed into place.
+
+    Refuses folders and protected inputs (see ``protecting``); with ``make_folders`` False the
+    target's folder must exist already (for file names the user typed). Problems writing are
+    reported as ``InputError`` naming ``what`` (an option such as ``--errors``)."""
     path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
+    check_targets([path], what)
+    if not path.parent.is_dir():
+        if not make_folders:
+            raise InputError(f"{what}: folder {path.parent} does not exist")
+        try:
+            path.parent.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise InputError(f"{what}: cannot create folder {path.parent}: "
+                             f"{exc.strerror or exc}") from None
     mode = "wb" if isinstance(data, (bytes, bytearray)) else "w"
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+    except OSError as exc:
+        raise InputError(f"{what}: cannot write in {path.parent}: {exc.strerror or exc}") from None
     try:
         with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})) as fh:
             fh.write(data)
@@ -52,8 +96,10 @@ def write_atomic(path, data) -> Path:
         os.umask(umask)
         os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes files private; outputs are ordinary files
         os.replace(tmp, path)
-    except BaseException:
+    except BaseException as exc:
         if os.path.exists(tmp):
             os.unlink(tmp)
+        if isinstance(exc, OSError):
+            raise InputError(f"{what}: cannot write {path}: {exc.strerror or exc}") from None
         raise
     return path

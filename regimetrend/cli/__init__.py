@@ -51,7 +51,10 @@ def main(argv=None) -> int:
         if not getattr(args, "run", None):
             parser.print_help()
             return 2
-        return int(args.run(args) or 0)
+        from ..output import protecting
+
+        with protecting(getattr(args, "file", None)):  # outputs never replace the input
+            return int(args.run(args) or 0)
     except InputError as exc:
         print(f"regimetrend: error: {exc}", file=sys.stderr)
         return 2

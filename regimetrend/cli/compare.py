@@ -4,7 +4,9 @@ origin."""
 from __future__ import annotations
 
 import sys
+from pathlib import Path
 
+from ..errors import InputError
 from ..evaluate import compare
 from . import options
 from .text import fmt, table
@@ -43,6 +45,10 @@ class ProgressBar:
 
 
 def run(args) -> int:
+    if args.errors:  # refuse a bad target before the work, not after it
+        options.check_targets([args.errors], "option --errors")
+        if not Path(args.errors).parent.is_dir():
+            raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
     ev = compare(series, shape=spec.shape, seasonality=spec.seasonality,
@@ -54,7 +60,8 @@ def run(args) -> int:
                  reuse_breaks=args.reuse_breaks, progress=ProgressBar())
     result = ev.to_dict()
     if args.errors:
-        path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic))
+        path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic),
+                                    "option --errors", make_folders=False)
         result["outputs"] = {"errors_csv": str(path)}
     if args.json:
         print(options.dumps(result))

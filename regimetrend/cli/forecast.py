@@ -50,8 +50,10 @@ def run(args) -> int:
 
         png = forecast_png(series, fit.fitted(), 0, fc)
         csv_text = forecast_csv(fc)
-        outputs["forecast_csv"] = str(options.write_atomic(folder / "forecast.csv", csv_text))
-        outputs["forecast_png"] = str(options.write_atomic(folder / "forecast.png", png))
+        targets = [folder / "forecast.csv", folder / "forecast.png"]
+        options.check_targets(targets, "option --output")  # nothing is written if one fails
+        outputs["forecast_csv"] = str(options.write_atomic(targets[0], csv_text, "option --output"))
+        outputs["forecast_png"] = str(options.write_atomic(targets[1], png, "option --output"))
         result["outputs"] = outputs
     if args.json:
         print(options.dumps(result))

@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from ..errors import InputError
-from ..output import dumps, json_safe, write_atomic  # noqa: F401  (re-exported for commands)
+from ..output import check_targets, dumps, json_safe, write_atomic  # noqa: F401  (for commands)
 
 
 def add_input_options(p) -> None:

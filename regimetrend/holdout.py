@@ -39,6 +39,9 @@ def holdout_check(series: Series, spec: TrendSpec, k: int) -> Holdout:
         raise InputError("option --holdout: must be at least 1 period")
     train = series.n - k
     need = spec.minimum_points()
+    if train <= 0:
+        raise InputError(f"option --holdout: the series has {series.n} periods, so holding out "
+                         f"{k} leaves none to fit")
     if train < need:
         raise InputError(f"option --holdout: {k} periods held out leaves {train} to fit; a "
                          f"{spec.describe()} needs at least {need}")

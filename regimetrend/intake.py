@@ -192,7 +192,7 @@ def require_positive(series: Series, what: str) -> None:
         i = int(bad[0])
         raise InputError(f"{what} needs values above zero, but series {series.name!r} has "
                          f"{series.values[i]:g} at {series.label(i)} (point {i + 1} of "
-                         f"{series.n}; {bad.size} such values in all)")
+                         f"{series.n}; {bad.size} such value{'s' if bad.size != 1 else ''} in all)")
 
 
 # --------------------------------------------------------------------------------------------
@@ -230,6 +230,9 @@ def _read_file(path: Path, *, sheet, decimal) -> _Table:
                          f"{', '.join(SUPPORTED_EXTENSIONS)}")
     if path.stat().st_size == 0:
         raise InputError(f"file {path.name!r} is empty")
+    if sheet is not None and ext != ".xlsx":
+        raise InputError(f"option --sheet: {path.name!r} is not an Excel workbook, so it has "
+                         f"no sheets")
     if ext in (".csv", ".txt"):
         table = _read_text(path, decimal)
     elif ext == ".xlsx":

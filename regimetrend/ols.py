@@ -88,10 +88,11 @@ class LeastSquaresFit:
     ssr: float
     n: int
     k: int
+    k_outside: int = 0  # parameters estimated before the regression (a seasonal pattern)
 
     @property
     def df_resid(self) -> int:
-        return self.n - self.k
+        return self.n - self.k - self.k_outside
 
     @property
     def sigma2(self) -> float:
@@ -159,8 +160,12 @@ class RankDeficient(ValueError):
     """The design has fewer independent columns than coefficients."""
 
 
-def fit(X: np.ndarray, y: np.ndarray) -> LeastSquaresFit:
-    """Ordinary least squares by QR. Raises ``RankDeficient`` for a singular design."""
+def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
+    """Ordinary least squares by QR. Raises ``RankDeficient`` for a singular design.
+
+    ``k_outside`` counts parameters estimated from the same data before the regression (the
+    s - 1 effects of a seasonal pattern removed first); they reduce the residual degrees of
+    freedom, so the residual variance and the t quantiles are not too optimistic."""
     X = np.asarray(X, dtype=float)
     y = np.asarray(y, dtype=float)
     n, k = X.shape
@@ -185,4 +190,4 @@ def fit(X: np.ndarray, y: np.ndarray) -> LeastSquaresFit:
     r_inv = np.linalg.solve(r, np.eye(k))
     xtx_inv = (r_inv @ r_inv.T) / np.outer(norms, norms)
     return LeastSquaresFit(beta=beta, residuals=resid, X=X, xtx_inv=xtx_inv,
-                           ssr=float(resid @ resid), n=n, k=k)
+                           ssr=float(resid @ resid), n=n, k=k, k_outside=int(k_outside))

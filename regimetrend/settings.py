@@ -19,7 +19,12 @@ def resolve_spec(series, shape: str = "linear", seasonality: str = "auto",
     elif seasonality != "none" and s < 2:
         raise InputError(f"option --seasonality: a {series.frequency.name} series has no "
                          f"seasonal cycle; use none, or give --season-length")
-    return TrendSpec(shape=shape, seasonality=seasonality, season_length=s)
+    spec = TrendSpec(shape=shape, seasonality=seasonality, season_length=s)
+    if spec.log_scale:
+        from .intake import require_positive
+
+        require_positive(series, "option --shape: the exponential shape (fitted on logs)")
+    return spec
 
 
 @dataclass(frozen=True)

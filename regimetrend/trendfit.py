@@ -9,6 +9,10 @@ correction). regimetrend reports the mean as its point forecast by default becau
 plans add forecasts up (months into a year, series into a portfolio) and only means add; the
 median is given beside it. Interval ends are the back-transformed log-scale interval ends (the
 quantiles of a lognormal), so they are not symmetric around either point.
+
+Seasonal adjustment (``adjust``): the s - 1 seasonal effects are estimated before the trend and
+are counted against the residual degrees of freedom; their own estimation error is not added to
+the prediction variance, so those intervals are slightly narrow (by roughly the share s/n).
 """
 
 from __future__ import annotations
@@ -113,7 +117,8 @@ def fit_trend(values, positions, spec: TrendSpec, first_season: int = 0,
     scale = TimeScale.for_positions(positions)
     X = design_matrix(positions, spec, scale, first_season)
     try:
-        result = ols.fit(X, y)
+        outside = spec.season_length - 1 if pattern is not None else 0
+        result = ols.fit(X, y, k_outside=outside)
     except ols.RankDeficient as exc:
         raise InputError(f"{what} cannot be fitted as a {spec.describe()}: {exc}") from None
     return TrendFit(spec, positions, first_season, scale, result, pattern)

@@ -66,6 +66,8 @@ def test_adjust_uses_the_classical_decomposition(air_passengers):
     trend_only = np.exp(fit.fit.predict(fit.design(np.arange(144, 156))).mean)
     np.testing.assert_allclose(fc.median / trend_only, np.exp(pattern), rtol=1e-12)
     assert np.argmax(fc.median) in (6, 7)  # the July-August peak is put back on the forecast
+    # the 11 seasonal effects estimated first are counted against the degrees of freedom
+    assert fit.fit.df_resid == 144 - 2 - 11
 
 
 def test_quadratic_scaled_index_is_well_conditioned_on_long_daily_series():
@@ -85,9 +87,22 @@ def test_exponential_beats_linear_on_johnson_johnson_holdout(johnson_johnson):
     exp = holdout_check(johnson_johnson, TrendSpec("exponential", "dummies", 4), 8)
     assert exp.metrics["rmse"] < 0.6 * lin.metrics["rmse"]
     assert exp.metrics["mape"] < lin.metrics["mape"]
-    # errors are in original units: the mean forecast of the exponential model is scored
-    np.testing.assert_allclose(exp.actual - exp.forecast.points.mean,
-                               exp.actual - exp.forecast.mean)
+    # errors are in original units: what is scored is the lognormal mean exp(m + v/2) of a
+    # statsmodels fit of log y (reference library), not the log-scale forecast
+    t = np.arange(johnson_johnson.n - 8, dtype=float)
+    q = (t.astype(int) % 4)
+    X = np.column_stack([np.ones_like(t), t] + [(q == j).astype(float) for j in (1, 2, 3)])
+    ref = sm.OLS(np.log(johnson_johnson.values[:-8]), X).fit()
+    t_new = np.arange(johnson_johnson.n - 8, johnson_johnson.n, dtype=float)
+    q_new = t_new.astype(int) % 4
+    X_new = np.column_stack([np.ones_like(t_new), t_new]
+                            + [(q_new == j).astype(float) for j in (1, 2, 3)])
+    frame = ref.get_prediction(X_new).summary_frame()
+    var = frame["mean_se"] ** 2 + ref.scale
+    mean = np.exp(frame["mean"] + var / 2)
+    np.testing.assert_allclose(exp.forecast.mean, mean, rtol=1e-10)
+    rmse = np.sqrt(np.mean((johnson_johnson.values[-8:] - mean) ** 2))
+    assert exp.metrics["rmse"] == pytest.approx(rmse, rel=1e-10)
 
 
 def test_too_few_points_and_non_positive_values_are_named():

@@ -81,9 +81,9 @@ def render(series, b) -> str:
         lines.append(f"  Chow test at event {ev.event} ({ev.label}): F = {fmt(ev.statistic)}, "
                      f"{pvalue(ev.p_value)}")
     for c in t.cusum:
-        cross = series.label(c.first_crossing) if c.first_crossing is not None else "never"
-        lines.append(f"  CUSUM ({c.method}) of the global trend: leaves its 5% band at {cross}, "
-                     f"{pvalue(c.p_value)}")
+        where = (f"leaves its 5% band at {series.label(c.first_crossing)}"
+                 if c.first_crossing is not None else "stays inside its 5% band")
+        lines.append(f"  CUSUM ({c.method}) of the global trend: {where}, {pvalue(c.p_value)}")
     if b.drift is not None:
         lines.append(f"  the global trend started to drift at {b.drift.label} ({b.drift.method})")
     lines += ["", "regimes:"]

@@ -52,3 +52,16 @@ def test_scan_bad_options_one_line_exit_2(nile_csv, capsys, argv, words):
     code = main(["scan", str(nile_csv), *argv])
     err = capsys.readouterr().err
     assert code == 2 and words in err and len(err.strip().splitlines()) == 1
+
+
+def test_scan_reports_growth_per_regime(nile_csv, capsys):
+    # issue 5: CLI JSON carries segments[*].growth
+    assert main(["scan", str(nile_csv), "--kind", "level", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    for seg in out["segments"]:
+        g = seg["growth"]
+        assert {"per_period_pct", "annualised_pct", "annualised_pct_ci95"} <= set(g)
+        lo, hi = g["annualised_pct_ci95"]
+        assert lo <= g["annualised_pct"] <= hi
+    assert main(["scan", str(nile_csv), "--kind", "level"]) == 0
+    assert "growth a year" in capsys.readouterr().out

@@ -30,13 +30,25 @@ def scan(series, args):
 
 
 def run(args) -> int:
+    from ..growth import growth_table
+
     series = options.load_from_args(args)
     result = scan(series, args)
+    growth = growth_table(series, result.spec, result).to_dict()
     if args.json:
-        print(options.dumps(dict(result.to_dict(), series=series.to_dict())))
+        out = result.to_dict()
+        for seg, g in zip(out["segments"], growth["segments"]):
+            seg["growth"] = g["growth"]
+        out["growth_changes"] = growth["changes"]
+        print(options.dumps(dict(out, series=series.to_dict())))
     else:
-        print(render(series, result))
+        print(render(series, result, growth))
     return 0
+
+
+def _interval(g: dict, key: str) -> str:
+    lo, hi = g.get(key + "_ci95") or (None, None)
+    return f"{fmt(lo, 1)} to {fmt(hi, 1)}" if lo is not None and hi is not None else "-"
 
 
 def pvalue(p) -> str:
@@ -46,7 +58,7 @@ def pvalue(p) -> str:
     return "p < 0.001" if p < 0.001 else f"p = {p:.3f}"
 
 
-def render(series, b) -> str:
+def render(series, b, growth: dict | None = None) -> str:
     """The readable scan: breaks, tests, segments, drift, notes."""
     spec = b.spec
     log = spec.shape == "exponential"
@@ -86,13 +98,25 @@ def render(series, b) -> str:
         lines.append(f"  CUSUM ({c.method}) of the global trend: {where}, {pvalue(c.p_value)}")
     if b.drift is not None:
         lines.append(f"  the global trend started to drift at {b.drift.label} ({b.drift.method})")
-    lines += ["", "regimes:"]
+    lines += ["", "regimes (growth with 95% intervals from Newey-West errors):"]
     rows = []
-    for s in b.segments:
-        growth = (f"{s.growth_pct:+.2f}%" if s.growth_pct is not None else f"{s.slope:+,.4g}")
-        rows.append([f"{s.start_label} to {s.end_label}", str(s.n), fmt(s.level), growth])
+    per_regime = (growth or {}).get("segments") or [{} for _ in b.segments]
+    for s, g in zip(b.segments, per_regime):
+        g = g.get("growth", {})
+        step = (f"{s.growth_pct:+.2f}%" if s.growth_pct is not None else f"{s.slope:+,.4g}")
+        year = g.get("annualised_pct")
+        rows.append([f"{s.start_label} to {s.end_label}", str(s.n), fmt(s.level), step,
+                     f"{year:+.1f}%" if year is not None else "-",
+                     _interval(g, "annualised_pct")])
     lines.append(table(["regime", "periods", "trend level at start",
-                        "growth per period" if log else "slope per period"], rows))
+                        "growth per period" if log else "slope per period",
+                        "growth a year", "95% interval (%)"], rows))
+    for c in (growth or {}).get("changes", []):
+        ch = c.get("annualised_pct_change")
+        if ch is not None:
+            lines.append(f"  growth change at {c['label']}: {ch:+.1f} points a year "
+                         f"(95% interval {_interval(c, 'annualised_pct_change')}), Wald "
+                         f"{pvalue(c.get('p_value'))}")
     notes = list(b.notes)
     if b.breaks and series.n - b.breaks[-1].position < 2 * max(series.frequency.season_length, 6):
         notes.append("the latest break is close to the end of the series: its date and the new "

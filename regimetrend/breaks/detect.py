@@ -5,9 +5,22 @@ removed first under ``adjust``) -> search each requested kind for 0..M breaks ->
 and the number of breaks by the criterion -> fit the joint model -> date intervals, tests,
 Chow tests at the analyst's events, CUSUM drift of the global trend -> ``BreakSet``.
 
-Kind ``auto`` searches ``both``, ``level`` and ``slope`` and lets the criterion choose among
-all (kind, m) pairs, each break counted as its changing coefficients plus its date. With the
-``sequential`` criterion the kind is chosen by BIC and the count by the sequential tests.
+Kind ``auto`` searches ``both``, ``level`` and ``slope``. With ``bic`` or ``lwz`` the criterion
+chooses among all (kind, m) pairs, each break counted as its changing coefficients plus its
+date. With ``sequential`` (the default) the sequential sup-F(l+1|l) rule first gives a count m_k
+within each kind, then the kind is the one with the lowest BIC at its own (kind, m_k) (ties:
+fewer breaks, then the order both, level, slope), so the kind reported is the best one at the
+count actually used, not at a count the tests then overrule.
+
+``max_breaks=None`` (the default) searches up to ``DEFAULT_MAX_BREAKS`` breaks, fewer when the
+series cannot hold that many regimes of the trimmed length (a note says so); an explicit number
+is an upper limit the series must be long enough for (else an InputError naming --max-breaks).
+
+Break-date intervals: Bai (1997) for ``level`` and ``both`` breaks, the likelihood-ratio profile
+(Hansen, 2000) for kinks and wherever Bai's interval is known to fail (see ``_interval``: a
+``both`` break that is mostly a kink, or a Bai interval that reaches both ends of the admissible
+window). Each break says which method gave its interval. In robust mode (``serial_correlation=
+"allow"``) every F statistic shown, the per-break F included, is scaled by ``robust_factor``.
 Series of ``exact.PELT_LENGTH`` points or more (or ``method="pelt"``) are searched by PELT for
 kind ``both`` (its break count is then PELT's, not chosen from a path); the tied kinds keep
 their O(n) one-break scans, exact for one break and refined beyond.
@@ -31,6 +44,7 @@ from .search import KindPath, best_added_break, search_both, search_tied
 
 METHODS = ("auto", "exact", "pelt")
 SERIAL_CORRELATION = ("allow", "ignore")
+DEFAULT_MAX_BREAKS = 3  # ``max_breaks=None``: up to this many, as many as the series holds
 CAUTION_TESTS = ("The tests assume serially uncorrelated errors; with autocorrelated "
                  "residuals they find breaks too often, so read p-values as indicative.")
 NOTE_ROBUST = ("The tests allow for serially correlated errors: each F statistic is scaled by "
@@ -38,7 +52,7 @@ NOTE_ROBUST = ("The tests allow for serially correlated errors: each F statistic
                "bandwidth) variance, so autocorrelation alone does not pass for a break.")
 
 
-def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, int]:
+def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, int | None]:
     kind = str(kind).strip().lower()
     if kind not in ("auto",) + KINDS:
         raise InputError(f"option --kind: {kind!r} is not one of auto, {', '.join(KINDS)}")
@@ -46,6 +60,8 @@ def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, 
     method = str(method).strip().lower()
     if method not in METHODS:
         raise InputError(f"option --method: {method!r} is not one of {', '.join(METHODS)}")
+    if max_breaks is None:
+        return kind, criterion, method, None
     try:
         m = int(max_breaks)
     except (TypeError, ValueError):
@@ -57,14 +73,18 @@ def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, 
 
 
 def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind: str = "auto",
-                  max_breaks: int = 3, trim=None, criterion: str = "sequential", events=(),
-                  season_length: int | None = None, seasonal_by_regime: bool = False,
+                  max_breaks: int | None = None, trim=None, criterion: str = "sequential",
+                  events=(), season_length: int | None = None, seasonal_by_regime: bool = False,
                   method: str = "auto", serial_correlation: str = "allow") -> BreakSet:
     """Breaks in the trend of ``series``; see the module docstring for the flow.
 
-    ``serial_correlation``: ``allow`` (default) makes the sup-F, sequential and Chow tests
-    robust to autocorrelated errors (see ``robust_factor``); ``ignore`` gives the classical
-    tests, exact only for uncorrelated errors.
+    ``serial_correlation``: ``allow`` (default) makes the sup-F, sequential, per-break F and
+    Chow tests, and the break-date intervals, robust to autocorrelated errors (see
+    ``robust_factor``); ``ignore`` gives the classical tests, exact only for uncorrelated errors.
+
+    ``max_breaks``: most breaks considered; ``None`` means up to ``DEFAULT_MAX_BREAKS``, capped
+    at what the series holds given the trimming. ``criterion``: ``sequential`` (default; count by
+    the sequential tests within each kind, kind by BIC at those counts), ``bic`` or ``lwz``.
 
     ``trim``: shortest regime, a share of the series (below 1) or a number of periods; the
     default lets the last regime be one seasonal cycle (``problem.default_min_length``).
@@ -126,6 +146,10 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
     spec = TrendSpec(shape, seasonality, s if seasonality != "none" else max(s, 1))
     problem = build_problem(series, spec, seasonal_by_regime, trim)
     n, h = problem.n, problem.h
+    capped = None
+    if M is None:  # default: up to DEFAULT_MAX_BREAKS, as many as the series can hold
+        M = min(DEFAULT_MAX_BREAKS, exact.max_feasible_breaks(n, h))
+        capped = M if M < DEFAULT_MAX_BREAKS else None
     need = (M + 1) * h
     if n < need:
         most = max(n // h - 1, 0)
@@ -148,21 +172,24 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
             paths[k] = search_tied(problem, k, M, starts)
     score_name = "lwz" if criterion == "lwz" else "bic"
     values = {k: _criterion_values(problem, p, score_name) for k, p in paths.items()}
-    chosen_kind, m = _choose(values, kinds)
+    seq_by_kind: dict[str, list[SequentialStep]] = {}
     seq_fallback = False
+    counts = None
     if criterion == "sequential":
-        seq = _sequential(problem, chosen_kind, paths[chosen_kind], M, robust)
-        if seq and seq[0].p_value is None:
-            seq_fallback = True  # no table for this model: keep the BIC's count
-        else:
-            m = min(select.sequential_count([st.p_value for st in seq]),
-                    len(paths[chosen_kind].ssr) - 1)
+        counts = {}
+        for k, p in paths.items():
+            m_k, steps, fell_back = _sequential_count(problem, p, values[k], M, robust)
+            counts[k], seq_by_kind[k] = m_k, steps
+            seq_fallback = seq_fallback or fell_back
+    chosen_kind, m = _choose(values, kinds, counts)
+    close = _close_kinds(series, paths, values, counts, chosen_kind, m) \
+        if kind == "auto" and score_name == "bic" else None
     path = paths[chosen_kind]
     positions = tuple(path.positions[m]) if m < len(path.positions) else ()
     if not positions:
         m = 0
     fit = problem.fit(chosen_kind, positions)
-    seq_steps = (seq if criterion == "sequential"
+    seq_steps = (seq_by_kind[chosen_kind] if criterion == "sequential"
                  else _sequential(problem, chosen_kind, path, max(min(M, len(path.ssr) - 1), 1),
                                   robust))
     proven = bool(path.exact[m]) if m < len(path.exact) else False
@@ -189,12 +216,28 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
                      f"{path.iterations} rounds; the last round is reported.")
     if h / n < 0.05:
         notes.append("Short minimum regimes: the asymptotic sup-F table is rough there.")
+    if close:
+        notes.append(close)
+    if capped is not None:
+        notes.append(f"Up to {DEFAULT_MAX_BREAKS} breaks are searched by default; with regimes "
+                     f"of at least {h} periods this series of {n} holds at most {capped}, so "
+                     f"up to {capped} {'was' if capped == 1 else 'were'} searched.")
     rho = _lag1(fit.residuals)
-    if rho > 0.3:
+    if rho > 0.3 and not robust:
         notes.append(f"Residuals are autocorrelated (lag-1 correlation {rho:.2f}): test sizes "
                      f"and break-date intervals are too optimistic.")
+    elif rho > 0.3:
+        notes.append(f"Residuals are autocorrelated (lag-1 correlation {rho:.2f}); the tests "
+                     f"and break-date intervals allow for it, but the long-run variance "
+                     f"correction is approximate in short samples.")
     breaks = tuple(_describe_break(series, problem, chosen_kind, positions, i, fit, robust)
                    for i in range(len(positions)))
+    whole = [b.label for i, b in enumerate(breaks)
+             if _spans(b.ci95, _admissible_window(problem, positions, i))]
+    if whole:
+        notes.append(f"The 95% interval of the break at {', '.join(whole)} spans every date the "
+                     f"break could take between its neighbours: the data do not pin that date "
+                     f"down.")
     tests = BreakTests(supf=_supf(problem, chosen_kind, seq_steps),
                        sequential=tuple(seq_steps),
                        chow=tuple(_chow(series, problem, chosen_kind, e, robust)
@@ -211,7 +254,7 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
                     positions=tuple(int(p) for p in positions), method=path.method,
                     exact=proven,
                     iterations=path.iterations, seasonal_by_regime=problem.seasonal_by_regime,
-                    notes=tuple(notes))
+                    notes=tuple(notes), max_breaks=M)
 
 
 # -- choosing ----------------------------------------------------------------------------------
@@ -221,21 +264,67 @@ def _criterion_values(problem: BreakProblem, path: KindPath, score: str) -> list
                                  select.exact_fit_floor(problem.y))
 
 
-def _choose(values: dict, kinds) -> tuple[str, int]:
+def _choose(values: dict, kinds, counts: dict | None = None) -> tuple[str, int]:
     """(kind, m) with the smallest criterion; ties go to fewer breaks, then to the order
-    both, level, slope."""
+    both, level, slope.
+
+    Without ``counts`` each kind is scored at its own best m (the BIC and LWZ criteria). With
+    ``counts`` (kind -> m_k, the sequential rule's count within that kind) each kind is scored
+    at (kind, m_k) only, so the kind chosen is the best one at the count actually used."""
     best = None
     for k in ("both", "level", "slope"):
         if k not in values or k not in kinds:
             continue
         v = np.asarray(values[k], dtype=float)
-        m = select.best_count(v)
+        m = select.best_count(v) if counts is None else min(int(counts[k]), v.size - 1)
         if best is None or v[m] < best[2] - 1e-9 * abs(best[2]) or \
                 (abs(v[m] - best[2]) <= 1e-9 * abs(best[2]) and m < best[1]):
             best = (k, m, float(v[m]))
     if best is None or best[1] == 0:
         return (best[0] if best else kinds[0]), 0
     return best[0], best[1]
+
+
+CLOSE_BIC = 2.0
+
+
+def _close_kinds(series, paths, values, counts, chosen: str, m: int) -> str | None:
+    """A note when another kind's BIC, at the count it would use, is within ``CLOSE_BIC`` of
+    the chosen one and places the breaks elsewhere: the dates and their intervals are then
+    conditional on a kind the data barely prefer. A BIC difference below 2 is "not worth more
+    than a bare mention" (Kass and Raftery, 1995; from memory)."""
+    chosen_value = values[chosen][m]
+    chosen_labels = [series.label(p) for p in paths[chosen].positions[m]] if m else []
+    for k in ("both", "level", "slope"):
+        if k == chosen or k not in values:
+            continue
+        m_k = select.best_count(values[k]) if counts is None else counts[k]
+        m_k = min(int(m_k), len(values[k]) - 1)
+        if not math.isfinite(values[k][m_k]) or values[k][m_k] - chosen_value >= CLOSE_BIC:
+            continue
+        labels = [series.label(p) for p in paths[k].positions[m_k]] if m_k else []
+        if labels == chosen_labels:
+            continue
+        where = ", ".join(labels) if labels else "no break"
+        return (f"Breaks of kind {k} fit almost as well (BIC {values[k][m_k] - chosen_value:.2f} "
+                f"higher, below {CLOSE_BIC:g}) and give {where}: the break dates and their "
+                f"intervals hold for the {chosen} kind chosen; run --kind {k} to compare.")
+    return None
+
+
+def _sequential_count(problem: BreakProblem, path: KindPath, values, M: int, robust: bool
+                      ) -> tuple[int, list[SequentialStep], bool]:
+    """The sequential rule within one kind: (m_k, its sup-F(l+1|l) steps, fell back to BIC).
+
+    Where the tests have no p-values (seasonal terms by regime) the kind's BIC count is used;
+    a PELT path knows only m = 0 and PELT's own count, so the BIC chooses between those two."""
+    steps = _sequential(problem, path.kind, path, M, robust)
+    if path.method == "pelt":
+        return select.best_count(values), steps, False
+    if steps and steps[0].p_value is None:
+        return select.best_count(values), steps, True
+    m = min(select.sequential_count([st.p_value for st in steps]), len(path.ssr) - 1)
+    return m, steps, False
 
 
 def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int, robust: bool = True
@@ -301,8 +390,9 @@ def _describe_break(series, problem: BreakProblem, kind: str, positions, i: int,
     if problem.degree == 2:
         curv = float((new(b + 1) - 2 * new(b) + new(b - 1)) - (old(b + 1) - 2 * old(b) + old(b - 1))
                      ) / 2.0
-    ci, method = _interval(problem, kind, positions, i, fit, robust)
-    f_stat = _partial_f(problem, kind, positions, i, fit)
+    kink = kind == "both" and mostly_kink(new, old, b, problem.h)
+    ci, method = _interval(problem, kind, positions, i, fit, robust, kink)
+    f_stat = _partial_f(problem, kind, positions, i, fit, robust)
     iso = lambda p: series.iso(int(p))
     return Break(position=int(b), date=series.iso(b), label=series.label(b),
                  ci90=ci[0.90], ci95=ci[0.95],
@@ -313,34 +403,76 @@ def _describe_break(series, problem: BreakProblem, kind: str, positions, i: int,
                  curvature_change=curv, f_statistic=f_stat)
 
 
-def _interval(problem: BreakProblem, kind: str, positions, i: int, fit, robust: bool = True):
-    """Bai (1997) intervals for level and both breaks; the likelihood-ratio profile
-    (Hansen, 2000) for kinks, where Bai's result does not apply, and as a fallback where the
-    pair of regimes around the break cannot carry the local fit Bai's interval needs (two
-    regimes of exactly one seasonal cycle make a step collinear with trend and seasons)."""
+def _admissible_window(problem: BreakProblem, positions, i: int) -> tuple[int, int]:
+    """First and last position break i could take with its neighbours fixed (trimming kept)."""
+    h = problem.h
+    lo = positions[i - 1] + h if i > 0 else h
+    hi = positions[i + 1] - h if i + 1 < len(positions) else problem.n - h
+    return lo, hi
+
+
+def _spans(interval, window) -> bool:
+    """The interval reaches both ends of the window."""
+    return interval[0] <= window[0] and interval[1] >= window[1]
+
+
+KINK_SHARE = 0.5
+BAI = "Bai (1997)"
+PROFILE = "likelihood-ratio profile (Hansen, 2000)"
+
+
+def mostly_kink(new, old, b: int, h: int) -> bool:
+    """A break whose trend change at its own date is small against its change nearby.
+
+    With d(j) = new(b + j) - old(b + j) the change of the trend polynomial j periods from the
+    break (Delta' x_t without the seasonal terms), the break is mostly a kink when
+    |d(0)| < KINK_SHARE * max |d(j)| over |j| <= h, h the shortest regime. For a linear trend
+    that is |jump| < |slope change| * h: within one shortest regime the slope change moves the
+    trend further than the jump did. Bai's (1997) limit then fails: it needs a change of about
+    constant size near the break, and a change that grows from near zero makes the local
+    moments, and the interval, meaningless (the interval can cover every admissible date)."""
+    j = np.arange(-h, h + 1, dtype=float)
+    d = np.abs(np.asarray(new(b + j), dtype=float) - np.asarray(old(b + j), dtype=float))
+    top = float(d.max())
+    return top > 0.0 and float(d[h]) < KINK_SHARE * top
+
+
+def _interval(problem: BreakProblem, kind: str, positions, i: int, fit, robust: bool = True,
+              kink: bool = False):
+    """90% and 95% intervals of break i and the method that gave them.
+
+    Kinks (``slope``) get the likelihood-ratio profile (Hansen, 2000), where Bai's result does
+    not apply. ``level`` and ``both`` breaks get Bai (1997) unless one of these holds, in which
+    case the profile is used as well:
+
+    - the break is mostly a kink (``kink``, see ``mostly_kink``);
+    - Bai's 95% interval reaches both ends of the admissible window (``_admissible_window``),
+      i.e. it carries no information about the date; the profile of the SSR over the break's
+      position does, when the data hold any;
+    - the pair of regimes around the break cannot carry Bai's local fit (two regimes of
+      exactly one seasonal cycle make a step collinear with trend and seasons);
+    - seasonal terms change with the regime (Bai's form here covers trend changes only)."""
     n = problem.n
     cuts = [0, *positions, n]
     a, b, c = cuts[i], cuts[i + 1], cuts[i + 2]
-    if kind != "slope" and not problem.seasonal_by_regime:
+    if kind != "slope" and not problem.seasonal_by_regime and not kink:
         changing = [0] if kind == "level" else list(range(problem.trend.shape[1]))
         try:
             # Within the regime pair [a, c) only this break changes the coefficients.
             ci = intervals.break_interval(problem.y, problem.base, b, a, c, changing,
                                           (0.90, 0.95), autocorrelated=robust)
-            return ci, "Bai (1997)"
         except InputError:
-            pass
-    return _profile_interval(problem, kind, positions, i, fit, robust), \
-        "likelihood-ratio profile (Hansen, 2000)"
+            ci = None
+        if ci is not None and not _spans(ci[0.95], _admissible_window(problem, positions, i)):
+            return ci, BAI
+    return _profile_interval(problem, kind, positions, i, fit, robust), PROFILE
 
 
 def _profile_interval(problem: BreakProblem, kind: str, positions, i: int, fit,
                       robust: bool = True):
-    n, h = problem.n, problem.h
     terms = problem.terms(kind)
     others = list(positions[:i]) + list(positions[i + 1:])
-    lo = positions[i - 1] + h if i > 0 else h
-    hi = positions[i + 1] - h if i + 1 < len(positions) else n - h
+    lo, hi = _admissible_window(problem, positions, i)
     _, _, cand, prof = kinks.best_single(problem.y, problem.base, terms, lo, hi, others)
     # With autocorrelated errors the SSR profile is scaled by the long-run variance
     # (the eta^2 scaling of Hansen's likelihood ratio), which widens the set.
@@ -350,12 +482,20 @@ def _profile_interval(problem: BreakProblem, kind: str, positions, i: int, fit,
     return intervals.profile_interval(prof, cand, sigma2, (0.90, 0.95))
 
 
-def _partial_f(problem: BreakProblem, kind: str, positions, i: int, fit) -> float:
+def _partial_f(problem: BreakProblem, kind: str, positions, i: int, fit, robust: bool = True
+               ) -> float:
+    """F statistic of break i given the others: (SSR without it - SSR) / q over s^2.
+
+    In robust mode it is scaled by ``robust_factor`` of the full fit's residuals, as the
+    sup-F and sequential statistics are, so the three read on the same scale."""
     others = list(positions[:i]) + list(positions[i + 1:])
     restricted = problem.fit(kind, others)
     q = problem.changing(kind)
-    return select.f_statistic(restricted.ssr, fit.ssr, q, problem.n, fit.k,
+    stat = select.f_statistic(restricted.ssr, fit.ssr, q, problem.n, fit.k,
                               select.exact_fit_floor(problem.y))
+    if robust and math.isfinite(stat) and stat > 0:
+        stat *= robust_factor(fit.residuals)
+    return stat
 
 
 def _segment(series, problem: BreakProblem, kind: str, positions, j: int, fit) -> Segment:

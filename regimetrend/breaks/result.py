@@ -197,6 +197,7 @@ class BreakSet:
     iterations: int = 1  # partial-structure rounds (kind ``both`` with shared seasonal terms)
     seasonal_by_regime: bool = False
     notes: tuple[str, ...] = ()
+    max_breaks: int = 0  # most breaks searched (the default cap resolved; see detect_breaks)
 
     @property
     def n_breaks(self) -> int:
@@ -229,4 +230,4 @@ class BreakSet:
                 "method": self.method, "exact": bool(self.exact),
                 "iterations": int(self.iterations),
                 "seasonal_by_regime": bool(self.seasonal_by_regime),
-                "notes": list(self.notes)}
+                "max_breaks": int(self.max_breaks), "notes": list(self.notes)}

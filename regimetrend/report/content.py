@@ -10,6 +10,7 @@ from . import charts
 from ..cautions import assemble
 from .extract import ReportData
 from .html import Chart, Fact
+from .models import growth_model
 from .summary import summary_sentences
 from .tables import Table, break_rows, dig, forecast_rows, growth_rows, num, ranking_rows
 
@@ -41,7 +42,8 @@ def _series_chart(d: ReportData) -> Chart:
              if b.low is not None and b.high is not None]
     global_fit = (charts.Band("global trend, fitted", s.starts, d.global_fitted)
                   if d.global_fitted is not None else None)
-    regime_fit = (charts.Band("regime trends, fitted", s.starts, d.regime_fitted)
+    shape = (d.growth or {}).get("shape") or "trend"
+    regime_fit = (charts.Band(f"regime trends ({shape}), fitted", s.starts, d.regime_fitted)
                   if d.regime_fitted is not None and d.breaks else None)
     forecasts = []
     if d.forecast is not None:
@@ -167,9 +169,12 @@ def _growth_chart(d: ReportData) -> Chart | None:
     png = charts.growth_chart(labels, vals, [c[0] for c in ci], [c[1] for c in ci],
                               quantity="annualised growth (% a year)",
                               title="Growth by regime")
+    model = growth_model(g)
+    model_text = f" Model: {model}, as in the growth table." if model else ""
     return Chart("growth_by_regime", "Annualised growth by regime",
                  f"Bars: {g.get('headline', 'annualised growth')}; whiskers: 95% intervals "
-                 "(Newey-West covariance, delta method). The current regime is coloured.", png)
+                 f"(Newey-West covariance, delta method).{model_text} "
+                 "The current regime is coloured.", png)
 
 
 def _facts(d: ReportData) -> list[Fact]:
@@ -181,7 +186,8 @@ def _facts(d: ReportData) -> list[Fact]:
         ci = last["growth"].get("annualised_pct_ci95") or [None, None]
         if v is not None:
             sub = (f"95%: {ci[0]:.1f}% to {ci[1]:.1f}%" if None not in ci else "")
-            facts.append(Fact(f"growth since {last['start_label']}", f"{v:.1f}% a year", sub))
+            facts.append(Fact(f"growth since {last['start_label']} ({g.get('shape')} trend)",
+                              f"{v:.1f}% a year", sub))
     if d.breaks:
         b = d.breaks[-1]
         sub = (f"95%: {d.label(b.low)} to {d.label(b.high)}" if b.low is not None else "")
@@ -190,7 +196,8 @@ def _facts(d: ReportData) -> list[Fact]:
         facts.append(Fact("change of regime", "none found", ""))
     if d.forecast is not None and d.forecast.horizon:
         row = d.forecast.rows()[0]
-        facts.append(Fact(f"forecast {row['label']}", num(row["mean"]),
+        which = "recommended forecast" if d.recommended else "forecast"
+        facts.append(Fact(f"{which} {row['label']}", num(row["mean"]),
                           f"95%: {num(row['lower95'])} to {num(row['upper95'])}"))
     rec = d.recommended
     if rec:

@@ -3,11 +3,17 @@
 In order: what changed and when (with the date interval); how sure that is; how the global trend
 fails late; what history to keep; growth then versus now; the forecast for the next periods with
 its range. Each sentence is built from figures already in the result; none is computed here.
+
+Two models stand behind these sentences: the growth figures come from the growth table (the
+analyst's shape, one trend per regime), the forecast from the recommended strategy. Each sentence
+names its model in plain words, and the forecast sentence says so when the two shapes differ.
 """
 
 from __future__ import annotations
 
 from .extract import ReportData
+from .models import (forecast_shape, growth_measure, growth_model, recommended_candidate,
+                     strategy_words)
 from .tables import dig, num
 
 
@@ -75,8 +81,17 @@ def _late_failure(data: ReportData) -> str | None:
     else:
         crossing = diag.get("cusum_crossing_label")
     since = f"; its CUSUM path left the 5% band in {crossing}" if crossing else ""
-    return (f"A single trend over all history runs {way} the last {k} actual values by "
-            f"{num(abs(me))} on average{pct_text}{share_text}{since}.")
+    model = diag.get("model") or "global"
+    return (f"The {model} trend (one trend over all history) runs {way} the last {k} actual "
+            f"values by {num(abs(me))} on average{pct_text}{share_text}{since}.")
+
+
+def _history_shape(data: ReportData) -> str:
+    """The shape the history decision was judged with (the analyst's shape)."""
+    shape = dig(data.evaluation, "model", "shape")
+    if shape is None and data.spec is not None:
+        shape = getattr(data.spec, "shape", None)
+    return shape or "chosen"
 
 
 def _history(data: ReportData) -> str | None:
@@ -84,12 +99,19 @@ def _history(data: ReportData) -> str | None:
     if not hist:
         return None
     keep = hist.get("keep_from_label")
-    rec = dig(data.evaluation, "recommended", "name")
-    rec_text = f"; the recommended forecast is the {rec} strategy" if rec else ""
+    shape = _history_shape(data)
     if keep:
-        return (f"Keep the history from {keep} for forecasting: the trend fitted on it forecast "
-                f"past periods better than one fitted on all history{rec_text}.")
-    return f"Keep all history for forecasting{rec_text}."
+        return (f"Keep the history from {keep} for forecasting: on past periods, the truncated "
+                f"{shape} trend (fitted only on the history from {keep}) forecast better than "
+                f"the global {shape} trend on all history.")
+    if not dig(hist, "evidence", "breaks"):
+        return "Keep all history for forecasting: no break was found to cut it at."
+    p = dig(hist, "evidence", "sup_f_p_value")
+    if p is None or p >= 0.05:
+        return (f"Keep all history for forecasting with the global {shape} trend: the break "
+                f"test does not support cutting it (sup-F test p-value {_p_text(p)}).")
+    return (f"Keep all history for forecasting: on past periods, no truncated {shape} trend "
+            f"fitted from a break forecast better than the global {shape} trend on all history.")
 
 
 def _growth(data: ReportData) -> str | None:
@@ -110,11 +132,28 @@ def _growth(data: ReportData) -> str | None:
     now = piece(segs[-1])
     if now is None:
         return None
+    words = "; ".join(w for w in (growth_model(g), growth_measure(g)) if w)
     if len(segs) == 1:
-        return f"The trend grows {now} over the whole history."
+        return f"Growth ({words}) is {now}."
     then = piece(segs[-2])
-    return (f"Growth was {then} from {segs[-2]['start_label']} to {segs[-2]['end_label']} and is "
-            f"{now} since {segs[-1]['start_label']}.")
+    if then is None:
+        return f"Growth by regime ({words}) is {now} since {segs[-1]['start_label']}."
+    return (f"Growth by regime ({words}) was {then} from {segs[-2]['start_label']} to "
+            f"{segs[-2]['end_label']} and is {now} since {segs[-1]['start_label']}.")
+
+
+def _a(word: str) -> str:
+    return ("an " if word[:1] in "aeiou" else "a ") + word
+
+
+def _shapes_differ(data: ReportData, candidate) -> str | None:
+    """A clause when the forecast's shape is not the growth table's shape."""
+    growth_shape = (data.growth or {}).get("shape")
+    fc_shape = forecast_shape(candidate)
+    if not growth_shape or not fc_shape or growth_shape == fc_shape:
+        return None
+    return (f"; the growth figures above come from {_a(growth_shape)} trend and this forecast "
+            f"from {_a(fc_shape)} one, so the two need not agree")
 
 
 def _forecast(data: ReportData) -> str | None:
@@ -125,14 +164,19 @@ def _forecast(data: ReportData) -> str | None:
     if not rows:
         return None
     first, last = rows[0], rows[-1]
-    text = f"The forecast is {num(first['mean'])} for {first['label']}"
+    candidate = recommended_candidate(data.evaluation)
+    words = strategy_words(candidate)
+    if words:
+        text = f"The recommended forecast ({words}) is {num(first['mean'])} for {first['label']}"
+    else:
+        text = f"The forecast ({fc.model}) is {num(first['mean'])} for {first['label']}"
     if len(rows) > 1:
         text += f" rising to {num(last['mean'])} by {last['label']}" \
             if last["mean"] >= first["mean"] else \
             f" falling to {num(last['mean'])} by {last['label']}"
     text += (f", with a 95% range of {num(last['lower95'])} to {num(last['upper95'])} for "
-             f"{last['label']}.")
-    return text
+             f"{last['label']}")
+    return text + (_shapes_differ(data, candidate) or "") + "."
 
 
 def summary_sentences(data: ReportData) -> list[str]:

@@ -1,0 +1,85 @@
+"""Plain words for the models behind the report's figures.
+
+The growth figures come from the growth table (the analyst's shape, one trend per regime of the
+break search); the forecast comes from the recommended strategy, which may use another shape.
+The summary, the key figures and the captions name the model behind each figure with these
+words, so a reader never takes one model's figures for the other's. Words only: nothing is
+computed here.
+"""
+
+from __future__ import annotations
+
+from .tables import dig
+
+
+def growth_model(growth: dict | None) -> str | None:
+    """The growth table's model in words, e.g. "linear trend per regime"."""
+    if not growth or not growth.get("shape"):
+        return None
+    shape = growth["shape"]
+    if len(growth.get("segments") or ()) <= 1:
+        return f"one {shape} trend over the whole history"
+    return {"slope": f"{shape} trend per regime, joined at the breaks",
+            "level": f"{shape} trend with a level jump at each break and one shared slope",
+            }.get(growth.get("kind"), f"{shape} trend per regime")
+
+
+def growth_measure(growth: dict | None) -> str | None:
+    """What the growth table's "% a year" means for its shape, in a few words."""
+    if not growth:
+        return None
+    shape = growth.get("shape")
+    if shape == "exponential":
+        return "compound growth"
+    if shape == "linear":
+        return "yearly increase as % of the regime's fitted end level"
+    return growth.get("headline") or None
+
+
+def recommended_candidate(evaluation: dict | None) -> dict | None:
+    """The recommended candidate's entry (strategy, shape, last shape, start), or None."""
+    rec = dig(evaluation, "recommended")
+    if not isinstance(rec, dict) or not rec.get("name"):
+        return None
+    for c in (evaluation or {}).get("candidates") or ():
+        if c.get("name") == rec["name"]:
+            return c
+    return rec
+
+
+def _start_words(start) -> str:
+    if not start:
+        return "the last break"
+    start = str(start)
+    return start if start[:1].isdigit() else f"the {start}"
+
+
+def strategy_words(candidate: dict | None) -> str | None:
+    """A strategy in plain words, e.g. "separate exponential trends per regime, forecast from
+    the last regime"."""
+    if not candidate or not candidate.get("strategy"):
+        return None
+    kind, shape = candidate["strategy"], candidate.get("shape") or "trend"
+    last = candidate.get("last_shape")
+    if kind == "separate":
+        if last and last != shape:
+            return (f"separate trends per regime, {shape} before the last break and {last} "
+                    f"after it, forecast from the last regime")
+        return f"separate {shape} trends per regime, forecast from the last regime"
+    if kind == "global":
+        return f"one {shape} trend over all history"
+    if kind == "truncated":
+        return (f"one {shape} trend fitted only on the history from "
+                f"{_start_words(candidate.get('start'))}")
+    if kind == "continuous":
+        return f"a {shape} trend joined at the breaks, forecast from its last piece"
+    if kind == "window-average":
+        return f"the average of {shape} trend forecasts from several estimation-window starts"
+    return candidate.get("name")
+
+
+def forecast_shape(candidate: dict | None) -> str | None:
+    """The shape the recommended strategy forecasts with (its last regime's shape)."""
+    if not candidate:
+        return None
+    return candidate.get("last_shape") or candidate.get("shape")

@@ -41,10 +41,44 @@ def demo_analysis(name=None):
 
 
 @pytest.fixture(scope="module")
-def demo_report(tmp_path_factory):
+def hostile_analysis():
+    return demo_analysis(HOSTILE)
+
+
+@pytest.fixture(scope="module")
+def demo_report(tmp_path_factory, hostile_analysis):
     folder = tmp_path_factory.mktemp("demo_report")
-    written = write_report(demo_analysis(HOSTILE), folder, source_name="=cmd|' /C calc'!A0.csv")
+    written = write_report(hostile_analysis, folder, source_name="=cmd|' /C calc'!A0.csv")
     return folder, written
+
+
+def plain_analysis():
+    """An analysis with no break search and no rolling-origin evaluation (a stand-in object)."""
+    from types import SimpleNamespace
+
+    from regimetrend import resolve_spec, trend_forecast
+    from regimetrend.breaks.cusum import recursive_cusum
+    from regimetrend.forecast import fit_history
+    from regimetrend.growth import regime_growth
+
+    series = load_series(DEMO, name="plain")
+    spec = resolve_spec(series, shape="exponential")
+    forecast = trend_forecast(series, spec, 6)
+    growth = regime_growth(series, spec)
+    fit = fit_history(series, spec)
+    cusum = recursive_cusum(fit.fit.X @ fit.fit.beta + fit.fit.residuals, fit.fit.X).to_dict()
+    return SimpleNamespace(series=series, spec=spec, breaks=None, evaluation=None,
+                           growth=growth, forecast=forecast, global_forecast=forecast,
+                           global_fitted=fit.fitted(), cusum=cusum,
+                           cautions=("the series is short",),
+                           to_dict=lambda: {"growth": growth.to_dict(),
+                                            "forecast": forecast.to_dict()})
+
+
+def _snapshot(folder: Path) -> dict:
+    """Every file under ``folder`` with its bytes and modification time."""
+    return {p.relative_to(folder).as_posix(): (p.read_bytes(), p.stat().st_mtime_ns)
+            for p in sorted(folder.rglob("*")) if p.is_file()}
 
 
 class _Cells(HTMLParser):
@@ -273,33 +307,7 @@ def test_report_command_refuses_a_file_as_output_folder(tmp_path, capsys):
 
 
 def test_a_report_without_evaluation_or_breaks_says_what_is_missing(tmp_path):
-    # an analysis of a series with no break found and no rolling-origin evaluation
-    from types import SimpleNamespace
-
-    from regimetrend import resolve_spec, trend_forecast
-    from regimetrend.growth import regime_growth
-
-    series = load_series(DEMO, name="plain")
-    spec = resolve_spec(series, shape="exponential")
-    forecast = trend_forecast(series, spec, 6)
-    growth = regime_growth(series, spec)
-    from regimetrend.breaks.cusum import recursive_cusum
-    from regimetrend.forecast import fit_history
-
-    fit = fit_history(series, spec)
-    cusum = recursive_cusum(fit.fit.X @ fit.fit.beta + fit.fit.residuals, fit.fit.X).to_dict()
-    analysis = SimpleNamespace(series=series, spec=spec, breaks=None, evaluation=None,
-                               growth=growth, forecast=forecast, global_forecast=forecast,
-                               global_fitted=fit.fitted(), cusum=cusum,
-                               cautions=("the series is short",),
-                               to_dict=lambda: {"growth": growth.to_dict(),
-                                                "forecast": forecast.to_dict()})
-    (tmp_path / "charts").mkdir()
-    (tmp_path / "charts" / "forecast_errors.png").write_bytes(b"from an earlier run")
-    (tmp_path / "charts" / "mine.png").write_bytes(b"the analyst's own file")
-    write_report(analysis, tmp_path)
-    assert not (tmp_path / "charts" / "forecast_errors.png").exists()
-    assert (tmp_path / "charts" / "mine.png").exists()
+    write_report(plain_analysis(), tmp_path)
     result = json.loads((tmp_path / "report.json").read_text())
     assert set(result["report"]["charts"]) == {"series_regimes", "cusum", "growth_by_regime"}
     assert len(result["report"]["not_shown"]) == 3
@@ -307,6 +315,231 @@ def test_a_report_without_evaluation_or_breaks_says_what_is_missing(tmp_path):
     assert result["report"]["summary"][0].startswith("No change of growth regime was found")
     text = (tmp_path / "report.html").read_text()
     assert "is not shown" in text
+
+
+# ------------------------------------------------------------- writing: all or nothing, stale files
+
+
+@pytest.mark.parametrize("where", ["chart", "workbook", "html", "json"])
+def test_a_failure_while_building_leaves_the_folder_untouched(tmp_path, monkeypatch, where):
+    from regimetrend.report import charts, html, writer
+
+    folder = tmp_path / "rep"
+    write_report(plain_analysis(), folder)  # an earlier report in the folder
+    before = _snapshot(folder)
+    fresh = tmp_path / "never-made"
+
+    def fail(*args, **kwargs):
+        raise RuntimeError("forced failure while building")
+
+    target = {"chart": (charts, "growth_chart"), "workbook": (writer, "workbook_bytes"),
+              "html": (html, "page"), "json": (writer, "dumps")}[where]
+    monkeypatch.setattr(*target, fail)
+    for out in (folder, fresh):
+        with pytest.raises(RuntimeError, match="forced failure"):
+            write_report(plain_analysis(), out)
+    assert _snapshot(folder) == before  # nothing replaced, added or removed
+    assert not fresh.exists()  # not even the folder
+
+
+def test_a_target_in_the_way_is_refused_before_anything_is_written(tmp_path):
+    from regimetrend.errors import InputError
+
+    (tmp_path / "report.html").mkdir()  # a folder where the page would go
+    (tmp_path / "mine.txt").write_text("the analyst's")
+    before = _snapshot(tmp_path)
+    with pytest.raises(InputError, match="report.html"):
+        write_report(plain_analysis(), tmp_path)
+    assert _snapshot(tmp_path) == before
+
+
+def test_the_analysts_own_files_survive(tmp_path):
+    (tmp_path / "charts").mkdir()
+    (tmp_path / "tables").mkdir()
+    own = {"charts/x.png": b"the analyst's chart", "tables/y.csv": b"a,b\n1,2\n",
+           # same names as report files this run does not write, but no earlier run wrote them
+           "charts/forecast_errors.png": b"not ours", "tables/candidate_ranking.csv": b"mine"}
+    for rel, data in own.items():
+        (tmp_path / rel).write_bytes(data)
+    write_report(plain_analysis(), tmp_path)
+    write_report(plain_analysis(), tmp_path)  # a second run reads the first run's manifest
+    for rel, data in own.items():
+        assert (tmp_path / rel).read_bytes() == data, rel
+    files = json.loads((tmp_path / "report.json").read_text())["report"]["files"]
+    assert "charts/x.png" not in files and "charts/forecast_errors.png" not in files
+    assert all((tmp_path / f).is_file() for f in files)
+
+
+def test_an_earlier_runs_files_that_are_no_longer_made_are_removed(tmp_path, hostile_analysis):
+    write_report(hostile_analysis, tmp_path)
+    earlier = set(json.loads((tmp_path / "report.json").read_text())["report"]["files"])
+    assert {"charts/forecast_errors.png", "tables/candidate_ranking.csv"} <= earlier
+    (tmp_path / "charts" / "x.png").write_bytes(b"the analyst's chart")
+    write_report(plain_analysis(), tmp_path)  # makes fewer charts and tables
+    now = set(json.loads((tmp_path / "report.json").read_text())["report"]["files"])
+    for rel in earlier - now:
+        assert not (tmp_path / rel).exists(), rel
+    assert {"charts/forecast_errors.png", "charts/history_sweep.png",
+            "tables/candidate_ranking.csv"} <= earlier - now
+    assert all((tmp_path / rel).is_file() for rel in now)
+    assert (tmp_path / "charts" / "x.png").read_bytes() == b"the analyst's chart"
+
+
+def test_a_manifest_never_reaches_outside_the_reports_own_files(tmp_path):
+    inside = tmp_path / "rep"
+    write_report(plain_analysis(), inside)
+    planted = {"outside.png": tmp_path / "outside.png", "data.csv": inside / "data.csv",
+               "charts/sub/deep.png": inside / "charts" / "sub" / "deep.png",
+               "charts/notes.txt": inside / "charts" / "notes.txt"}
+    for path in planted.values():
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_bytes(b"keep")
+    manifest = json.loads((inside / "report.json").read_text())
+    manifest["report"]["files"] += ["../outside.png", str(tmp_path / "outside.png"), "data.csv",
+                                    "charts/../../outside.png", "charts/sub/deep.png",
+                                    "charts/notes.txt", "tables/..", 7, None]
+    (inside / "report.json").write_text(json.dumps(manifest))
+    write_report(plain_analysis(), inside)
+    for path in planted.values():
+        assert path.read_bytes() == b"keep", path
+
+
+# --------------------------------------------------------------------- what the summary says
+
+
+def test_summary_names_the_model_behind_growth_and_forecast(demo_report):
+    folder, _ = demo_report
+    result = json.loads((folder / "report.json").read_text())
+    summary = result["report"]["summary"]
+    growth = next(s for s in summary if "% a year" in s and "since" in s)
+    forecast = summary[-1]
+    shape = result["growth"]["shape"]
+    assert growth.startswith("Growth by regime (") and f"{shape} trend" in growth
+    rec = result["evaluation"]["recommended"]
+    assert forecast.startswith("The recommended forecast (")
+    assert f"{rec['shape']} trend" in forecast
+    history = next(s for s in summary if s.startswith("Keep "))
+    assert f"global {result['model']['shape']} trend" in history  # which strategy it judged
+
+
+def test_summary_warns_when_growth_and_forecast_shapes_differ(hostile_analysis):
+    # the reviewer's case: growth table with the linear shape, forecast from separate
+    # exponential trends
+    from dataclasses import replace
+
+    from regimetrend.report.extract import gather
+    from regimetrend.report.summary import summary_sentences
+
+    data = gather(hostile_analysis)
+    rec = {"name": "separate exponential", "strategy": "separate", "shape": "exponential"}
+    evaluation = dict(data.evaluation, recommended=rec,
+                      candidates=[dict(rec, last_shape=None, start=None)])
+    mixed = replace(data, growth=dict(data.growth, shape="linear"), evaluation=evaluation)
+    text = summary_sentences(mixed)
+    assert 5 <= len(text) <= 6
+    growth = next(t for t in text if t.startswith("Growth by regime ("))
+    assert growth.startswith("Growth by regime (linear trend per regime")
+    assert text[-1].startswith("The recommended forecast (separate exponential trends per "
+                               "regime, forecast from the last regime) is ")
+    assert "growth figures above come from a linear trend and this forecast from an " \
+           "exponential one" in text[-1]
+    same = replace(data, evaluation=evaluation)  # exponential growth table, exponential forecast
+    assert "need not agree" not in " ".join(summary_sentences(same))
+
+
+def test_history_sentence_names_the_strategies_it_judged(hostile_analysis):
+    from dataclasses import replace
+
+    from regimetrend.report.extract import gather
+    from regimetrend.report.summary import summary_sentences
+
+    data = gather(hostile_analysis)
+
+    def history(keep, breaks, p):
+        ev = dict(data.evaluation, model=dict(data.evaluation["model"], shape="quadratic"),
+                  history={"keep_from_label": keep,
+                           "evidence": {"breaks": breaks, "sup_f_p_value": p}})
+        return next(t for t in summary_sentences(replace(data, evaluation=ev))
+                    if t.startswith("Keep "))
+
+    cut = history("2021-04", [{"label": "2021-04"}], 0.001)
+    assert "the truncated quadratic trend (fitted only on the history from 2021-04)" in cut
+    assert "than the global quadratic trend on all history" in cut
+    assert "no truncated quadratic trend" in history(None, [{"label": "2021-04"}], 0.001)
+    weak = history(None, [{"label": "2021-04"}], 0.4)
+    assert "global quadratic trend" in weak and "0.400" in weak
+    assert "no break was found" in history(None, [], None)
+
+
+def test_linear_shape_summary_says_which_model_each_figure_comes_from(tmp_path):
+    from regimetrend.analysis import analyze
+
+    analysis = analyze(load_series(DEMO), shape="linear", seasonality="dummies", horizon=12,
+                       step=6)
+    write_report(analysis, tmp_path)
+    result = json.loads((tmp_path / "report.json").read_text())
+    summary = result["report"]["summary"]
+    assert 5 <= len(summary) <= 6
+    text = " ".join(summary)
+    assert "linear trend" in text and "% of the regime's fitted end level" in text
+    rec_shape = analysis.evaluation.recommended.shape
+    assert ("need not agree" in summary[-1]) == (rec_shape != "linear")
+    assert "The global linear trend (one trend over all history)" in text
+
+
+def test_cautions_section_shows_the_analysis_cautions_as_given(demo_report, hostile_analysis):
+    folder, _ = demo_report
+    result = json.loads((folder / "report.json").read_text())
+    assert result["report"]["cautions"] == list(hostile_analysis.cautions)
+
+    class Items(HTMLParser):
+        def __init__(self):
+            super().__init__()
+            self.inside, self.items = False, []
+
+        def handle_starttag(self, tag, attrs):
+            if tag == "ul" and ("class", "cautions") in attrs:
+                self.inside = True
+            elif tag == "li" and self.inside:
+                self.items.append("")
+
+        def handle_endtag(self, tag):
+            if tag == "ul":
+                self.inside = False
+
+        def handle_data(self, data):
+            if self.inside and self.items:
+                self.items[-1] += data
+
+    items = Items()
+    items.feed((folder / "report.html").read_text())
+    assert items.items == list(hostile_analysis.cautions)
+
+
+def test_the_report_package_imports_no_fitting_or_statistics_code():
+    # the report reads the analysis; it must not refit or test anything itself
+    import ast
+
+    forbidden = ("scipy", "statsmodels", "sklearn", "ruptures", "regimetrend.ols",
+                 "regimetrend.trendfit", "regimetrend.growth", "regimetrend.regimes",
+                 "regimetrend.breaks", "regimetrend.forecast", "regimetrend.design",
+                 "regimetrend.holdout", "regimetrend.metrics", "regimetrend.analysis")
+    relative = {"ols", "trendfit", "growth", "regimes", "breaks", "forecast", "design",
+                "holdout", "metrics", "analysis"}
+    package = Path(__file__).resolve().parents[1] / "regimetrend" / "report"
+    for path in package.glob("*.py"):
+        for node in ast.walk(ast.parse(path.read_text())):
+            names = []
+            if isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom):
+                mod = node.module or ""
+                if node.level >= 2:  # from ..x import y
+                    assert mod.split(".")[0] not in relative, (path.name, mod)
+                    mod = "regimetrend." + mod
+                names = [mod]
+            for name in names:
+                assert not name.startswith(forbidden), (path.name, name)
 
 
 def test_dollar_signs_in_names_are_drawn_as_text():

@@ -1,21 +1,31 @@
-"""Write every report output into one folder, each file through a temporary file and a rename.
+"""Write every report output into one folder: all of it built first, then written.
 
 Files written (names relative to the folder):
 
 - ``report.html``             the self-contained report (charts inline, no scripts, no fetches)
-- ``report.json``             the full result (``Analysis.to_dict()``) plus what the report shows
+- ``report.json``             the full result (``Analysis.to_dict()``) plus what the report shows;
+                              ``report.files`` lists every file this run wrote (the manifest)
 - ``report.xlsx``             one workbook: a sheet per table, the summary and the cautions
 - ``charts/<name>.png``       each chart
 - ``tables/<name>.csv``       each table, full precision, formula-like text made inert
+
+Every output's bytes are made in memory before the first file is touched, so a failure while
+building (a chart that cannot be drawn, say) leaves the folder as it was. The targets are then
+checked (none may be a folder or the input file), each file is written through a temporary file
+and a rename, and ``report.json`` goes last. Only then are the files of an earlier report that
+this run did not write again removed, and only those that the earlier ``report.json`` lists as
+its own: a file the analyst put in ``charts/`` or ``tables/`` is never touched.
 """
 
 from __future__ import annotations
 
 import csv
 import io
+import json
 from pathlib import Path
 
-from ..output import dumps, write_atomic
+from ..errors import InputError
+from ..output import check_targets, dumps, write_atomic
 from . import html
 from .content import Content, build
 from .extract import gather
@@ -78,60 +88,97 @@ def workbook_bytes(content: Content) -> bytes:
     return buf.getvalue()
 
 
-def report_json(data, content: Content) -> dict:
-    """The full result, with the report's own parts beside it."""
+def report_json(data, content: Content, files: list[str]) -> dict:
+    """The full result, with the report's own parts beside it; ``files`` is the manifest."""
     result = dict(data.result)
     if data.growth is not None and "growth" not in result:
         result["growth"] = data.growth
     result["report"] = {"summary": content.summary, "cautions": content.cautions,
                         "charts": [c.name for c in content.charts],
                         "tables": [t.name for t in content.tables],
-                        "not_shown": content.missing}
+                        "not_shown": content.missing, "files": files}
     return result
 
 
-CHART_NAMES = ("series_regimes", "forecast_errors", "cusum", "history_sweep",
-               "accuracy_by_horizon", "growth_by_regime")
-TABLE_NAMES = ("growth_by_regime", "candidate_ranking", "forecast", "breaks")
+MANIFEST = "report.json"
+OWN_FOLDERS = {"charts": ".png", "tables": ".csv"}  # the only places stale files are removed
 
 
-def _remove_stale(folder: Path, content: Content) -> None:
-    """Drop report files of an earlier run that this run did not write (only our own names),
-    so a folder never mixes two analyses."""
-    shown = {c.name for c in content.charts}
-    tabled = {t.name for t in content.tables}
-    for name in CHART_NAMES:
-        if name not in shown:
-            (folder / "charts" / f"{name}.png").unlink(missing_ok=True)
-    for name in TABLE_NAMES:
-        if name not in tabled:
-            (folder / "tables" / f"{name}.csv").unlink(missing_ok=True)
+def _own_file(entry) -> Path | None:
+    """A manifest entry as a relative path, when it names one of the report's own chart or
+    table files (``charts/<name>.png``, ``tables/<name>.csv``); anything else is ignored."""
+    if not isinstance(entry, str):
+        return None
+    parts = entry.split("/")
+    if len(parts) != 2 or parts[0] not in OWN_FOLDERS:
+        return None
+    name = parts[1]
+    if (not name.endswith(OWN_FOLDERS[parts[0]]) or name.startswith(".") or "\\" in name
+            or name in ("", "..")):
+        return None
+    return Path(*parts)
+
+
+def previous_files(folder: Path) -> set[Path]:
+    """The chart and table files an earlier run listed in its ``report.json`` (none when the
+    file is missing, unreadable or not one of ours)."""
+    try:
+        earlier = json.loads((folder / MANIFEST).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return set()
+    files = earlier.get("report", {}).get("files") if isinstance(earlier, dict) else None
+    if not isinstance(files, list):
+        return set()
+    return {p for p in map(_own_file, files) if p is not None}
+
+
+def _remove_stale(folder: Path, earlier: set[Path], written: set[Path]) -> None:
+    """Remove the earlier run's chart and table files that this run did not write again, so a
+    folder never mixes two analyses. Nothing outside the earlier manifest is removed."""
+    for rel in sorted(earlier - written):
+        path = folder / rel
+        if path.is_file() and not path.is_symlink():
+            path.unlink()
+
+
+def build_outputs(data, content: Content) -> dict[str, tuple[Path, bytes | str]]:
+    """Every output in memory: {output name: (path relative to the folder, bytes or text)}."""
+    from .. import __version__
+
+    out: dict[str, tuple[Path, bytes | str]] = {}
+    for chart in content.charts:
+        out[f"chart {chart.name}"] = (Path("charts", f"{chart.name}.png"), chart.png)
+    for table in content.tables:
+        out[f"table {table.name}"] = (Path("tables", f"{table.name}.csv"), table_csv(table))
+    out["workbook"] = (Path("report.xlsx"), workbook_bytes(content))
+    out["html"] = (Path("report.html"),
+                   html.page(title=content.title, subtitle=content.subtitle, facts=content.facts,
+                             summary=content.summary, charts=content.charts,
+                             tables=content.tables, cautions=content.cautions,
+                             missing=content.missing,
+                             footer=f"Made with regimetrend {__version__}. The full result is "
+                                    f"in report.json; tables as CSV in tables/ and in "
+                                    f"report.xlsx; charts as PNG in charts/."))
+    files = sorted([p.as_posix() for p, _ in out.values()] + [MANIFEST])
+    out["json"] = (Path(MANIFEST), dumps(report_json(data, content, files)))
+    return out
 
 
 def write_report(analysis, folder, *, source_name: str | None = None) -> dict:
     """Write the HTML report, charts, CSV tables, workbook and JSON for ``analysis`` into
-    ``folder``; returns {output name: path}."""
-    from .. import __version__
-
+    ``folder``; returns {output name: path}. Nothing is written when building any output
+    fails."""
     folder = Path(folder)
-    folder.mkdir(parents=True, exist_ok=True)
     data = gather(analysis, source_name)
-    content = build(data)
+    outputs = build_outputs(data, build(data))
+    if folder.exists() and not folder.is_dir():
+        raise InputError(f"--output: {folder} is a file, not a folder")
+    check_targets([folder / rel for rel, _ in outputs.values()], "--output")
+    earlier = previous_files(folder)
+    folder.mkdir(parents=True, exist_ok=True)
     written: dict[str, Path] = {}
-    for chart in content.charts:
-        written[f"chart {chart.name}"] = write_atomic(folder / "charts" / f"{chart.name}.png",
-                                                      chart.png)
-    for table in content.tables:
-        written[f"table {table.name}"] = write_atomic(folder / "tables" / f"{table.name}.csv",
-                                                      table_csv(table))
-    written["workbook"] = write_atomic(folder / "report.xlsx", workbook_bytes(content))
-    written["json"] = write_atomic(folder / "report.json", dumps(report_json(data, content)))
-    page = html.page(title=content.title, subtitle=content.subtitle, facts=content.facts,
-                     summary=content.summary, charts=content.charts, tables=content.tables,
-                     cautions=content.cautions, missing=content.missing,
-                     footer=f"Made with regimetrend {__version__}. The full result is in "
-                            f"report.json; tables as CSV in tables/ and in report.xlsx; charts "
-                            f"as PNG in charts/.")
-    written["html"] = write_atomic(folder / "report.html", page)
-    _remove_stale(folder, content)
-    return {k: str(v) for k, v in written.items()}
+    for key in [k for k in outputs if k != "json"] + ["json"]:  # the manifest last
+        rel, payload = outputs[key]
+        written[key] = write_atomic(folder / rel, payload, "--output")
+    _remove_stale(folder, earlier, {rel for rel, _ in outputs.values()})
+    return {k: str(written[k]) for k in outputs}

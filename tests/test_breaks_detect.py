@@ -475,3 +475,18 @@ def test_the_break_cap_used_is_part_of_the_result():
     assert detect_breaks(short).max_breaks == 2
     assert detect_breaks(short, max_breaks=1).to_dict()["max_breaks"] == 1
     assert detect_breaks(rseries("Nile", "year")).max_breaks == 3
+
+
+def test_sequential_kind_choice_prefers_the_nesting_kind_when_a_near_tie_moves_the_dates():
+    from regimetrend.breaks.detect import _choose
+
+    values = {"both": [10.0, 1.0], "slope": [10.0, 0.5], "level": [10.0, 5.0]}
+    counts = {"both": 1, "slope": 1, "level": 1}
+    moved = {"both": [(), (63,)], "slope": [(), (60,)], "level": [(), (63,)]}
+    same = {"both": [(), (60,)], "slope": [(), (60,)], "level": [(), (63,)]}
+    kinds = ("both", "level", "slope")
+    assert _choose(values, kinds, counts, moved) == ("both", 1)  # BIC gap 0.5 < 2, dates move
+    assert _choose(values, kinds, counts, same) == ("slope", 1)  # same dates: keep parsimony
+    far = dict(values, both=[10.0, 3.0])
+    assert _choose(far, kinds, counts, moved) == ("slope", 1)  # gap 2.5: the data prefer slope
+    assert _choose(values, kinds, None, None) == ("slope", 1)  # BIC / LWZ: plain minimum

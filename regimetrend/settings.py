@@ -39,7 +39,7 @@ class Settings:
     seasonality: str = "auto"
     season_length: int | None = None
     kind: str = "auto"
-    max_breaks: int = 3
+    max_breaks: int | None = None  # None: up to 3, as many as the series can hold
     trim: float | int | None = None
     criterion: str = "sequential"
     events: tuple[str, ...] = ()

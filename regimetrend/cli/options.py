@@ -36,8 +36,9 @@ def add_break_options(p) -> None:
     p.add_argument("--kind", default="auto", choices=("auto", "level", "slope", "both"),
                    help="what may change at a break: level (jump), slope (kink), both; "
                         "auto lets the criterion choose")
-    p.add_argument("--max-breaks", type=_nonnegative_int, default=3,
-                   help="largest number of breaks considered (default 3)")
+    p.add_argument("--max-breaks", type=_nonnegative_int, default=None,
+                   help="largest number of breaks considered (default 3, fewer when the series "
+                        "is too short to hold them)")
     p.add_argument("--event", action="append", default=[], metavar="DATE",
                    help="a known event date to test as a break (repeatable)")
     p.add_argument("--trim", type=_trim, default=None,

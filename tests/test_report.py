@@ -463,7 +463,7 @@ def test_history_sentence_names_the_strategies_it_judged(hostile_analysis):
                     if t.startswith("Keep "))
 
     cut = history("2021-04", [{"label": "2021-04"}], 0.001)
-    assert "the truncated quadratic trend (fitted only on the history from 2021-04)" in cut
+    assert "a quadratic trend refitted at each forecast origin from the latest break" in cut
     assert "than the global quadratic trend on all history" in cut
     assert "no truncated quadratic trend" in history(None, [{"label": "2021-04"}], 0.001)
     weak = history(None, [{"label": "2021-04"}], 0.4)

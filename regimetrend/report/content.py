@@ -114,7 +114,7 @@ def _history_chart(d: ReportData) -> Chart | None:
     dates = [r["start"] for r in rows]
     keep = dig(d.evaluation, "history", "keep_from")
     evidence = dig(d.evaluation, "history", "evidence") or {}
-    points = [(b.get("date"), b.get("rmse_from_break"), "start at a break (its full-sample date)")
+    points = [(b.get("date"), b.get("rmse_from_break"), "start at a full-sample break (optimistic: in-sample break)")
               for b in evidence.get("breaks") or [] if b.get("date")]
     redetected = evidence.get("rmse_after_redetected_last_break",
                               evidence.get("rmse_after_last_break"))

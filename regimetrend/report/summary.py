@@ -101,9 +101,10 @@ def _history(data: ReportData) -> str | None:
     keep = hist.get("keep_from_label")
     shape = _history_shape(data)
     if keep:
-        return (f"Keep the history from {keep} for forecasting: on past periods, the truncated "
-                f"{shape} trend (fitted only on the history from {keep}) forecast better than "
-                f"the global {shape} trend on all history.")
+        return (f"Keep the history from {keep} for forecasting: on past periods, a {shape} "
+                f"trend refitted at each forecast origin from the latest break found in the "
+                f"history known then forecast better than the global {shape} trend on all "
+                f"history.")
     if not dig(hist, "evidence", "breaks"):
         return "Keep all history for forecasting: no break was found to cut it at."
     p = dig(hist, "evidence", "sup_f_p_value")

@@ -18,6 +18,7 @@ from functools import lru_cache
 
 import numpy as np
 from scipy import stats
+from scipy.linalg import solve_triangular
 
 
 @lru_cache(maxsize=4096)
@@ -178,8 +179,6 @@ def _cholesky_factor(Xs: np.ndarray) -> np.ndarray | None:
 
 def _semi_normal(r: np.ndarray, rhs: np.ndarray) -> np.ndarray:
     """Solve R'R b = rhs with two triangular solves."""
-    from scipy.linalg import solve_triangular
-
     z = solve_triangular(r, rhs, trans="T")
     return solve_triangular(r, z)
 
@@ -213,13 +212,13 @@ def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
         diag = np.abs(np.diag(r))
         if diag.min() <= diag.max() * 1e-12 * max(n, k):
             raise RankDeficient("design columns are linearly dependent")
-        beta_s = np.linalg.solve(r, q.T @ y) if k else np.zeros(0)
+        beta_s = solve_triangular(r, q.T @ y, check_finite=False) if k else np.zeros(0)
         # One step of iterative refinement recovers digits lost on ill-conditioned designs.
         resid = y - Xs @ beta_s
-        beta_s = beta_s + np.linalg.solve(r, q.T @ resid)
+        beta_s = beta_s + solve_triangular(r, q.T @ resid, check_finite=False)
     beta = beta_s / norms
     resid = y - X @ beta
-    r_inv = np.linalg.solve(r, np.eye(k))
+    r_inv = solve_triangular(r, np.eye(k), check_finite=False)
     xtx_inv = (r_inv @ r_inv.T) / np.outer(norms, norms)
     return LeastSquaresFit(beta=beta, residuals=resid, X=X, xtx_inv=xtx_inv,
                            ssr=float(resid @ resid), n=n, k=k, k_outside=int(k_outside))

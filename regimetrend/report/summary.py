@@ -101,8 +101,9 @@ def _history(data: ReportData) -> str | None:
     keep = hist.get("keep_from_label")
     shape = _history_shape(data)
     if keep:
-        return (f"Keep the history from {keep} for forecasting: on past periods, a {shape} "
-                f"trend refitted at each forecast origin from the latest break found in the "
+        article = "an" if shape[:1].lower() in "aeiou" else "a"
+        return (f"Keep the history from {keep} for forecasting: on past periods, {article} "
+                f"{shape} trend refitted at each forecast origin from the latest break found in the "
                 f"history known then forecast better than the global {shape} trend on all "
                 f"history.")
     if not dig(hist, "evidence", "breaks"):

@@ -36,3 +36,16 @@ def air_passengers() -> Series:
 @pytest.fixture
 def johnson_johnson() -> Series:
     return rseries("JohnsonJohnson", "quarter")
+
+
+def hand_prewhitened_factor(e):
+    """min(1, gamma_0 / omega^2), omega^2 the AR(1)-prewhitened Bartlett long-run variance
+    with Andrews' (1991) AR(1) plug-in bandwidth (Andrews and Monahan, 1992), written out by
+    hand from the published formulas."""
+    rho = float(e[1:] @ e[:-1] / (e[:-1] @ e[:-1]))
+    v = e[1:] - rho * e[:-1]
+    r = float(v[1:] @ v[:-1] / (v[:-1] @ v[:-1]))
+    S = 1.1447 * (4 * r ** 2 / ((1 - r) ** 2 * (1 + r) ** 2) * v.size) ** (1 / 3)
+    gam = [float(v[j:] @ v[:len(v) - j]) / v.size for j in range(len(v))]
+    lrv_v = gam[0] + 2 * sum((1 - j / S) * gam[j] for j in range(1, len(v)) if j < S)
+    return min(1.0, float(e @ e / e.size) / (lrv_v / (1 - rho) ** 2))

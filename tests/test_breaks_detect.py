@@ -16,7 +16,7 @@ from regimetrend.breaks import BreakSet, detect_breaks
 from regimetrend.errors import InputError
 from regimetrend.series import Frequency, Series
 
-from .conftest import rseries
+from .conftest import hand_prewhitened_factor, rseries
 
 
 def _monthly(values, start="2012-01"):
@@ -282,13 +282,7 @@ def test_supf_statistic_equals_brute_force_f_on_nile():
     # from the published formulas.
     robust = detect_breaks(nile, kind="level")
     e = fits[int(np.argmax(stats)) + h].resid
-    rho = float(e[1:] @ e[:-1] / (e[:-1] @ e[:-1]))
-    v = e[1:] - rho * e[:-1]
-    r = float(v[1:] @ v[:-1] / (v[:-1] @ v[:-1]))
-    S = 1.1447 * (4 * r ** 2 / ((1 - r) ** 2 * (1 + r) ** 2) * v.size) ** (1 / 3)
-    gam = [float(v[j:] @ v[:len(v) - j]) / v.size for j in range(len(v))]
-    lrv_v = gam[0] + 2 * sum((1 - j / S) * gam[j] for j in range(1, len(v)) if j < S)
-    factor = float(e @ e / e.size) / (lrv_v / (1 - rho) ** 2)
+    factor = hand_prewhitened_factor(e)
     assert robust.tests.supf.statistic == pytest.approx(max(stats) * factor, rel=1e-9)
     assert robust.tests.supf.statistic < result.tests.supf.statistic  # Nile flows persist
 

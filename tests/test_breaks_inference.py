@@ -27,8 +27,8 @@ from regimetrend.breaks.cusum import (CusumPath, ols_cusum, recursive_cusum,
                                       recursive_residuals)
 from regimetrend.breaks.intervals import (argmax_cdf, argmax_quantile, break_interval,
                                           profile_interval, profile_threshold)
-from tests.conftest import hand_prewhitened_factor as _prewhitened_factor
 from regimetrend.errors import InputError
+from tests.conftest import hand_prewhitened_factor as _prewhitened_factor
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 TREND_MODELS = [f"{t}-{k}" for t in ("linear", "quadratic") for k in ("level", "slope", "both")]

@@ -361,19 +361,33 @@ class OriginFits:
         return ()
 
     def prefit(self, strategies, horizon: int) -> None:
-        """Fit every single trend the strategies need, one batched QR per shape."""
+        """Fit every single trend the strategies need, one batched QR per design: shapes with
+        the same trend columns (linear and exponential: [1, u]) and the same window starts
+        share one QR, only their responses differ."""
         positions = np.arange(self.origin, self.origin + horizon)
         wanted: dict = {}
         for st in strategies:
             wanted.setdefault(st.shape, set()).update(self.single_starts(st))
+        groups: dict = {}
         for shape, starts in wanted.items():
-            self.prefit_windows(shape, sorted(starts), positions)
+            todo = self._todo(shape, sorted(starts), positions)
+            columns = "quadratic" if shape == "quadratic" else "linear"
+            groups.setdefault((columns, tuple(todo)), []).append(shape)
+        for (_, todo), shapes in groups.items():
+            self._prefit_group(shapes, list(todo), positions)
+
+    def _todo(self, shape: str, starts, positions) -> list:
+        """Window starts of ``shape`` whose forecasts are not cached yet."""
+        return [s for s in starts if (shape, s, len(positions)) not in self._forecasts]
 
     def prefit_windows(self, shape: str, starts, positions) -> None:
         """Fit the single trends of several window starts in one batched QR (see
         ``batched_forecasts``) and cache their forecasts; ``adjust`` keeps the one-by-one path."""
-        spec = self.spec_for(shape)
-        todo = [s for s in starts if (shape, s, len(positions)) not in self._forecasts]
+        self._prefit_group([shape], self._todo(shape, starts, positions), positions)
+
+    def _prefit_group(self, shapes, todo, positions) -> None:
+        """Batched fits of the windows ``todo`` for shapes sharing one design (one QR)."""
+        spec = self.spec_for(shapes[0])
         if spec.seasonality == "adjust" or len(todo) < 2:
             return
         first = np.asarray(todo, dtype=float)
@@ -384,22 +398,31 @@ class OriginFits:
         X = self._stacked_design(spec, center, spread, 0, self.origin)
         X[np.arange(self.origin)[None, :] < first[:, None]] = 0.0
         X_new = self._stacked_design(spec, center, spread, p0, p1)
-        got = batched_forecasts(X, self._model_y(spec), np.asarray(todo), X_new,
-                                spec.log_scale, np.asarray(positions))
+        specs = [self.spec_for(sh) for sh in shapes]
+        got = batched_forecasts_many(X, [self._model_y(sp) for sp in specs], np.asarray(todo),
+                                     X_new, [sp.log_scale for sp in specs],
+                                     np.asarray(positions))
         if got is None:
             return  # a window's design is singular: the one-by-one path reports it
-        for s, fc in zip(todo, got):
-            self._forecasts[(shape, s, len(positions))] = fc
+        for shape, forecasts in zip(shapes, got):
+            for s, fc in zip(todo, forecasts):
+                self._forecasts[(shape, s, len(positions))] = fc
 
     def _stacked_design(self, spec, center, spread, start: int, stop: int) -> np.ndarray:
         """(windows, stop - start, k) designs: [1, u, (u^2)] on each window's own time scale,
         then the shared seasonal columns."""
         u = (np.arange(start, stop, dtype=float)[None, :] - center[:, None]) / spread[:, None]
-        cols = [np.ones_like(u), u] + ([u * u] if spec.shape == "quadratic" else [])
-        if spec.seasonality == "dummies":
-            season = self._seasonal(start, stop)
-            cols += [np.broadcast_to(season[:, j], u.shape) for j in range(season.shape[1])]
-        return np.stack(cols, axis=-1)
+        p = 3 if spec.shape == "quadratic" else 2
+        season = self._seasonal(start, stop) if spec.seasonality == "dummies" else None
+        k = p + (season.shape[1] if season is not None else 0)
+        X = np.empty(u.shape + (k,))
+        X[..., 0] = 1.0
+        X[..., 1] = u
+        if p == 3:
+            X[..., 2] = u * u
+        if season is not None:
+            X[..., p:] = season[None, :, :]
+        return X
 
     def window_starts_for(self, shape: str) -> tuple[int, ...]:
         """Starts of the windows averaged here: those leaving at least the minimum window (and
@@ -442,8 +465,16 @@ def batched_forecasts(X, y, starts, X_new, log_scale: bool, positions):
     Householder QR, one step of iterative refinement, s^2 (1 + x'(X'X)^-1 x)), stacked over the
     windows so that numpy makes one call per step instead of one per window; the tests check
     it against the one-by-one fits. Returns None when any window's design is rank deficient."""
+    got = batched_forecasts_many(X, [y], starts, X_new, [log_scale], positions)
+    return None if got is None else got[0]
+
+
+def batched_forecasts_many(X, ys, starts, X_new, log_scales, positions):
+    """``batched_forecasts`` for several responses on the same W designs (linear and
+    exponential trends share their columns): the QR, (X'X)^-1 and leverages are computed once,
+    the y-dependent steps once per response. Returns one list of forecasts per response, or
+    None when any window's design is rank deficient."""
     W, n, k = X.shape
-    yy = np.where(np.arange(n)[None, :] >= starts[:, None], y[None, :], 0.0)
     norms = np.linalg.norm(X, axis=1)
     if np.any(norms == 0):
         return None
@@ -453,30 +484,37 @@ def batched_forecasts(X, y, starts, X_new, log_scale: bool, positions):
     n_w = n - starts
     if np.any(diag.min(axis=1) <= diag.max(axis=1) * 1e-12 * np.maximum(n_w, k)):
         return None
-    qty = np.einsum("wnk,wn->wk", q, yy)
-    beta_s = np.linalg.solve(r, qty[..., None])[..., 0]
-    resid = yy - np.einsum("wnk,wk->wn", Xs, beta_s)
-    beta_s = beta_s + np.linalg.solve(r, np.einsum("wnk,wn->wk", q, resid)[..., None])[..., 0]
-    beta = beta_s / norms
-    resid = yy - np.einsum("wnk,wk->wn", X, beta)
-    ssr = np.einsum("wn,wn->w", resid, resid)
     r_inv = np.linalg.solve(r, np.broadcast_to(np.eye(k), (W, k, k)))
     xtx_inv = np.einsum("wij,wkj->wik", r_inv, r_inv) / (norms[:, :, None] * norms[:, None, :])
     df = n_w - k
-    sigma2 = ssr / df
-    m = np.einsum("whk,wk->wh", X_new, beta)
     lev = np.einsum("whi,wij,whj->wh", X_new, xtx_inv, X_new)
-    se = np.sqrt(np.maximum(sigma2[:, None] * (1.0 + lev), 0.0))
+    quantiles = [(t_quantile(0.80, int(d)), t_quantile(0.95, int(d))) for d in df]
+    inside = np.arange(n)[None, :] >= starts[:, None]
     out = []
-    for w in range(W):
-        q80, q95 = t_quantile(0.80, int(df[w])), t_quantile(0.95, int(df[w]))
-        mw, sw = m[w], se[w]
-        l80, u80, l95, u95 = mw - q80 * sw, mw + q80 * sw, mw - q95 * sw, mw + q95 * sw
-        if log_scale:
-            out.append(PointForecasts(positions, np.exp(mw + sw * sw / 2.0), np.exp(mw),
-                                      np.exp(l80), np.exp(u80), np.exp(l95), np.exp(u95)))
-        else:
-            out.append(PointForecasts(positions, mw, mw.copy(), l80, u80, l95, u95))
+    for y, log_scale in zip(ys, log_scales):
+        yy = np.where(inside, y[None, :], 0.0)
+        qty = np.einsum("wnk,wn->wk", q, yy)
+        beta_s = np.linalg.solve(r, qty[..., None])[..., 0]
+        resid = yy - np.einsum("wnk,wk->wn", Xs, beta_s)
+        beta_s = beta_s + np.linalg.solve(r, np.einsum("wnk,wn->wk", q, resid)[..., None])[..., 0]
+        beta = beta_s / norms
+        resid = yy - np.einsum("wnk,wk->wn", X, beta)
+        ssr = np.einsum("wn,wn->w", resid, resid)
+        sigma2 = ssr / df
+        m = np.einsum("whk,wk->wh", X_new, beta)
+        se = np.sqrt(np.maximum(sigma2[:, None] * (1.0 + lev), 0.0))
+        forecasts = []
+        for w in range(W):
+            q80, q95 = quantiles[w]
+            mw, sw = m[w], se[w]
+            l80, u80, l95, u95 = mw - q80 * sw, mw + q80 * sw, mw - q95 * sw, mw + q95 * sw
+            if log_scale:
+                forecasts.append(PointForecasts(positions, np.exp(mw + sw * sw / 2.0),
+                                                np.exp(mw), np.exp(l80), np.exp(u80),
+                                                np.exp(l95), np.exp(u95)))
+            else:
+                forecasts.append(PointForecasts(positions, mw, mw.copy(), l80, u80, l95, u95))
+        out.append(forecasts)
     return out
 
 

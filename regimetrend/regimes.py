@@ -206,6 +206,7 @@ class OriginFits:
         self.minimum_window = int(minimum_window)  # shortest window the window average uses
         self._trends: dict = {}
         self._forecasts: dict = {}
+        self._designs: dict = {}  # joint-fit design matrices shared by shapes with equal columns
         self._specs: dict = {}
         self._y: dict = {}
         self._season_block = season_block
@@ -309,8 +310,7 @@ class OriginFits:
                        for i in range(len(bounds) - 1))
         proto = PiecewiseFit(spec, positions, self.first_season, scale, None, pattern,
                              layout, knots, shapes, scales)
-        X = proto.design(positions, self._seasonal(0, self.origin)
-                         if spec.seasonality == "dummies" else None)
+        X = self._joint_design(proto, positions, 0, self.origin)
         try:
             result = ols.fit(X, y)
         except ols.RankDeficient as exc:
@@ -320,6 +320,20 @@ class OriginFits:
                            layout, knots, shapes, scales)
         self._trends[key] = fit
         return fit
+
+    def _joint_design(self, fit: PiecewiseFit, positions, start: int, stop: int) -> np.ndarray:
+        """Design rows ``start..stop-1`` of a joint fit, cached: linear and exponential pieces
+        have the same columns ([1, u] per regime or hinge), so their fits share one matrix.
+        The matrix is read-only (the least-squares core keeps it, nobody edits it)."""
+        columns = tuple("quadratic" if sh == "quadratic" else "linear" for sh in fit.shapes)
+        key = (fit.layout, columns, fit.knots, fit.spec.seasonality, start, stop)
+        X = self._designs.get(key)
+        if X is None:
+            X = fit.design(positions, self._seasonal(start, stop)
+                           if fit.spec.seasonality == "dummies" else None)
+            X.setflags(write=False)
+            self._designs[key] = X
+        return X
 
     # -- strategies -----------------------------------------------------------------------
     def forecast(self, strategy: Strategy, horizon: int) -> PointForecasts:
@@ -338,8 +352,7 @@ class OriginFits:
                 fit = self.piecewise(name, strategy.shape, strategy.last_shape)
                 X_new = None
                 if isinstance(fit, PiecewiseFit):
-                    X_new = fit.design(positions, self._seasonal(self.origin, self.origin + horizon)
-                                       if fit.spec.seasonality == "dummies" else None)
+                    X_new = self._joint_design(fit, positions, self.origin, self.origin + horizon)
                 elif fit.spec.seasonality != "adjust":
                     X_new = self._design(fit.spec, fit.scale, self.origin, self.origin + horizon)
                 self._forecasts[key] = forecast_points(fit, positions, X_new)

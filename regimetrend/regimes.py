@@ -448,9 +448,10 @@ class OriginFits:
         starts = self.window_starts_for(shape)
         self.prefit_windows(shape, starts, positions)
         parts = [self.trend_forecast(shape, s, positions) for s in starts]
-        avg = {f: np.mean([getattr(p, f) for p in parts], axis=0)
-               for f in ("mean", "median", "lower80", "upper80", "lower95", "upper95")}
-        return PointForecasts(np.asarray(positions), **avg)
+        fields = ("mean", "median", "lower80", "upper80", "lower95", "upper95")
+        # one (fields, windows, horizons) array and one mean instead of one per field
+        avg = np.array([[getattr(p, f) for p in parts] for f in fields]).mean(axis=1)
+        return PointForecasts(np.asarray(positions), *avg)
 
 
 def forecast_points(fit: TrendFit, positions, X_new=None) -> PointForecasts:

@@ -146,7 +146,9 @@ def baseline_candidate(y, o, st, breaks, grid, H):
             start = st.start if o - st.start >= spec.minimum_points() else 0
         return baseline_trend(y, start, o, st.shape, H)
     if st.name == "window-average":
-        starts = [s for s in grid if o - s >= spec.minimum_points()] or [0]
+        # the evaluation's shortest window (carried on the strategy), as in regimes.window_rule
+        shortest = max(spec.minimum_points(), st.minimum_window or 0)
+        starts = [s for s in grid if o - s >= shortest] or [0]
         parts = [baseline_trend(y, s, o, st.shape, H) for s in starts]
         return {k: np.mean([p[k] for p in parts], axis=0) for k in parts[0]}
     last = st.last_shape or st.shape

@@ -383,27 +383,27 @@ class OriginFits:
             wanted.setdefault(st.shape, set()).update(self.single_starts(st))
         groups: dict = {}
         for shape, starts in wanted.items():
-            todo = self._todo(shape, sorted(starts), positions)
+            pending = self._pending(shape, sorted(starts), positions)
             columns = "quadratic" if shape == "quadratic" else "linear"
-            groups.setdefault((columns, tuple(todo)), []).append(shape)
-        for (_, todo), shapes in groups.items():
-            self._prefit_group(shapes, list(todo), positions)
+            groups.setdefault((columns, tuple(pending)), []).append(shape)
+        for (_, pending), shapes in groups.items():
+            self._prefit_group(shapes, list(pending), positions)
 
-    def _todo(self, shape: str, starts, positions) -> list:
+    def _pending(self, shape: str, starts, positions) -> list:
         """Window starts of ``shape`` whose forecasts are not cached yet."""
         return [s for s in starts if (shape, s, len(positions)) not in self._forecasts]
 
     def prefit_windows(self, shape: str, starts, positions) -> None:
         """Fit the single trends of several window starts in one batched QR (see
         ``batched_forecasts``) and cache their forecasts; ``adjust`` keeps the one-by-one path."""
-        self._prefit_group([shape], self._todo(shape, starts, positions), positions)
+        self._prefit_group([shape], self._pending(shape, starts, positions), positions)
 
-    def _prefit_group(self, shapes, todo, positions) -> None:
-        """Batched fits of the windows ``todo`` for shapes sharing one design (one QR)."""
+    def _prefit_group(self, shapes, pending, positions) -> None:
+        """Batched fits of the windows ``pending`` for shapes sharing one design (one QR)."""
         spec = self.spec_for(shapes[0])
-        if spec.seasonality == "adjust" or len(todo) < 2:
+        if spec.seasonality == "adjust" or len(pending) < 2:
             return
-        first = np.asarray(todo, dtype=float)
+        first = np.asarray(pending, dtype=float)
         last = float(self.origin - 1)
         center = (first + last) / 2.0  # TimeScale.for_positions of each window
         spread = np.maximum((last - first) / 2.0, 1.0)
@@ -412,13 +412,13 @@ class OriginFits:
         X[np.arange(self.origin)[None, :] < first[:, None]] = 0.0
         X_new = self._stacked_design(spec, center, spread, p0, p1)
         specs = [self.spec_for(sh) for sh in shapes]
-        got = batched_forecasts_many(X, [self._model_y(sp) for sp in specs], np.asarray(todo),
+        got = batched_forecasts_many(X, [self._model_y(sp) for sp in specs], np.asarray(pending),
                                      X_new, [sp.log_scale for sp in specs],
                                      np.asarray(positions))
         if got is None:
             return  # a window's design is singular: the one-by-one path reports it
         for shape, forecasts in zip(shapes, got):
-            for s, fc in zip(todo, forecasts):
+            for s, fc in zip(pending, forecasts):
                 self._forecasts[(shape, s, len(positions))] = fc
 
     def _stacked_design(self, spec, center, spread, start: int, stop: int) -> np.ndarray:

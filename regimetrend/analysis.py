@@ -35,10 +35,6 @@ class Analysis:
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
 
-    @property
-    def recommended(self):
-        return self.evaluation.recommended
-
     def to_dict(self) -> dict:
         from .output import json_safe
 

@@ -562,15 +562,6 @@ def window_rule_grid(spacing: int, last_origin: int, minimum_window: int) -> tup
     return tuple(range(0, max(last_origin - minimum_window, 0) + 1, int(spacing)))
 
 
-def window_grid(first_origin: int, last_origin: int, minimum_window: int,
-                count: int = 10) -> tuple[int, ...]:
-    """Evenly spaced window starts 0, g, 2g, ... up to ``last_origin - minimum_window``, with
-    ``g`` chosen so about ``count`` starts fit before the first origin. The same grid serves
-    the window average and the history sweep, so their fits are shared."""
-    return window_rule_grid(window_spacing(first_origin, minimum_window, count), last_origin,
-                            minimum_window)
-
-
 def window_rule(strategy: Strategy, spec: TrendSpec, n: int, window_count: int = 10,
                 minimum: int | None = None, spacing: int | None = None) -> tuple[int, int]:
     """(minimum window, spacing) of a window average fitted on ``n`` periods.

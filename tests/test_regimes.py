@@ -12,7 +12,7 @@ import statsmodels.api as sm
 
 from regimetrend.errors import InputError
 from regimetrend.regimes import (OriginFits, Strategy, standard_strategies, usable_breaks,
-                                 window_grid)
+                                 window_rule_grid, window_spacing)
 from tests.conftest import rseries
 
 
@@ -139,7 +139,8 @@ def test_strategy_options_are_checked():
 
 
 def test_window_grid_is_shared_and_spaced():
-    grid = window_grid(first_origin=85, last_origin=108, minimum_window=24, count=10)
+    spacing = window_spacing(first_origin=85, minimum_window=24, count=10)
+    grid = window_rule_grid(spacing, last_origin=108, minimum_window=24)
     assert grid[0] == 0 and grid == tuple(range(0, 85, 7))
 
 

@@ -112,12 +112,9 @@ def _breaks(breakset, series: Series) -> tuple[BreakInfo, ...]:
 
 
 def _sup_f(breakset) -> float | None:
-    try:
-        from ..evaluate import breakinfo
+    from ..evaluate import breakinfo  # the one reader of a BreakSet's sup-F p-value
 
-        return breakinfo.supf_pvalue(breakset)
-    except ImportError:  # pragma: no cover - evaluation always ships with the package
-        return None
+    return breakinfo.supf_pvalue(breakset)
 
 
 def _cusum(analysis) -> dict | None:

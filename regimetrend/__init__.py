@@ -1,17 +1,20 @@
 """regimetrend: find where a trend's growth regime changed and forecast from the regime that holds.
 
 The flow runs one way: intake -> trend design -> breaks -> regimes -> evaluation -> growth ->
-report. ``analyze`` runs all of it; the stage functions are public too.
+report. ``analyze`` runs all of it; the stage functions are public too (``api.py``). Each takes
+a ``Series`` or a pandas Series/DataFrame, and its choices as a ``Settings`` or flat keywords.
 """
 
 __version__ = "0.1.0"
 
+from .api import analyze, compare, detect_breaks, growth_table, trend_forecast  # noqa: E402
 from .design import TrendSpec  # noqa: E402
 from .errors import InputError  # noqa: E402
-from .forecast import Forecast, trend_forecast  # noqa: E402
+from .forecast import Forecast  # noqa: E402
 from .holdout import Holdout, holdout_check  # noqa: E402
 from .series import Frequency, Series  # noqa: E402
-from .settings import resolve_spec  # noqa: E402
+from .settings import (BreakSettings, EvaluationSettings, ModelSettings,  # noqa: E402
+                       Settings, resolve_spec)
 
 
 def load_series(*args, **kwargs):
@@ -28,38 +31,7 @@ def demo_path():
     return files("regimetrend") / "data" / "lumen_grid_energy.csv"
 
 
-__all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec",
-           "demo_path", "holdout_check", "load_series", "resolve_spec", "trend_forecast"]
-
-from .settings import Settings  # noqa: E402
-
-
-def analyze(series, settings=None, **choices):
-    """The whole analysis of one series (see ``regimetrend.analysis.analyze``)."""
-    from .analysis import analyze as _analyze
-
-    return _analyze(series, settings, **choices)
-
-
-def detect_breaks(series, **options):
-    """Find, test and date breaks in the trend (see ``regimetrend.breaks.detect_breaks``)."""
-    from .breaks import detect_breaks as _detect
-
-    return _detect(series, **options)
-
-
-def compare(series, **options):
-    """Rolling-origin comparison against the global trend (see ``regimetrend.evaluate``)."""
-    from .evaluate import compare as _compare
-
-    return _compare(series, **options)
-
-
-def growth_table(source, *args, **options):
-    """Growth by regime with intervals (see ``regimetrend.growth.growth_table``)."""
-    from .growth import growth_table as _growth
-
-    return _growth(source, *args, **options)
-
-
-__all__ += ["Settings", "analyze", "compare", "detect_breaks", "growth_table"]
+__all__ = ["BreakSettings", "EvaluationSettings", "Forecast", "Frequency", "Holdout",
+           "InputError", "ModelSettings", "Series", "Settings", "TrendSpec", "analyze",
+           "compare", "demo_path", "detect_breaks", "growth_table", "holdout_check",
+           "load_series", "resolve_spec", "trend_forecast"]

@@ -41,7 +41,7 @@ from scipy import stats
 from . import ols
 from .design import (TimeScale, TrendSpec, seasonal_columns, seasonal_pattern, season_index,
                      to_model_scale)
-from .errors import InputError
+from .errors import InputError, about
 from .series import Series
 
 LEVEL = 0.95
@@ -583,7 +583,7 @@ def regime_growth(series: Series, spec: TrendSpec, breaks: Sequence[int] = (), *
     (``floor(4 (n/100)^(2/9))`` by default).
     """
     if kind not in KINDS:
-        raise InputError(f"option --kind: {kind!r} is not one of {', '.join(KINDS)}")
+        raise InputError(f"{about('kind')}: {kind!r} is not one of {', '.join(KINDS)}")
     if not 0 < level < 1:
         raise InputError("growth interval level must be between 0 and 1")
     positions = _check_breaks(series.n, breaks, spec, kind)

@@ -49,15 +49,9 @@ def run(args) -> int:
         options.check_targets([args.errors], "option --errors")
         if not Path(args.errors).parent.is_dir():
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
+    settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
-    spec = options.model_from_args(args, series)
-    ev = compare(series, shape=spec.shape, seasonality=spec.seasonality,
-                 season_length=spec.season_length, kind=args.kind, max_breaks=args.max_breaks,
-                 trim=args.trim, criterion=args.criterion, events=tuple(args.event),
-                 seasonal_by_regime=args.seasonal_by_regime,
-                 serial_correlation=args.serial_correlation, horizon=args.horizon,
-                 first_origin=args.first_origin, step=args.step,
-                 reuse_breaks=args.reuse_breaks, progress=ProgressBar())
+    ev = compare(series, settings, progress=ProgressBar())
     result = ev.to_dict()
     if args.errors:
         path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic),

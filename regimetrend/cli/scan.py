@@ -20,13 +20,7 @@ def scan(series, args):
     """The BreakSet the options ask for."""
     from ..breaks import detect_breaks
 
-    spec = options.model_from_args(args, series)
-    return detect_breaks(series, shape=spec.shape, seasonality=spec.seasonality,
-                         kind=args.kind, max_breaks=args.max_breaks, trim=args.trim,
-                         criterion=args.criterion, events=tuple(args.event),
-                         season_length=spec.season_length,
-                         seasonal_by_regime=args.seasonal_by_regime,
-                         serial_correlation=args.serial_correlation)
+    return detect_breaks(series, options.settings_from_args(args))
 
 
 def run(args) -> int:

@@ -182,7 +182,7 @@ def calendar_ticks(first, last, frequency, most: int = 7) -> list[np.datetime64]
     if span >= 2 * 365:  # years apart: the first period start of every k-th year
         y0, y1 = (int(_years(np.array([x]))[0]) for x in (first, last))
         k = next((k for k in (1, 2, 5, 10, 20, 50, 100) if (y1 - y0) / k + 1 <= most), 100)
-        out = []
+        out: list[np.datetime64] = []
         for y in range(y0, y1 + 1):
             jan1 = np.datetime64(f"{y:04d}-01-01", "D")
             if y % k == 0 and jan1 >= first:

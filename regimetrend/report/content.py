@@ -110,7 +110,7 @@ def _series_chart(d: ReportData) -> Chart:
         parts.append("Dashed purple: one trend over all history"
                      + (" (with its forecast in the right panel)." if first is not None
                         and global_forecast is not None else " and its forecast."))
-    if forecast is not None:
+    if forecast is not None and d.forecast is not None:
         words = strategy_words(recommended_candidate(d.evaluation)) or d.forecast.model
         parts.append(f"Vermillion: the recommended forecast ({words}) with 80% and 95% "
                      "prediction intervals (darker and lighter bands).")

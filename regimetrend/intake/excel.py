@@ -35,8 +35,8 @@ def read_excel(path: Path, sheet) -> Table:
             raise InputError(f"sheet {chosen!r} of {path.name!r} is a chart, not a table; its "
                              f"sheets are {', '.join(names)}")
         records = []
-        for number, cells in enumerate(ws.iter_rows(min_row=1, values_only=True), start=1):
-            cells = ["" if c is None else (c.strip() if isinstance(c, str) else c) for c in cells]
+        for number, raw in enumerate(ws.iter_rows(min_row=1, values_only=True), start=1):
+            cells = ["" if c is None else (c.strip() if isinstance(c, str) else c) for c in raw]
             if any(c != "" for c in cells):
                 records.append((number, cells))
     finally:

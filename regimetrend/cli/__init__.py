@@ -16,7 +16,7 @@ from ..errors import InputError, named_by
 from .names import FLAGS
 
 # Command modules, in the order they appear in --help.
-COMMANDS = ("forecast", "scan", "compare", "report", "demo")
+COMMANDS = ("forecast", "scan", "compare", "report", "portfolio", "demo")
 
 
 class _Parser(argparse.ArgumentParser):

@@ -1,0 +1,54 @@
+"""Which reader a source needs: a file by its extension, or a pandas Series/DataFrame."""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import pandas as pd
+
+from ..errors import InputError
+from .excel import read_excel
+from .parquet import read_parquet
+from .table import (
+    SUPPORTED_EXTENSIONS,
+    Table,
+    table_from_frame,
+    table_from_pandas_series,
+)
+from .text_file import read_text
+
+
+def read_source(source, *, sheet, decimal) -> Table:
+    """The raw table of a file path or pandas object; InputError for anything else."""
+    if isinstance(source, pd.Series):
+        return table_from_pandas_series(source)
+    if isinstance(source, pd.DataFrame):
+        return table_from_frame(source, "the DataFrame")
+    if isinstance(source, (str, os.PathLike)):
+        return read_file(Path(source), sheet=sheet, decimal=decimal)
+    raise InputError(f"cannot read a {type(source).__name__}; give a file path, a pandas Series "
+                     f"or a pandas DataFrame")
+
+
+def read_file(path: Path, *, sheet, decimal) -> Table:
+    """Check the path is a readable file of a supported type, then read it."""
+    if not path.is_file():
+        raise InputError(f"file not found: {path}")
+    ext = path.suffix.lower()
+    if ext not in SUPPORTED_EXTENSIONS:
+        raise InputError(f"cannot read {path.name!r}: supported file types are "
+                         f"{', '.join(SUPPORTED_EXTENSIONS)}")
+    if path.stat().st_size == 0:
+        raise InputError(f"file {path.name!r} is empty")
+    if sheet is not None and ext != ".xlsx":
+        raise InputError(f"option --sheet: {path.name!r} is not an Excel workbook, so it has "
+                         f"no sheets")
+    if ext in (".csv", ".txt"):
+        table = read_text(path, decimal)
+    elif ext == ".xlsx":
+        table = read_excel(path, sheet)
+    else:
+        table = read_parquet(path)
+    table.stem = path.stem
+    return table

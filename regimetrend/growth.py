@@ -38,7 +38,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Sequence
+from collections.abc import Sequence
 
 import numpy as np
 from scipy import stats
@@ -380,7 +380,7 @@ def _ratio_pct(num: _Dual, den: _Dual, cov, z) -> Estimate | None:
 
 def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z: float):
     """All figures of one regime, and notes on those that are undefined."""
-    figures: dict[str, Estimate] = {}
+    figures: dict[str, Estimate | None] = {}
     notes: list[str] = []
     t0, t1 = float(rt.start), float(rt.end)
     f0, f1 = rt.level(beta, t0), rt.level(beta, t1)

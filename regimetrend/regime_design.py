@@ -213,13 +213,15 @@ class RegimeDesign:
         if self.has_seasonal_dummies and seasonal is None:
             seasonal = seasonal_columns(positions.astype(int), self.first_season,
                                         self.spec.season_length)
-        regime = self.regime_of(t) if self.kind == "both" else None
+        regime = self.regime_of(t)
         blocks = []
         for r in range(len(self.breaks) + 1):
             if r == 0:
                 first = trend_columns(t, self.shapes[0], self.regime_scales[0])
-                blocks.append(first * (regime == 0)[:, None] if regime is not None else first)
-                if self.has_seasonal_dummies:
+                if self.kind == "both":
+                    first = first * (regime == 0)[:, None]
+                blocks.append(first)
+                if seasonal is not None:
                     blocks.append(seasonal)
                 continue
             b = self.breaks[r - 1]
@@ -231,7 +233,7 @@ class RegimeDesign:
                 d = self.scale.u(t) - self.scale.u(b)
                 blocks.append(np.column_stack([np.where(on, d ** p, 0.0)
                                                for p in break_powers(self.kind, self.degree)]))
-        if self.seasonal_by_regime:
+        if self.seasonal_by_regime and seasonal is not None:
             for b in self.breaks:
                 blocks.append(seasonal * (t >= b)[:, None])
         return np.hstack(blocks)

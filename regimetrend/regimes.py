@@ -150,9 +150,15 @@ class PiecewiseFit(TrendFit):
 
     regimes: RegimeDesign | None = None
 
+    @property
+    def regime_design(self) -> RegimeDesign:
+        if self.regimes is None:
+            raise ValueError("a piecewise fit needs its regime design")
+        return self.regimes
+
     def design(self, positions, seasonal=None) -> np.ndarray:
         """Design rows at ``positions``; ``seasonal`` may pass their seasonal columns in."""
-        return self.regimes.columns(np.asarray(positions), seasonal)
+        return self.regime_design.columns(np.asarray(positions), seasonal)
 
 
 class OriginFits:
@@ -270,7 +276,8 @@ class OriginFits:
                               last_shape=last_shape if layout == "separate" else None)
         positions = np.arange(self.origin)
         scale = TimeScale.for_positions(positions)
-        proto = PiecewiseFit(spec, positions, self.first_season, scale, None, response.pattern,
+        proto = PiecewiseFit(spec, positions, self.first_season, scale, None,  # type: ignore[arg-type]
+                             response.pattern,
                              design)
         X = self._joint_design(proto, positions, 0, self.origin)
         try:
@@ -287,7 +294,7 @@ class OriginFits:
         """Design rows ``start..stop-1`` of a joint fit, cached: linear and exponential pieces
         have the same columns, so their fits share one matrix. The matrix is read-only (the
         least-squares core keeps it, nobody edits it)."""
-        d = fit.regimes
+        d = fit.regime_design
         columns = tuple("quadratic" if sh == "quadratic" else "linear" for sh in d.shapes)
         key = (d.kind, columns, d.breaks, d.spec.seasonality, start, stop)
         X = self._designs.get(key)

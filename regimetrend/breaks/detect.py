@@ -100,7 +100,7 @@ def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind
                        season_length, seasonal_by_regime, method, serial_correlation)
 
 
-_BLAS = []  # the threadpoolctl controller, found once per process (finding it costs ~1 ms)
+_BLAS: list = []  # the threadpoolctl controller, found once per process (finding it costs ~1 ms)
 
 
 def _one_blas_thread():

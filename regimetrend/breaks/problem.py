@@ -25,7 +25,7 @@ import numpy as np
 from .. import ols
 from ..design import TimeScale, TrendSpec, seasonal_columns, trend_columns
 from ..errors import InputError
-from ..regime_design import KINDS, RegimeDesign, model_response
+from ..regime_design import KINDS, RegimeDesign, model_response  # noqa: F401 (KINDS re-exported)
 from . import kinks
 
 

@@ -31,8 +31,8 @@ def read_excel(path: Path, sheet) -> Table:
             raise InputError(f"sheet {sheet!r} not found in {path.name!r}; its sheets are "
                              f"{', '.join(names)}")
         records = []
-        for number, cells in enumerate(ws.iter_rows(min_row=1, values_only=True), start=1):
-            cells = ["" if c is None else (c.strip() if isinstance(c, str) else c) for c in cells]
+        for number, raw in enumerate(ws.iter_rows(min_row=1, values_only=True), start=1):
+            cells = ["" if c is None else (c.strip() if isinstance(c, str) else c) for c in raw]
             if any(c != "" for c in cells):
                 records.append((number, cells))
     finally:

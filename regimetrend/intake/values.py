@@ -76,7 +76,9 @@ def number(cell, decimal: str) -> float:
         return -math.inf if negative else math.inf
     group = "," if decimal == "." else "."
     s = _SPACES.sub(" ", s)
-    mantissa, exponent = re.fullmatch(r"(.*?)((?:[eE][-+]?\d+)?)", s).groups()
+    parts = re.fullmatch(r"(.*?)((?:[eE][-+]?\d+)?)", s)
+    assert parts is not None  # the first group matches any text
+    mantissa, exponent = parts.groups()
     whole, _, fraction = mantissa.partition(decimal)
     if decimal in fraction or group in fraction or " " in fraction:
         raise ValueError("mark")
@@ -117,6 +119,7 @@ def numbers(cells, decimal):
 
 def parse_values(cells, rows, column, decimal) -> np.ndarray:
     """Floats for the value column, NaN where missing; InputError for unreadable or infinite."""
+    values: np.ndarray | None
     if isinstance(cells, np.ndarray) and np.issubdtype(cells.dtype, np.number):
         values = cells.astype(float)
     elif isinstance(cells, np.ndarray):

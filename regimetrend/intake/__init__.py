@@ -30,13 +30,14 @@ analyst to write the number without the sign, in the scale they mean.
 Day and month order
 -------------------
 Dates such as ``03/04/2019`` are rejected: whether that is March or April depends on the country
-of the file's author. ISO dates (``2019-04-03``), ``07/2019`` and ``2019/07`` are read.
+of the file's author. ISO dates (``2019-04-03``), ``07/2019`` and ``2019/07`` are read, and
+``date_format`` (``--date-format``) reads any other form the caller names.
 
 Modules, in data-flow order (each imports only those above it): ``wording`` (short lists for
 messages), ``values`` (value cells), ``dates`` (date forms; the public ``parse_date`` and
 ``parse_dates``), ``calendar`` (frequency words, inference, regular calendar), ``validate``
-(checks later stages ask for), ``table`` (the raw table), ``text_file``/``excel``/``parquet``
-(one reader per format), ``source`` (which reader), ``columns`` (choosing the date and value
+(checks later stages ask for), ``table`` (the raw table), ``marks`` (the decimal mark of a
+text file), ``text_file``/``excel``/``parquet`` (one reader per format), ``source`` (which reader), ``columns`` (choosing the date and value
 columns), ``load`` (``load_series``).
 """
 

@@ -4,12 +4,13 @@ from __future__ import annotations
 
 import datetime as _dt
 import re
+import shlex
 
 import numpy as np
 import pandas as pd
 
 from ..errors import InputError
-from .dates import DATE_FORMS_HELP, date_from_text, decimal_year_unit
+from .dates import DATE_FORMS_HELP, date_from_text, date_in_format, decimal_year_unit
 from .table import Table
 from .values import is_missing, number, numbers, plain_number
 from .wording import listing
@@ -31,12 +32,12 @@ def find_column(table: Table, wanted, option: str) -> str:
                      f"{listing(table.columns)}")
 
 
-def choose_date_column(table: Table, date_column, decimal) -> str:
+def choose_date_column(table: Table, date_column, decimal, date_format=None) -> str:
     """The named date column, or the one column of date forms, years, or with a date name."""
     if date_column is not None:
         return find_column(table, date_column, "--date-column")
     usable = [c for c in table.columns if not _is_row_index(c, table.cells[c])]
-    forms = [c for c in usable if _is_date_form_column(table.cells[c])]
+    forms = [c for c in usable if _is_date_form_column(table.cells[c], date_format)]
     if len(forms) == 1:
         return forms[0]
     if len(forms) > 1:
@@ -56,6 +57,10 @@ def choose_date_column(table: Table, date_column, decimal) -> str:
     named = [c for c in usable if DATE_WORDS.search(c)]
     if len(named) == 1:  # the parser will say which cell is not a date
         return named[0]
+    if date_format is not None:
+        raise InputError(f"no column of {table.label} holds dates written as --date-format "
+                         f"{date_format!r} (columns {listing(table.columns)}); check the format "
+                         f"or name the column with --date-column")
     raise InputError(f"no date column found in {table.label} (columns "
                      f"{listing(table.columns)}); name it with --date-column (accepted forms: "
                      f"{DATE_FORMS_HELP})")
@@ -78,6 +83,9 @@ def choose_value_column(table: Table, dcol: str, value_column, decimal) -> str:
                              f"another column")
         return vcol
     others = [c for c in table.columns if c != dcol]
+    if not others:
+        raise InputError(f"{table.label} has only the date column {dcol!r}; a column of values "
+                         f"is needed beside it")
     if len(others) == 1:
         return others[0]
     numeric = [c for c in others if not _is_row_index(c, table.cells[c])
@@ -87,8 +95,12 @@ def choose_value_column(table: Table, dcol: str, value_column, decimal) -> str:
     if not numeric:
         raise InputError(f"no numeric value column found in {table.label} (columns "
                          f"{listing(others)}); name it with --value-column")
+    portfolio = ""
+    if table.path is not None:
+        portfolio = (f", or analyse every column with 'regimetrend portfolio "
+                     f"{shlex.quote(table.path)} --output DIR'")
     raise InputError(f"{table.label} has several value columns ({listing(numeric)}); choose one "
-                     f"with --value-column")
+                     f"with --value-column{portfolio}")
 
 
 def _is_row_index(name: str, cells) -> bool:
@@ -103,8 +115,9 @@ def _is_row_index(name: str, cells) -> bool:
         and nums[0] in (0.0, 1.0)
 
 
-def _is_date_form_column(cells) -> bool:
-    """Most sampled non-empty cells are date objects or text date forms other than numbers.
+def _is_date_form_column(cells, date_format=None) -> bool:
+    """Most sampled non-empty cells are date objects or text date forms other than numbers
+    (with ``date_format``: cells that format reads).
 
     A majority (not all) is enough so that one mistyped date is reported with its row by the
     parser instead of hiding the column.
@@ -114,7 +127,9 @@ def _is_date_form_column(cells) -> bool:
     present = [c for c in cells[:_DETECT_SAMPLE] if not is_missing(c)]
     dated = 0
     for c in present:
-        if isinstance(c, str):
+        if date_format is not None:
+            dated += date_in_format(c, date_format) is not None
+        elif isinstance(c, str):
             dated += not plain_number(c) and date_from_text(c) is not None
         else:
             dated += isinstance(c, (_dt.date, pd.Period, np.datetime64))

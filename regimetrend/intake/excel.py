@@ -22,14 +22,18 @@ def read_excel(path: Path, sheet) -> Table:
         if isinstance(sheet, str) and sheet not in names and sheet.strip().isdigit():
             sheet = int(sheet)
         if sheet is None:
-            ws = book[names[0]]
+            chosen = names[0]
         elif isinstance(sheet, int) and 0 <= sheet < len(names):
-            ws = book[names[sheet]]
+            chosen = names[sheet]
         elif isinstance(sheet, str) and sheet in names:
-            ws = book[sheet]
+            chosen = sheet
         else:
             raise InputError(f"sheet {sheet!r} not found in {path.name!r}; its sheets are "
                              f"{', '.join(names)}")
+        ws = book[chosen]
+        if not hasattr(ws, "iter_rows"):
+            raise InputError(f"sheet {chosen!r} of {path.name!r} is a chart, not a table; its "
+                             f"sheets are {', '.join(names)}")
         records = []
         for number, raw in enumerate(ws.iter_rows(min_row=1, values_only=True), start=1):
             cells = ["" if c is None else (c.strip() if isinstance(c, str) else c) for c in raw]
@@ -37,4 +41,22 @@ def read_excel(path: Path, sheet) -> Table:
                 records.append((number, cells))
     finally:
         book.close()
-    return table_from_records(records, f"file {path.name!r}")
+    if not records:
+        raise InputError(f"sheet {chosen!r} of {path.name!r} is empty")
+    table = table_from_records(records, f"file {path.name!r}")
+    table.sheet, table.sheets = chosen, tuple(names)
+    return table
+
+
+def sheet_names(path: Path) -> list[str]:
+    """The workbook's sheet names in order ([] when it cannot be opened)."""
+    import openpyxl
+
+    try:
+        book = openpyxl.load_workbook(path, read_only=True)
+    except Exception:  # noqa: BLE001 - the caller already has the file's own error to show
+        return []
+    try:
+        return list(book.sheetnames)
+    finally:
+        book.close()

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import stat
 from pathlib import Path
 
 import pandas as pd
@@ -33,8 +34,7 @@ def read_source(source, *, sheet, decimal) -> Table:
 
 def read_file(path: Path, *, sheet, decimal) -> Table:
     """Check the path is a readable file of a supported type, then read it."""
-    if not path.is_file():
-        raise InputError(f"file not found: {path}")
+    _check_regular_file(path)
     ext = path.suffix.lower()
     if ext not in SUPPORTED_EXTENSIONS:
         raise InputError(f"cannot read {path.name!r}: supported file types are "
@@ -44,11 +44,43 @@ def read_file(path: Path, *, sheet, decimal) -> Table:
     if sheet is not None and ext != ".xlsx":
         raise InputError(f"option --sheet: {path.name!r} is not an Excel workbook, so it has "
                          f"no sheets")
-    if ext in (".csv", ".txt"):
-        table = read_text(path, decimal)
-    elif ext == ".xlsx":
-        table = read_excel(path, sheet)
-    else:
-        table = read_parquet(path)
+    try:
+        with path.open("rb"):  # a regular file: opening cannot block
+            pass
+        if ext in (".csv", ".txt"):
+            table = read_text(path, decimal)
+        elif ext == ".xlsx":
+            table = read_excel(path, sheet)
+        else:
+            table = read_parquet(path)
+    except OSError as exc:
+        raise InputError(_os_error_message(path, exc)) from None
     table.stem = path.stem
+    table.path = str(path)
     return table
+
+
+_KINDS = ((stat.S_ISFIFO, "a named pipe (FIFO)"), (stat.S_ISCHR, "a character device"),
+          (stat.S_ISBLK, "a block device"), (stat.S_ISSOCK, "a socket"))
+
+
+def _check_regular_file(path: Path) -> None:
+    """InputError for a path that is missing, a folder, a pipe or a device (never opened)."""
+    try:
+        mode = path.stat().st_mode
+    except (FileNotFoundError, NotADirectoryError):
+        raise InputError(f"file not found: {path}") from None
+    except OSError as exc:
+        raise InputError(_os_error_message(path, exc)) from None
+    if stat.S_ISDIR(mode):
+        raise InputError(f"{path} is a folder, not a file; give the path of the data file")
+    if not stat.S_ISREG(mode):
+        kind = next((words for test, words in _KINDS if test(mode)), "not a regular file")
+        raise InputError(f"{path} is {kind}, not a regular file; save the data to a file and "
+                         f"give its path")
+
+
+def _os_error_message(path: Path, exc: OSError) -> str:
+    if isinstance(exc, PermissionError):
+        return f"cannot read {path}: permission denied (check the file's access rights)"
+    return f"cannot read {path}: {exc.strerror or type(exc).__name__}"

@@ -27,6 +27,10 @@ class Table:
     cells: dict
     rows: np.ndarray  # int row number of each data row (package docstring convention)
     stem: str | None = None  # file stem, for the default name
+    path: str | None = None  # the file as the caller named it (for advice on other commands)
+    separator: str | None = None  # field separator of a text file
+    sheet: str | None = None  # the Excel sheet read
+    sheets: tuple[str, ...] = ()  # every sheet of the workbook
 
 
 def is_data_cell(text: str) -> bool:
@@ -65,7 +69,7 @@ def table_from_records(records, label, sep_hint=None) -> Table:
         for k, n in enumerate(names):
             cols[n].append(cells[k] if k < len(cells) else "")
     rows = np.array([line for line, _ in body], dtype=int)
-    return Table(label, names, cols, rows)
+    return Table(label, names, cols, rows, separator=sep_hint)
 
 
 def unique_names(raw) -> list[str]:
@@ -116,7 +120,7 @@ def column_cells(column: pd.Series):
     if pd.api.types.is_datetime64_any_dtype(column.dtype):
         if getattr(column.dt, "tz", None) is not None:
             column = column.dt.tz_localize(None)
-        return column.to_numpy(dtype="datetime64[ns]")
+        return column.to_numpy()  # keeps the unit: years outside 1677-2262 need [us] or [s]
     if pd.api.types.is_bool_dtype(column.dtype):
         return column.tolist()
     if pd.api.types.is_numeric_dtype(column.dtype):

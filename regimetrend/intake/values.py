@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 import re
+from decimal import Decimal
 
 import numpy as np
 import pandas as pd
@@ -41,9 +42,11 @@ def plain_float(text: str, decimal: str):
 
 def is_missing(cell) -> bool:
     """True for empty cells, NaN/NaT and the usual words for 'no value' (NA, n/a, null, -)."""
-    if cell is None:
+    if cell is None or cell is pd.NA:
         return True
-    if isinstance(cell, float) and math.isnan(cell):
+    if isinstance(cell, Decimal):
+        return cell.is_nan()
+    if isinstance(cell, (float, np.floating)) and math.isnan(cell):
         return True
     if isinstance(cell, str):
         return cell.strip().lower() in MISSING_WORDS
@@ -58,7 +61,7 @@ def number(cell, decimal: str) -> float:
     # ValueError (not TypeError) for every cell that is no number: callers catch one kind
     if isinstance(cell, bool):
         raise ValueError("a true/false cell is not a number")  # noqa: TRY004
-    if isinstance(cell, (int, float, np.integer, np.floating)):
+    if isinstance(cell, (int, float, np.integer, np.floating, Decimal)):
         return float(cell)
     if not isinstance(cell, str):
         raise ValueError(f"a {type(cell).__name__} cell is not a number")  # noqa: TRY004
@@ -108,7 +111,7 @@ def numbers(cells, decimal):
             continue
         if isinstance(c, bool):
             return None
-        if isinstance(c, (int, float, np.integer, np.floating)):
+        if isinstance(c, (int, float, np.integer, np.floating, Decimal)):
             out.append(float(c))
         elif isinstance(c, str) and plain_float(c, decimal) is not None:
             out.append(plain_float(c, decimal))

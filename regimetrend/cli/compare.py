@@ -8,7 +8,6 @@ from pathlib import Path
 
 from .. import numformat
 from ..errors import InputError
-from ..evaluate import compare
 from . import options
 from .text import fmt, table
 
@@ -52,6 +51,8 @@ def run(args) -> int:
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    from ..evaluate import compare
+
     ev = compare(series, shape=spec.shape, seasonality=spec.seasonality,
                  season_length=spec.season_length, kind=args.kind, max_breaks=args.max_breaks,
                  trim=args.trim, criterion=args.criterion, events=tuple(args.event),

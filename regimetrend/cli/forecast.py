@@ -7,8 +7,6 @@ import io
 from pathlib import Path
 
 from .. import numformat
-from ..forecast import fit_history, trend_forecast
-from ..holdout import holdout_check
 from . import options
 from .text import caution_lines, fmt, table
 
@@ -34,6 +32,9 @@ def default_steps(series) -> int:
 def run(args) -> int:
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    from ..forecast import fit_history, trend_forecast
+    from ..holdout import holdout_check
+
     k = args.holdout or default_steps(series)
     h = args.horizon or default_steps(series)
     if args.output:

@@ -6,7 +6,31 @@ import argparse
 from pathlib import Path
 
 from ..errors import InputError
-from ..output import check_targets, dumps, json_safe, write_atomic  # noqa: F401  (for commands)
+
+
+# The output helpers, loaded when first called (numpy is not needed for --help or --version).
+def check_targets(*args, **kwargs):
+    from ..output import check_targets as f
+
+    return f(*args, **kwargs)
+
+
+def dumps(*args, **kwargs):
+    from ..output import dumps as f
+
+    return f(*args, **kwargs)
+
+
+def json_safe(*args, **kwargs):
+    from ..output import json_safe as f
+
+    return f(*args, **kwargs)
+
+
+def write_atomic(*args, **kwargs):
+    from ..output import write_atomic as f
+
+    return f(*args, **kwargs)
 
 
 def add_input_options(p) -> None:

@@ -95,6 +95,31 @@ def add_evaluation_options(p) -> None:
                         "again (faster; results are labelled optimistic)")
 
 
+def add_chart_options(p) -> None:
+    """How values are labelled and drawn (the report and the forecast chart)."""
+    p.add_argument("--units", metavar="TEXT",
+                   help="units of the values, e.g. 'orders a month' or 'EUR million', written "
+                        "on every value axis and in the sentences (default: the series name)")
+    p.add_argument("--log-scale", action="store_true",
+                   help="draw value axes on a log scale (steady exponential growth becomes a "
+                        "straight line); needs positive values")
+
+
+def check_log_scale(args, series) -> None:
+    """Refuse --log-scale for a series with a value at or below zero, naming the period."""
+    if not getattr(args, "log_scale", False):
+        return
+    bad = [i for i, v in enumerate(series.values) if not v > 0]
+    if bad:
+        raise InputError(f"option --log-scale: needs positive values; {series.label(bad[0])} "
+                         f"is {series.values[bad[0]]:g}")
+
+
+def add_progress_option(p) -> None:
+    p.add_argument("--quiet", action="store_true",
+                   help="no progress bar on standard error (it is drawn only on a terminal)")
+
+
 def add_output_options(p, output_help: str = "folder for the output files") -> None:
     p.add_argument("--json", action="store_true", help="print the full result as JSON")
     p.add_argument("--output", metavar="DIR", help=output_help)

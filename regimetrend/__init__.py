@@ -5,16 +5,42 @@ report. ``analyze`` runs all of it; the stage functions are public too (``api.py
 a ``Series`` or a pandas Series/DataFrame, and its choices as a ``Settings`` or flat keywords.
 """
 
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from .errors import InputError
+
 __version__ = "0.1.0"
 
-from .api import analyze, compare, detect_breaks, growth_table, trend_forecast  # noqa: E402
-from .design import TrendSpec  # noqa: E402
-from .errors import InputError  # noqa: E402
-from .forecast import Forecast  # noqa: E402
-from .holdout import Holdout, holdout_check  # noqa: E402
-from .series import Frequency, Series  # noqa: E402
-from .settings import (BreakSettings, EvaluationSettings, ModelSettings,  # noqa: E402
-                       Settings, resolve_spec)
+# The public names below load their modules (numpy, pandas, scipy) on first use, so that
+# ``regimetrend --help`` and ``--version`` start quickly (benchmarks/bench_startup.py).
+_LAZY = {"TrendSpec": "design", "Forecast": "forecast", "Holdout": "holdout",
+         "holdout_check": "holdout", "Frequency": "series", "Series": "series",
+         "resolve_spec": "settings", "Settings": "settings", "ModelSettings": "settings",
+         "BreakSettings": "settings", "EvaluationSettings": "settings", "analyze": "api",
+         "compare": "api", "detect_breaks": "api", "growth_table": "api",
+         "trend_forecast": "api"}
+
+if TYPE_CHECKING:
+    from .api import analyze, compare, detect_breaks, growth_table, trend_forecast
+    from .design import TrendSpec
+    from .forecast import Forecast
+    from .holdout import Holdout, holdout_check
+    from .series import Frequency, Series
+    from .settings import (BreakSettings, EvaluationSettings, ModelSettings, Settings,
+                           resolve_spec)
+
+
+def __getattr__(name: str):
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module 'regimetrend' has no attribute {name!r}")
+    from importlib import import_module
+
+    value = getattr(import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
 
 
 def load_series(*args, **kwargs):

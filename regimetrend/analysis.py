@@ -58,12 +58,14 @@ class Analysis:
         })
 
 
-def analyze(series, settings: Settings | None = None, **choices) -> Analysis:
+def analyze(series, settings: Settings | None = None, *, progress=None,
+            **choices) -> Analysis:
     """Run the whole analysis of ``series`` (a ``Series``, or a pandas Series or date/value
     DataFrame, read by intake).
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
-    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``.
+    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
+    total)``, when given, is called after each rolling origin (it does not change the result).
     """
     from .breaks import cusum as cusum_paths
     from .breaks.detect import find_breaks
@@ -77,7 +79,7 @@ def analyze(series, settings: Settings | None = None, **choices) -> Analysis:
     spec = settings.spec_for(series)  # resolved once; every stage below reads this one
     horizon = settings.horizon_for(series)
     breaks = find_breaks(series, spec, settings.breaks)
-    evaluation = evaluate(series, spec, settings, breaks)
+    evaluation = evaluate(series, spec, settings, breaks, progress=progress)
     chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
     forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
     global_forecast = trend_forecast(series, spec, horizon)

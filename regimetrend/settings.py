@@ -19,12 +19,17 @@ import datetime as _dt
 import math
 import numbers
 from dataclasses import asdict, dataclass, fields, replace
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
-import numpy as np
-
-from .design import SEASONALITIES, SHAPES, TrendSpec
 from .errors import InputError, about, option
+
+if TYPE_CHECKING:
+    from .design import TrendSpec
+
+# the words ``design`` knows (a test checks they agree); written here so that reading the
+# settings, as the command line does for --help, loads no numerical library
+SHAPES = ("linear", "exponential", "quadratic")
+SEASONALITIES = ("none", "dummies", "adjust")
 
 DEFAULT_MAX_BREAKS = 3  # ``max_breaks=None``: up to this many, as many as the series can hold
 MAX_BREAKS_LIMIT = 10  # the sequential tests' tables stop well before this; more is not a trend
@@ -92,7 +97,7 @@ class Rule:
         return whole
 
     def _flag(self, name: str, value: Any) -> bool:
-        if not isinstance(value, (bool, np.bool_)):
+        if not _is_bool(value):
             raise InputError(f"{about(name)}: expected True or False, got {_shown(value)}")
         return bool(value)
 
@@ -117,7 +122,7 @@ class Rule:
         for item in items:
             if not _one_date(item):
                 raise InputError(f"{about(name)}: {_shown(item)} is not a date or a position")
-            if isinstance(item, (bool, np.bool_)):
+            if _is_bool(item):
                 raise InputError(f"{about(name)}: {_shown(item)} is not a date or a position")
             if isinstance(item, numbers.Integral):
                 out.append(int(item))
@@ -137,10 +142,15 @@ def _shown(value: Any) -> str:
         if isinstance(value, str) or not isinstance(value, numbers.Number) else text
 
 
+def _is_bool(value: Any) -> bool:
+    """True and False, Python's or numpy's (numpy is not imported to ask)."""
+    return isinstance(value, bool) or type(value).__name__ in ("bool_", "bool")
+
+
 def _real(name: str, value: Any, wanted: str) -> float:
     """A real number, refusing text, True/False and complex numbers (a common slip from
     Python: ``horizon='12'``)."""
-    if isinstance(value, (bool, np.bool_)) or not isinstance(value, numbers.Real):
+    if _is_bool(value) or not isinstance(value, numbers.Real):
         raise InputError(f"{about(name)}: expected {wanted}, got {_shown(value)}")
     try:
         return float(value)
@@ -149,14 +159,14 @@ def _real(name: str, value: Any, wanted: str) -> float:
 
 
 def _one_date(value: Any) -> bool:
-    return isinstance(value, (str, numbers.Integral, _dt.date, np.datetime64)) \
-        or type(value).__name__ in ("Timestamp", "Period")
+    return isinstance(value, (str, numbers.Integral, _dt.date)) \
+        or type(value).__name__ in ("Timestamp", "Period", "datetime64")
 
 
 def _iso(value: Any) -> str:
     if type(value).__name__ == "Period":
         return str(value.start_time.date())
-    if isinstance(value, np.datetime64):
+    if type(value).__name__ == "datetime64":
         return str(value.astype("datetime64[D]"))
     if isinstance(value, _dt.datetime):
         return value.date().isoformat()
@@ -338,6 +348,8 @@ def resolve_spec(series, shape: str = "linear", seasonality: str = "auto",
         raise InputError(f"{about('season_length')}: a season of {s} periods does not fit twice "
                          f"into the {series.n} periods of the series; give a shorter "
                          f"{option('season_length')} or {option('seasonality')} none")
+    from .design import TrendSpec
+
     spec = TrendSpec(shape=model.shape, seasonality=seasonality, season_length=s)
     if spec.log_scale:
         from .intake import require_positive

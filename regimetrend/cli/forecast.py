@@ -7,9 +7,6 @@ import io
 from pathlib import Path
 
 from .. import numformat
-from ..forecast import fit_history, trend_forecast
-from ..holdout import holdout_check
-from ..settings import RULES, EvaluationSettings
 from . import options
 from .text import caution_lines, fmt, table
 
@@ -24,6 +21,7 @@ def register(sub) -> None:
     p.add_argument("--horizon", default=None, metavar="H",
                    help="periods to forecast (default: one seasonal cycle, at least 4; at most "
                         "the length of the series)")
+    options.add_chart_options(p)
     options.add_output_options(p, "folder for forecast.csv and forecast.png")
     p.set_defaults(run=run)
 
@@ -34,9 +32,15 @@ def default_steps(series) -> int:
 
 
 def run(args) -> int:
+    from ..settings import RULES, EvaluationSettings
+
     horizon = EvaluationSettings(horizon=RULES["horizon"].from_text("horizon", args.horizon))
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    options.check_log_scale(args, series)
+    from ..forecast import fit_history, trend_forecast
+    from ..holdout import holdout_check
+
     k = args.holdout or default_steps(series)
     h = horizon.horizon_for(series)
     if args.output:
@@ -52,7 +56,8 @@ def run(args) -> int:
         fit = fit_history(series, spec)
         from ..report.forecast_chart import forecast_png
 
-        png = forecast_png(series, fit.fitted(), 0, fc, holdout=held)
+        png = forecast_png(series, fit.fitted(), 0, fc, units=args.units or "", holdout=held,
+                           log_scale=args.log_scale)
         csv_text = forecast_csv(fc)
         targets = [folder / "forecast.csv", folder / "forecast.png"]
         options.check_targets(targets, "option --output")  # nothing is written if one fails

@@ -4,11 +4,38 @@ from __future__ import annotations
 
 import argparse
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from ..errors import InputError
-from ..settings import DEFAULT_MAX_BREAKS, MAX_SEASON_LENGTH, RULES, Settings
 from .names import FLAGS, dest
-from ..output import check_targets, dumps, json_safe, write_atomic  # noqa: F401  (for commands)
+
+if TYPE_CHECKING:
+    from ..settings import Settings
+
+
+# The output helpers, loaded when first called (numpy is not needed for --help or --version).
+def check_targets(*args, **kwargs):
+    from ..output import check_targets as f
+
+    return f(*args, **kwargs)
+
+
+def dumps(*args, **kwargs):
+    from ..output import dumps as f
+
+    return f(*args, **kwargs)
+
+
+def json_safe(*args, **kwargs):
+    from ..output import json_safe as f
+
+    return f(*args, **kwargs)
+
+
+def write_atomic(*args, **kwargs):
+    from ..output import write_atomic as f
+
+    return f(*args, **kwargs)
 
 
 def add_input_options(p) -> None:
@@ -31,6 +58,8 @@ def add_input_options(p) -> None:
 def _setting(p, name: str, help: str, metavar: str | None = None) -> None:
     """Declare the flag of setting ``name`` (``names.FLAGS``); its values are checked by the
     settings' table (``settings.RULES``), the choices listed from it."""
+    from ..settings import RULES
+
     rule = RULES[name]
     flag = FLAGS[name]
     if rule.form == "flag":
@@ -44,6 +73,8 @@ def _setting(p, name: str, help: str, metavar: str | None = None) -> None:
 
 
 def add_model_options(p) -> None:
+    from ..settings import MAX_SEASON_LENGTH
+
     _setting(p, "shape", "trend shape (default linear)")
     _setting(p, "seasonality", "seasonal terms; auto = dummies for seasonal calendars, none "
                                "otherwise")
@@ -52,6 +83,8 @@ def add_model_options(p) -> None:
 
 
 def add_break_options(p) -> None:
+    from ..settings import DEFAULT_MAX_BREAKS
+
     _setting(p, "kind", "what may change at a break: level (jump), slope (kink), both; auto lets "
                         "the criterion choose")
     _setting(p, "max_breaks", f"largest number of breaks considered (default {DEFAULT_MAX_BREAKS}, "
@@ -83,6 +116,8 @@ def add_evaluation_options(p) -> None:
 def settings_from_args(args) -> Settings:
     """The ``Settings`` the command line asks for: every setting flag the command has, parsed
     and checked by the settings' table; flags left out keep the settings' defaults."""
+    from ..settings import RULES, Settings
+
     given = {}
     for name in Settings.FIELDS:
         if not hasattr(args, dest(name)):
@@ -92,6 +127,31 @@ def settings_from_args(args) -> Settings:
             continue
         given[name] = RULES[name].from_text(name, raw)
     return Settings(**given)
+
+
+def add_chart_options(p) -> None:
+    """How values are labelled and drawn (the report and the forecast chart)."""
+    p.add_argument("--units", metavar="TEXT",
+                   help="units of the values, e.g. 'orders a month' or 'EUR million', written "
+                        "on every value axis and in the sentences (default: the series name)")
+    p.add_argument("--log-scale", action="store_true",
+                   help="draw value axes on a log scale (steady exponential growth becomes a "
+                        "straight line); needs positive values")
+
+
+def check_log_scale(args, series) -> None:
+    """Refuse --log-scale for a series with a value at or below zero, naming the period."""
+    if not getattr(args, "log_scale", False):
+        return
+    bad = [i for i, v in enumerate(series.values) if not v > 0]
+    if bad:
+        raise InputError(f"option --log-scale: needs positive values; {series.label(bad[0])} "
+                         f"is {series.values[bad[0]]:g}")
+
+
+def add_progress_option(p) -> None:
+    p.add_argument("--quiet", action="store_true",
+                   help="no progress bar on standard error (it is drawn only on a terminal)")
 
 
 def add_output_options(p, output_help: str = "folder for the output files") -> None:

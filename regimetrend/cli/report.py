@@ -20,6 +20,8 @@ def register(sub) -> None:
     options.add_model_options(p)
     options.add_break_options(p)
     options.add_evaluation_options(p)
+    options.add_chart_options(p)
+    options.add_progress_option(p)
     p.add_argument("--output", metavar="DIR", required=True,
                    help="folder for the report files (created when missing)")
     p.add_argument("--json", action="store_true",
@@ -28,22 +30,29 @@ def register(sub) -> None:
 
 
 def produce_report(series, folder, settings=None, *, source_name: str | None = None,
+                   units: str | None = None, log_scale: bool = False, quiet: bool = True,
                    **choices) -> dict:
     """Run ``analyze`` on ``series`` with ``settings`` (and flat ``choices``) and write the
-    report into ``folder``; returns {output name: path}."""
+    report into ``folder``; returns {output name: path}. A progress bar shows on a terminal
+    unless ``quiet``."""
     from ..analysis import analyze
     from ..report import write_report
+    from .progress import StageBar
 
     folder = options.check_output_folder(folder)
-    analysis = analyze(series, settings, **choices)
-    return write_report(analysis, folder, source_name=source_name)
+    analysis = analyze(series, settings,
+                       progress=StageBar("rolling origin", "origins", quiet=quiet), **choices)
+    return write_report(analysis, folder, source_name=source_name, units=units,
+                        log_scale=log_scale, progress=StageBar("report", "parts", quiet=quiet))
 
 
 def run(args) -> int:
     folder = options.check_output_folder(args.output)
     settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
-    written = produce_report(series, folder, settings, source_name=Path(args.file).name)
+    options.check_log_scale(args, series)
+    written = produce_report(series, folder, settings, source_name=Path(args.file).name,
+                             units=args.units, log_scale=args.log_scale, quiet=args.quiet)
     if args.json:
         result = json.loads(Path(written["json"]).read_text(encoding="utf-8"))
         result["outputs"] = written

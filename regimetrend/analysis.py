@@ -39,6 +39,13 @@ class Analysis:
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
     global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
+    def summary(self) -> str:
+        """Plain text of the whole analysis: breaks and growth by regime, the recommendation,
+        history and diagnosis, the forecast with intervals, the cautions."""
+        from .plaintext import analysis_text
+
+        return analysis_text(self)
+
     def to_dict(self) -> dict:
         from .output import json_safe
 

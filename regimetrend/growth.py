@@ -212,6 +212,12 @@ class GrowthTable:
     def last(self) -> RegimeGrowth:
         return self.regimes[-1]
 
+    def summary(self) -> str:
+        """Plain text: growth a year by regime with 95% intervals and each change's Wald test."""
+        from .plaintext import growth_text
+
+        return growth_text(self)
+
     def to_dict(self) -> dict:
         return {"series": self.series_name, "shape": self.spec.shape, "kind": self.kind,
                 "spec": self.spec.to_dict(), "frequency": self.frequency,

@@ -26,10 +26,10 @@ They go through the least-squares core, and their forecasts use the core's ``pre
 design's rows after the history (the last regime's), then the same back-transform as a single
 trend (lognormal mean for the exponential shape).
 
-Each strategy is an entry of the strategy table (``strategy_table``): its forecaster, its words
-and how the comparison offers it. The five above are registered at the end of this module;
-``OriginFits.forecast`` and ``strategy_forecast`` look strategies up there, so a registered one
-is scored and forecast like these.
+Each strategy is an entry of the strategy table (``strategy_table``, where the five above are
+registered): its forecaster, its words and how the comparison offers it. ``OriginFits.forecast``
+and ``strategy_forecast`` look strategies up there, so a registered one is scored and forecast
+like these; ``OriginFits`` offers the cached fits the forecasters build on.
 
 Breaks that leave a regime too short for its own trend are ignored (the regime joins the one
 before it), so a strategy never fails because a break was found close to an origin.
@@ -53,8 +53,7 @@ from .design import (
 from .errors import InputError
 from .ols import t_quantile
 from .regime_design import ModelResponse, RegimeDesign, model_response
-from .strategy_table import (StrategyKind, register_strategy, strategy_kind, strategy_kinds,
-                             strategy_names)
+from .strategy_table import StrategyKind, strategy_kind, strategy_kinds
 from .trendfit import PointForecasts, TrendFit, fit_trend
 
 LAYOUTS = {"separate": "both", "continuous": "slope"}  # joint strategy -> regime design kind
@@ -612,76 +611,3 @@ def strategy_forecast(series, strategy: Strategy, breaks, horizon: int, spec: Tr
     used = TrendSpec(strategy.last_shape or strategy.shape, spec.seasonality, spec.season_length)
     return Forecast(strategy.key + " (" + used.describe() + ")", used, starts, labels, points,
                     int(start))
-
-
-# ---------------------------------------------------------------------------------------------
-# the built-in strategies, registered in the strategy table (``strategy_table``)
-
-
-def _forecast_global(fits: OriginFits, strategy: Strategy, horizon: int) -> PointForecasts:
-    return fits.trend_forecast(strategy.shape, 0, fits.positions_after(horizon))
-
-
-def _forecast_truncated(fits: OriginFits, strategy: Strategy, horizon: int) -> PointForecasts:
-    return fits.trend_forecast(strategy.shape, fits.truncated_start(strategy),
-                               fits.positions_after(horizon))
-
-
-def _forecast_separate(fits: OriginFits, strategy: Strategy, horizon: int) -> PointForecasts:
-    return fits.joint_forecast("separate", strategy.shape, strategy.last_shape, horizon)
-
-
-def _forecast_continuous(fits: OriginFits, strategy: Strategy, horizon: int) -> PointForecasts:
-    return fits.joint_forecast("continuous", strategy.shape, None, horizon)
-
-
-def _forecast_window_average(fits: OriginFits, strategy: Strategy, horizon: int
-                             ) -> PointForecasts:
-    return fits.window_average(strategy.shape, fits.positions_after(horizon))
-
-
-def _start_words(strategy: Strategy) -> str:
-    """Where a truncated fit starts, in words: a date, an event, a break."""
-    if strategy.start is not None:
-        label = str(strategy.start_label or strategy.start)
-        return label if label[:1].isdigit() else f"the {label}"
-    k = strategy.from_break
-    return "the last break" if k == 1 else f"the break {k} before the end"
-
-
-def _separate_words(st: Strategy) -> str:
-    if st.last_shape:
-        return (f"separate trends per regime, {st.shape} before the last break and "
-                f"{st.last_shape} after it, forecast from the last regime")
-    return f"separate {st.shape} trends per regime, forecast from the last regime"
-
-
-BUILT_IN = (
-    StrategyKind("global", _forecast_global,
-                 lambda st: f"one {st.shape} trend over all history",
-                 "one trend over all history (the reference every other candidate is measured "
-                 "against).", single_starts=lambda fits, st: (0,), regime_aware=False),
-    StrategyKind("separate", _forecast_separate, _separate_words,
-                 "one trend per regime, fitted jointly with shared seasonal terms, forecast "
-                 "from the last regime.", mixed_shapes=True),
-    StrategyKind("truncated", _forecast_truncated,
-                 lambda st: f"one {st.shape} trend fitted only on the history from "
-                            f"{_start_words(st)}",
-                 "the trend fitted only on the history from a chosen start (the last break, "
-                 "an earlier one, an event or a fixed date).",
-                 single_starts=lambda fits, st: (fits.truncated_start(st),), from_breaks=True),
-    StrategyKind("continuous", _forecast_continuous,
-                 lambda st: f"a {st.shape} trend joined at the breaks, forecast from its last "
-                            f"piece",
-                 "a piecewise trend joined at the breaks (it bends there, without a jump)."),
-    StrategyKind("window-average", _forecast_window_average,
-                 lambda st: f"the average of {st.shape} trend forecasts from several "
-                            f"estimation-window starts",
-                 "the average of forecasts from several estimation windows, a hedge when the "
-                 "break date is uncertain.",
-                 single_starts=lambda fits, st: fits.window_starts_for(st.shape),
-                 uses_windows=True),
-)
-for _kind in BUILT_IN:
-    if _kind.name not in strategy_names():
-        register_strategy(_kind)

@@ -8,7 +8,7 @@ the plain words for one of its candidates; and a one-sentence summary. The rolli
 (``regimes.strategy_forecast``) refits the recommended one, and the CLI and the report take
 their words from here. ``register_strategy`` adds one; nothing else needs to change.
 
-The five built-in strategies are registered by ``regimes`` when it is imported.
+The five built-in strategies are registered at the end of this module.
 """
 
 from __future__ import annotations
@@ -82,3 +82,75 @@ def strategy_names() -> tuple[str, ...]:
 
 def strategy_kinds() -> tuple[StrategyKind, ...]:
     return tuple(_TABLE.values())
+
+
+# ---------------------------------------------------------------------------------------------
+# the built-in strategies (their forecasters use the cached fits of ``regimes.OriginFits``)
+
+
+def _forecast_global(fits, strategy, horizon: int):
+    return fits.trend_forecast(strategy.shape, 0, fits.positions_after(horizon))
+
+
+def _forecast_truncated(fits, strategy, horizon: int):
+    return fits.trend_forecast(strategy.shape, fits.truncated_start(strategy),
+                               fits.positions_after(horizon))
+
+
+def _forecast_separate(fits, strategy, horizon: int):
+    return fits.joint_forecast("separate", strategy.shape, strategy.last_shape, horizon)
+
+
+def _forecast_continuous(fits, strategy, horizon: int):
+    return fits.joint_forecast("continuous", strategy.shape, None, horizon)
+
+
+def _forecast_window_average(fits, strategy, horizon: int):
+    return fits.window_average(strategy.shape, fits.positions_after(horizon))
+
+
+def _start_words(strategy) -> str:
+    """Where a truncated fit starts, in words: a date, an event, a break."""
+    if strategy.start is not None:
+        label = str(strategy.start_label or strategy.start)
+        return label if label[:1].isdigit() else f"the {label}"
+    k = strategy.from_break
+    return "the last break" if k == 1 else f"the break {k} before the end"
+
+
+def _separate_words(st) -> str:
+    if st.last_shape:
+        return (f"separate trends per regime, {st.shape} before the last break and "
+                f"{st.last_shape} after it, forecast from the last regime")
+    return f"separate {st.shape} trends per regime, forecast from the last regime"
+
+
+BUILT_IN = (
+    StrategyKind("global", _forecast_global,
+                 lambda st: f"one {st.shape} trend over all history",
+                 "one trend over all history (the reference every other candidate is measured "
+                 "against).", single_starts=lambda fits, st: (0,), regime_aware=False),
+    StrategyKind("separate", _forecast_separate, _separate_words,
+                 "one trend per regime, fitted jointly with shared seasonal terms, forecast "
+                 "from the last regime.", mixed_shapes=True),
+    StrategyKind("truncated", _forecast_truncated,
+                 lambda st: f"one {st.shape} trend fitted only on the history from "
+                            f"{_start_words(st)}",
+                 "the trend fitted only on the history from a chosen start (the last break, "
+                 "an earlier one, an event or a fixed date).",
+                 single_starts=lambda fits, st: (fits.truncated_start(st),), from_breaks=True),
+    StrategyKind("continuous", _forecast_continuous,
+                 lambda st: f"a {st.shape} trend joined at the breaks, forecast from its last "
+                            f"piece",
+                 "a piecewise trend joined at the breaks (it bends there, without a jump)."),
+    StrategyKind("window-average", _forecast_window_average,
+                 lambda st: f"the average of {st.shape} trend forecasts from several "
+                            f"estimation-window starts",
+                 "the average of forecasts from several estimation windows, a hedge when the "
+                 "break date is uncertain.",
+                 single_starts=lambda fits, st: fits.window_starts_for(st.shape),
+                 uses_windows=True),
+)
+for _kind in BUILT_IN:
+    if _kind.name not in strategy_names():
+        register_strategy(_kind)

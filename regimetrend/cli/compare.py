@@ -9,7 +9,7 @@ from pathlib import Path
 from .. import numformat
 from ..errors import InputError
 from ..evaluate import compare
-from ..regimes import strategy_kinds
+from ..strategy_table import strategy_kinds
 from . import options
 from .text import fmt, table
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from ..regimes import strategy_kinds
+from ..strategy_table import strategy_kinds
 
 _SECTIONS = (
     ("Trend and growth",

@@ -53,7 +53,33 @@ def strategy_words(candidate: dict | None) -> str | None:
     table (``regimetrend.strategy_table``)."""
     if not candidate or not candidate.get("strategy"):
         return None
-    return candidate.get("description") or candidate.get("name")
+    return candidate.get("description") or _table_words(candidate) or candidate.get("name")
+
+
+def _table_words(candidate: dict) -> str | None:
+    """The strategy table's words for a candidate given as a plain dict without them."""
+    from types import SimpleNamespace
+
+    from ..errors import InputError
+    from ..strategy_table import strategy_kind
+
+    start = str(candidate.get("start") or "last break")
+    k, label = 1, None
+    words = start.split()
+    if start.startswith("break ") and start.endswith(" before the end") and words[1].isdigit():
+        k = int(words[1])
+    elif start != "last break":
+        label = start
+    try:
+        kind = strategy_kind(candidate["strategy"])
+    except InputError:
+        return None
+    shape = candidate.get("shape") or "linear"
+    last = candidate.get("last_shape")
+    return kind.words(SimpleNamespace(name=kind.name, shape=shape,
+                                      last_shape=last if last != shape else None,
+                                      start=0 if label else None, start_label=label,
+                                      from_break=k))
 
 
 def forecast_shape(candidate: dict | None) -> str | None:

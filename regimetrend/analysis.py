@@ -13,8 +13,11 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from . import cautions
+from .breaks.result import BreakSet
 from .design import TrendSpec
+from .evaluate.result import Evaluation
 from .forecast import Forecast, fit_history, trend_forecast
+from .growth import GrowthTable
 from .series import Series
 from .settings import Settings
 
@@ -26,14 +29,15 @@ class Analysis:
     series: Series
     settings: Settings
     spec: TrendSpec
-    breaks: object  # breaks.BreakSet on the full sample
-    evaluation: object  # evaluate.Evaluation (rolling origin, recommendation, history, diagnosis)
-    growth: object  # growth.GrowthTable by regime
+    breaks: BreakSet  # on the full sample
+    evaluation: Evaluation  # rolling origin, recommendation, history, diagnosis
+    growth: GrowthTable  # by regime
     forecast: Forecast  # from the recommended strategy, refitted on all history
     global_forecast: Forecast  # the single global trend, for comparison
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
     def to_dict(self) -> dict:
         from .output import json_safe
@@ -98,4 +102,5 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
     return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
                     evaluation=evaluation, growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
-                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions))
+                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions),
+                    global_trend=global_fit.trend())

@@ -33,7 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Sequence
+from collections.abc import Sequence
 
 import numpy as np
 from scipy import stats
@@ -184,7 +184,8 @@ class GrowthTable:
     """Growth of every regime of one series, and the change across each break.
 
     ``fitted`` holds the regime model's in-sample fitted values in original units (the median
-    for the exponential shape), for charts; it is not part of ``to_dict()``."""
+    for the exponential shape), for charts; ``trend`` the same with the seasonal terms at their
+    average (each regime's trend alone). Neither is part of ``to_dict()``."""
 
     series_name: str
     spec: TrendSpec
@@ -196,6 +197,7 @@ class GrowthTable:
     changes: tuple[GrowthChange, ...]
     headline: str  # which figure is the headline annualised growth, in words
     fitted: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    trend: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
     @property
     def last(self) -> RegimeGrowth:
@@ -315,10 +317,10 @@ def _joint_design(n: int, breaks: list[int], spec: TrendSpec, kind: str):
     # first period of a new regime is the first on the new slope
     cols += [np.ones(n), u] + ([u * u] if quad else [])
     knots = [float(sc.u(b - 1)) for b in breaks]
-    hinge_cols = []
+    hinge_cols: list[tuple[int, int, float]] = []  # (hinge, squared hinge or -1, knot)
     for k in knots:
         h = np.maximum(u - k, 0.0)
-        hinge_cols.append((len(cols), len(cols) + 1 if quad else None, k))
+        hinge_cols.append((len(cols), len(cols) + 1 if quad else -1, k))
         cols.append(h)
         if quad:
             cols.append(h * h)
@@ -437,7 +439,7 @@ def _ratio_pct(num: _Dual, den: _Dual, cov, z) -> Estimate | None:
 
 def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z: float):
     """All figures of one regime, and notes on those that are undefined."""
-    figures: dict[str, Estimate] = {}
+    figures: dict[str, Estimate | None] = {}
     notes: list[str] = []
     t0, t1 = float(rt.start), float(rt.end)
     f0, f1 = rt.level(beta, t0), rt.level(beta, t1)
@@ -567,7 +569,20 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
         changes.append(GrowthChange(i, series.iso(nxt.start), series.label(nxt.start), est,
                                     wald, df, p, note))
     return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
-                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted)
+                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted,
+                       _trend_line(model, spec))
+
+
+def _trend_line(model: _Model, spec: TrendSpec) -> np.ndarray:
+    """Each regime's trend over its own periods, seasonal terms at their average (zero for
+    effect-coded dummies), in original units (the median for the exponential shape)."""
+    pieces = []
+    for rt in model.regimes:
+        a, b, c = rt.A @ model.beta
+        u = (np.arange(rt.start, rt.end + 1, dtype=float) - rt.center) / rt.spread
+        pieces.append(a + b * u + c * u * u)
+    line = np.concatenate(pieces) if pieces else np.zeros(0)
+    return np.exp(line) if spec.log_scale else line
 
 
 # ---------------------------------------------------------------------------------------------

@@ -9,10 +9,17 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from ..series import Series
+
+if TYPE_CHECKING:  # annotations only: the report computes nothing
+    from ..design import TrendSpec
+    from ..evaluate.rolling import ErrorTable
+    from ..forecast import Forecast
+    from ..growth import GrowthTable
 
 
 @dataclass(frozen=True)
@@ -27,26 +34,28 @@ class BreakInfo:
 @dataclass(frozen=True, eq=False)
 class ReportData:
     series: Series
-    spec: object
+    spec: TrendSpec | None
     source_name: str
     units: str
     result: dict
     growth: dict | None
-    growth_obj: object
+    growth_obj: GrowthTable | None
     breaks: tuple[BreakInfo, ...]
     breaks_dict: dict | None
     sup_f_p: float | None
     cusum: dict | None
     evaluation: dict | None
     evaluation_obj: object
-    errors: object
+    errors: ErrorTable | None
     reference: str | None
     recommended: str | None
-    forecast: object
-    global_forecast: object
+    forecast: Forecast | None
+    global_forecast: Forecast | None
     regime_fitted: np.ndarray | None
     global_fitted: np.ndarray | None
     cautions: tuple[str, ...] = field(default=())
+    regime_trend: np.ndarray | None = None  # regime_fitted with seasonal terms at their average
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -155,4 +164,6 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
         evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
         reference=_get(evaluation, "reference"), recommended=rec,
         forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),
-        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions)
+        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions,
+        regime_trend=_fitted(_get(growth_obj, "trend"), series.n),
+        global_trend=_fitted(_get(analysis, "global_trend"), series.n))

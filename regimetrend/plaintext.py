@@ -200,8 +200,13 @@ def evaluation_text(ev: Evaluation, series: Series | None = None) -> str:
     if ev.same_as:
         lines.append("not ranked (same forecasts as another candidate): " + "; ".join(
             f"{a} = {b}" for a, b in ev.same_as.items()))
+    from .strategy_table import strategy_kinds
+
+    used = dict.fromkeys(c.strategy.name for c in ev.candidates)
     lines += ["", "gain vs global: 1 - RMSE / RMSE of the reference; DM p: one-sided "
-                  "Diebold-Mariano (HLN) p-value that the candidate is more accurate", "",
+                  "Diebold-Mariano (HLN) p-value that the candidate is more accurate",
+              "strategies: " + " ".join(f"{k.name}: {k.summary}" for k in strategy_kinds()
+                                        if k.name in used), "",
               f"recommendation: {ev.recommended.reason}",
               f"rule: {ev.recommended.rule}", ""]
     rec = ev.candidate(ev.recommended.name)

@@ -149,7 +149,7 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     spacing = window_spacing(plan.first, w_min, window_count)
     grid = window_rule_grid(spacing, plan.origins[-1], w_min)
     ranked = [dataclasses.replace(st, minimum_window=w_min, window_spacing=spacing)
-              if st.name == "window-average" else st
+              if st.kind.uses_windows else st
               for st in standard_strategies(shapes, earlier_breaks=max(m_top - 1, 0),
                                             main_shape=spec.shape)]
     for p, label in _event_positions(full, options.events):
@@ -159,7 +159,8 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     blist = breakinfo.break_list(full)
     # full-sample break dates: supporting evidence only, labelled wherever they are shown
     sweep += [Strategy("truncated", spec.shape, start=b["position"],
-                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})")
+                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})",
+                       in_sample_start=True)
               for b in blist]
     ranked_keys = {st.key for st in ranked}
     sweep = [st for st in sweep if st.key not in ranked_keys]

@@ -47,8 +47,15 @@ def for_analysis(series, breaks, evaluation_cautions=()) -> tuple[str, ...]:
     extra = []
     if breaks is not None and breaks.breaks:
         last = breaks.breaks[-1]
-        lo, hi = (int(p) for p in last.ci95)
-        extra.append(near_end(series, last.position, hi))
-        extra.append(f"The latest break is dated {last.label}; the data are consistent with any "
-                     f"date from {series.label(lo)} to {series.label(hi)} (95% interval).")
+        if last.given:
+            extra.append(near_end(series, last.position, None))
+            extra.append(f"The break dates were given by the analyst (the latest {last.label}), "
+                         f"not found in the data: the regimes hold only as far as those dates "
+                         f"are right.")
+        else:
+            lo, hi = (int(p) for p in last.ci95)
+            extra.append(near_end(series, last.position, hi))
+            extra.append(f"The latest break is dated {last.label}; the data are consistent with "
+                         f"any date from {series.label(lo)} to {series.label(hi)} (95% "
+                         f"interval).")
     return assemble(extra, evaluation_cautions)

@@ -53,6 +53,13 @@ def _interval(g: dict, key: str) -> str:
     return numformat.interval(lo, hi, numformat.percent, missing="-")
 
 
+def _slope_text(x, log: bool) -> str:
+    """The growth change at break ``x``: percentage points a period on the log scale."""
+    if log and x.slope_change_pct is not None:
+        return f"{numformat.points(x.slope_change_pct, '-')} pp/period"
+    return f"{numformat.signed(x.slope_change, '-')}/period"
+
+
 def series_line(series: Series) -> str:
     return (f"{series.name}: {series.n} {series.frequency.name} periods, {series.label(0)} to "
             f"{series.label(series.n - 1)}")
@@ -65,18 +72,25 @@ def breaks_text(b: BreakSet, series: Series | None = None,
     spec = b.spec
     log = spec.shape == "exponential"
     lines = [series_line(series)] if series is not None else []
+    how = ("break dates given by the analyst (no search)" if b.given
+           else f"number chosen by {b.criterion}")
     lines += [f"model: {spec.describe()}; breaks of kind '{b.kind}' (asked: {b.kind_requested}); "
-              f"number chosen by {b.criterion}; shortest regime {b.trim_periods} periods", ""]
-    if b.breaks:
+              f"{how}; shortest regime {b.trim_periods} periods", ""]
+    if b.breaks and b.given:
+        rows = [[x.label, numformat.signed(x.jump, "-"), _slope_text(x, log),
+                 numformat.statistic(x.f_statistic, "-"), words.p_phrase(x.p_value)]
+                for x in b.breaks]
+        lines.append(f"breaks given by the analyst: {len(b.breaks)} (each is the first period "
+                     f"of a new regime; dates not estimated, so no date interval applies)")
+        lines.append(table(["break", "jump (units)", "growth change",
+                            "F, given the others", "p"], rows))
+    elif b.breaks:
         rows = []
         for x in b.breaks:
             lo90, hi90 = (_label(series, p, d) for p, d in zip(x.ci90, x.ci90_dates))
             lo95, hi95 = (_label(series, p, d) for p, d in zip(x.ci95, x.ci95_dates))
-            slope = (f"{numformat.points(x.slope_change_pct, '-')} pp/period"
-                     if log and x.slope_change_pct is not None
-                     else f"{numformat.signed(x.slope_change, '-')}/period")
             rows.append([x.label, f"{lo90} to {hi90}", f"{lo95} to {hi95}",
-                         numformat.signed(x.jump, "-"), slope,
+                         numformat.signed(x.jump, "-"), _slope_text(x, log),
                          numformat.statistic(x.f_statistic, "-")])
         lines.append(f"breaks found: {len(b.breaks)} (each is the first period of a new regime)")
         lines.append(table(["break", "90% interval", "95% interval", "jump (units)",
@@ -86,9 +100,15 @@ def breaks_text(b: BreakSet, series: Series | None = None,
     t = b.tests
     if t is not None:
         lines += ["", "tests:"]
-        lines.append(f"  sup-F, no break against one: F = {numformat.statistic(t.supf.statistic)}, "
-                     f"{words.p_phrase(t.supf.p_value)} (shortest regime "
-                     f"{t.supf.trim_share:.0%} of the series)")
+        if t.joint is not None:
+            lines.append(f"  F test of the given break dates together against one trend: "
+                         f"F = {numformat.statistic(t.joint.statistic)} on {t.joint.df1} and "
+                         f"{t.joint.df2} degrees of freedom, {words.p_phrase(t.joint.p_value)}")
+        elif not b.given:
+            lines.append(f"  sup-F, no break against one: "
+                         f"F = {numformat.statistic(t.supf.statistic)}, "
+                         f"{words.p_phrase(t.supf.p_value)} (shortest regime "
+                         f"{t.supf.trim_share:.0%} of the series)")
         for step in t.sequential:
             where = (f" (best at {_label(series, step.position, f'position {step.position}')})"
                      if step.position is not None else "")
@@ -130,7 +150,7 @@ def breaks_text(b: BreakSet, series: Series | None = None,
     notes = list(b.notes)
     if series is not None and b.breaks:
         last = b.breaks[-1]
-        caution = words.near_end(series, last.position, last.ci95[1])
+        caution = words.near_end(series, last.position, None if last.given else last.ci95[1])
         if caution:
             notes.append(caution)
     notes.append("pair these findings with what you know happened in the business")

@@ -48,6 +48,7 @@ class Rule:
     least: int = 0
     most: int | None = None
     optional: bool = False  # None allowed (meaning: the default the docstring names)
+    separated: bool = False  # dates: text may list several, separated by commas
 
     def check(self, name: str, value: Any) -> Any:
         """``value`` in its normal form, or an InputError naming ``name``."""
@@ -118,6 +119,9 @@ class Rule:
         except TypeError:
             raise InputError(f"{about(name)}: expected {self.describe()}, "
                              f"got {_shown(value)}") from None
+        if self.separated:  # '2020-04,2022-01' is two dates
+            items = [part for item in items
+                     for part in (item.split(",") if isinstance(item, str) else [item])]
         out: list[str | int] = []
         for item in items:
             if not _one_date(item):
@@ -184,6 +188,7 @@ RULES: dict[str, Rule] = {
     "trim": Rule("trim", optional=True),
     "criterion": Rule("choice", ("sequential", "bic", "lwz")),
     "events": Rule("dates", optional=True),
+    "break_dates": Rule("dates", optional=True, separated=True),
     "seasonal_by_regime": Rule("flag"),
     "serial_correlation": Rule("choice", ("allow", "ignore")),
     "method": Rule("choice", ("auto", "exact", "pelt")),
@@ -224,13 +229,17 @@ class ModelSettings(_Checked):
 class BreakSettings(_Checked):
     """The break search (see ``breaks.detect``): ``max_breaks=None`` is up to
     ``DEFAULT_MAX_BREAKS``, as many as the series can hold; ``trim=None`` the default shortest
-    regime; ``events`` dates tested by the Chow test (one date or several)."""
+    regime; ``events`` dates tested by the Chow test (one date or several); ``break_dates``
+    dates (or positions) of breaks the analyst knows: the regimes are fitted there instead of
+    searched for (``breaks.given``). From Python ``breaks=[...]`` sets it too (the name of
+    the part itself takes a ``BreakSettings``; anything else is read as the dates)."""
 
     kind: str = "auto"
     max_breaks: int | None = None
     trim: float | int | None = None
     criterion: str = "sequential"
     events: tuple[str | int, ...] = ()
+    break_dates: tuple[str | int, ...] = ()
     seasonal_by_regime: bool = False
     serial_correlation: str = "allow"
     method: str = "auto"
@@ -279,6 +288,10 @@ class Settings:
 
     def __init__(self, model: ModelSettings | None = None, breaks: BreakSettings | None = None,
                  evaluation: EvaluationSettings | None = None, **choices: Any):
+        if breaks is not None and not isinstance(breaks, BreakSettings):
+            # ``breaks=["2020-04"]``: the analyst's break dates, not the part
+            choices = dict(choices, break_dates=breaks)
+            breaks = None
         given = {"model": model, "breaks": breaks, "evaluation": evaluation}
         for part, cls in PARTS.items():
             if given[part] is not None and not isinstance(given[part], cls):
@@ -302,9 +315,12 @@ class Settings:
             raise InputError(f"{about('settings')}: expected a Settings, "
                              f"got {type(settings).__name__}")
         for name in choices:
+            name = "break_dates" if name == "breaks" else name
             if name in PART_OF and PART_OF[name] not in parts:
                 raise InputError(f"{about(name)}: {caller or 'this function'} does not use "
                                  f"{PART_OF[name]} settings")
+        if "breaks" in choices:  # the analyst's break dates (see ``BreakSettings``)
+            choices = {("break_dates" if k == "breaks" else k): v for k, v in choices.items()}
         base = settings or cls()
         return cls(base.model, base.breaks, base.evaluation, **choices) if choices else base
 

@@ -75,6 +75,8 @@ def detect_breaks(series, settings: Settings | None = None, **choices) -> BreakS
     ``trim``: shortest regime, a share of the series (below 0.5) or a number of periods; the
     default lets the last regime be one seasonal cycle (``problem.default_min_length``).
     ``events``: dates (any form intake reads, or positions) tested by the Chow test.
+    ``break_dates`` (or ``breaks=[...]``): the analyst's break dates, fitted instead of
+    searched for (``breaks.given``).
     """
     from ..intake import as_series
 
@@ -93,6 +95,10 @@ def find_breaks(series, spec: TrendSpec, options: BreakSettings) -> BreakSet:
     ``threadpoolctl`` is installed.
     """
     with _one_blas_thread():
+        if options.break_dates:  # the analyst's dates: fitted there, no search
+            from .given import given_breaks
+
+            return given_breaks(series, spec, options)
         return _detect(series, spec, options.kind, options.max_breaks, options.trim,
                        options.criterion, options.events, options.seasonal_by_regime,
                        options.method, options.serial_correlation)

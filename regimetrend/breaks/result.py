@@ -39,18 +39,29 @@ class Break:
     slope_change_pct: float | None  # exponential: change of growth, percentage points/period
     curvature_change: float | None  # quadratic: change of the t^2 coefficient per period^2
     f_statistic: float  # partial F of this break given the others (F scale)
+    # a date the analyst gave (``breaks.given``): no date interval applies (ci90 and ci95 are
+    # the date itself, for the stages that read them; JSON and text show none), and the
+    # partial F has an F-law ``p_value`` because the date was not searched for
+    given: bool = False
+    p_value: float | None = None
 
     def to_dict(self) -> dict:
-        return {"position": int(self.position), "date": self.date, "label": self.label,
-                "ci90": list(self.ci90_dates), "ci95": list(self.ci95_dates),
-                "ci90_positions": [int(v) for v in self.ci90],
-                "ci95_positions": [int(v) for v in self.ci95],
+        out = {"position": int(self.position), "date": self.date, "label": self.label,
+               "date_given": bool(self.given)}
+        if self.given:
+            out.update({"ci90": None, "ci95": None, "ci90_positions": None,
+                        "ci95_positions": None})
+        else:
+            out.update({"ci90": list(self.ci90_dates), "ci95": list(self.ci95_dates),
+                        "ci90_positions": [int(v) for v in self.ci90],
+                        "ci95_positions": [int(v) for v in self.ci95]})
+        return {**out,
                 "interval_method": self.interval_method,
                 "jump": _num(self.jump), "jump_model_scale": _num(self.jump_model),
                 "slope_change": _num(self.slope_change),
                 "slope_change_pct": _num(self.slope_change_pct),
                 "curvature_change": _num(self.curvature_change),
-                "f_statistic": _num(self.f_statistic)}
+                "f_statistic": _num(self.f_statistic), "p_value": _num(self.p_value)}
 
 
 @dataclass(frozen=True)
@@ -142,14 +153,31 @@ class CusumSummary:
 
 
 @dataclass(frozen=True)
+class JointTest:
+    """F test of all the analyst's break dates together against no break (the dates are
+    given, not searched for, so the F law applies; scaled like the other tests)."""
+
+    statistic: float
+    p_value: float | None
+    df1: int
+    df2: int
+
+    def to_dict(self) -> dict:
+        return {"statistic": _num(self.statistic), "p_value": _num(self.p_value),
+                "df1": int(self.df1), "df2": int(self.df2)}
+
+
+@dataclass(frozen=True)
 class BreakTests:
     supf: SupFTest
     sequential: tuple[SequentialStep, ...]
     chow: tuple[EventTest, ...]
     cusum: tuple[CusumSummary, ...]
+    joint: JointTest | None = None  # breaks at the analyst's dates: their joint F test
 
     def to_dict(self) -> dict:
         return {"supf": self.supf.to_dict(),
+                "joint": self.joint.to_dict() if self.joint is not None else None,
                 "sequential": [s.to_dict() for s in self.sequential],
                 "chow": [c.to_dict() for c in self.chow],
                 "cusum": [c.to_dict() for c in self.cusum]}
@@ -198,6 +226,12 @@ class BreakSet:
     seasonal_by_regime: bool = False
     notes: tuple[str, ...] = ()
     max_breaks: int = 0  # most breaks searched (the default cap resolved; see detect_breaks)
+    given: bool = False  # the dates were given by the analyst, not searched for
+
+    @property
+    def source(self) -> str:
+        """Where the dates come from, in words."""
+        return "given by the analyst" if self.given else "found by the search"
 
     @property
     def n_breaks(self) -> int:
@@ -237,4 +271,5 @@ class BreakSet:
                 "method": self.method, "exact": bool(self.exact),
                 "iterations": int(self.iterations),
                 "seasonal_by_regime": bool(self.seasonal_by_regime),
-                "max_breaks": int(self.max_breaks), "notes": list(self.notes)}
+                "max_breaks": int(self.max_breaks), "dates_given": bool(self.given),
+                "dates_source": self.source, "notes": list(self.notes)}

@@ -27,6 +27,7 @@ FLAGS: dict[str, str] = {
     "trim": "--trim",
     "criterion": "--criterion",
     "events": "--event",
+    "break_dates": "--breaks",
     "seasonal_by_regime": "--seasonal-by-regime",
     "serial_correlation": "--serial-correlation",
     "method": "--method",

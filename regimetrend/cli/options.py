@@ -90,6 +90,8 @@ def add_break_options(p) -> None:
     _setting(p, "max_breaks", f"largest number of breaks considered (default {DEFAULT_MAX_BREAKS}, "
                               f"fewer when the series is too short to hold them)")
     _setting(p, "events", "a known event date to test as a break (repeatable)")
+    _setting(p, "break_dates", "break dates the analyst knows, e.g. 2020-04,2022-01: the regimes are "
+                          "fitted at these dates instead of searched for", "DATES")
     _setting(p, "trim", "shortest regime: a share of the series (below 0.5) or a number of "
                         "periods")
     _setting(p, "criterion", "how the number of breaks is chosen: sequential sup-F tests at 5%% "
@@ -123,7 +125,7 @@ def settings_from_args(args) -> Settings:
         if not hasattr(args, dest(name)):
             continue
         raw = getattr(args, dest(name))
-        if raw is None or (name == "events" and not raw):
+        if raw is None or (name in ("events", "break_dates") and not raw):
             continue
         given[name] = RULES[name].from_text(name, raw)
     return Settings(**given)

@@ -45,6 +45,21 @@ def history_breaks(history, spec: TrendSpec, options: BreakSettings):
     return find_breaks(history, spec, dataclasses.replace(options, events=(), max_breaks=m))
 
 
+def given_at_origin(full, spec: TrendSpec, options: BreakSettings):
+    """``breaks_at(o)`` for the analyst's dates: at origin ``o`` the given dates inside the
+    history known then with a shortest regime on each side (the trim resolved on that history,
+    as a search there would). No search, and no leak: the dates were given in advance."""
+    from ..breaks.problem import resolve_trim
+
+    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
+    dates = breakinfo.positions(full)
+
+    def at(o):
+        h = resolve_trim(options.trim, o, spec, by_regime)
+        return tuple(b for b in dates if h <= b <= o - h)
+    return at
+
+
 def duplicates(table, count: int) -> dict:
     """Candidates (among the first ``count``) whose forecasts and intervals equal an earlier
     one's at every origin, e.g. a truncated fit from an earlier break when only one break was
@@ -72,6 +87,8 @@ def _origin_breaks(series, plan, full, spec: TrendSpec, options: BreakSettings,
                    reuse_breaks: bool, m_top: int):
     """``breaks_at(o)`` for every origin, and the list of origins whose search failed."""
     failed: list[int] = []
+    if options.break_dates:
+        return given_at_origin(full, spec, options), failed
     if reuse_breaks:
         full_positions = breakinfo.positions(full)
         return (lambda o: tuple(b for b in full_positions if b < o)), failed
@@ -142,6 +159,8 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     w_min = minimum_window(specs)
     plan = plan_origins(series.n, H, w_min, ev.first_origin, ev.step)
     m_top = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
+    if full.given:
+        m_top = full.n_breaks
     reuse_breaks = ev.reuse_breaks
     breaks_at, failed = _origin_breaks(series, plan, full, spec, options, reuse_breaks, m_top)
 
@@ -199,7 +218,7 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     sweeps = tuple(result(i, 0, True) for i in range(n_ranked, len(strategies)))
     ref_result = next(c for c in cands if c.name == reference.key)
     break_p = breakinfo.supf_pvalue(full)
-    rec = recommend(cands, ref_result, break_p, reuse_breaks)
+    rec = recommend(cands, ref_result, break_p, reuse_breaks, test=breakinfo.test_name(full))
 
     leak_free = {k: result(table.index(Strategy("truncated", spec.shape, from_break=k).key))
                  for k in range(1, m_top + 1)
@@ -227,18 +246,30 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     if reuse_breaks:
         cautions.insert(0, OPTIMISTIC_NOTE)
     model = dict(spec.to_dict(), shapes=list(shapes), kind=options.kind,
+                 break_dates=[str(d) for d in options.break_dates],
                  max_breaks=options.max_breaks, criterion=options.criterion, trim=options.trim,
                  events=[str(e) for e in options.events],
                  seasonal_by_regime=options.seasonal_by_regime, point_forecast="mean",
                  minimum_window=w_min, window_spacing=spacing,
                  window_starts=[series.iso(g) for g in grid])
     return Evaluation(series=json_clean(series.to_dict()), model=json_clean(model),
-                      plan=json_clean(dict(plan.to_dict(series),
-                                           breaks="reused from the full sample (optimistic)"
-                                           if reuse_breaks else "re-detected at every origin "
-                                           "from the history up to it")),
+                      plan=json_clean(dict(plan.to_dict(series), breaks=_plan_words(
+                          reuse_breaks, full.given))),
                       optimistic=bool(reuse_breaks), reference=reference.key,
                       candidates=tuple(cands), sweep=sweeps, recommended=rec, history=history,
                       diagnosis=diag, breaks=breakinfo.to_dict(full), breaks_by_origin=used,
                       same_as={table.names[i]: table.names[j] for i, j in same_as.items()},
                       errors=table, cautions=tuple(cautions))
+
+
+GIVEN_PLAN = ("the analyst's break dates, given in advance: at every origin those inside the "
+              "history up to it with a shortest regime on each side (no search, so no leak)")
+
+
+def _plan_words(reuse_breaks: bool, given: bool) -> str:
+    """How each origin knew its breaks, for the plan in JSON and the report."""
+    if given:
+        return GIVEN_PLAN
+    if reuse_breaks:
+        return "reused from the full sample (optimistic)"
+    return "re-detected at every origin from the history up to it"

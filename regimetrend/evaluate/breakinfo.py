@@ -12,20 +12,33 @@ def positions(breakset) -> tuple[int, ...]:
 
 
 def break_list(breakset) -> list[dict]:
-    """[{position, ci95: (lo, hi)}] in time order."""
+    """[{position, ci95: (lo, hi), given}] in time order; a date the analyst gave has no
+    interval (``ci95`` is (None, None)) and ``given`` True."""
     if breakset is None:
         return []
-    out = [{"position": int(b.position), "ci95": (int(b.ci95[0]), int(b.ci95[1]))}
+    out = [{"position": int(b.position), "ci95": (None, None), "given": True} if b.given
+           else {"position": int(b.position), "ci95": (int(b.ci95[0]), int(b.ci95[1])),
+                 "given": False}
            for b in breakset.breaks]
     return sorted(out, key=lambda d: d["position"])
 
 
 def supf_pvalue(breakset) -> float | None:
-    """p-value of the sup-F test of no break against one (Andrews, 1993)."""
+    """p-value of the sup-F test of no break against one (Andrews, 1993); for the analyst's
+    break dates (nothing searched) the F test of those dates together (``test_name`` says
+    which)."""
     if breakset is None or breakset.tests is None or breakset.tests.supf is None:
         return None
-    p = breakset.tests.supf.p_value
+    joint = breakset.tests.joint
+    p = joint.p_value if joint is not None else breakset.tests.supf.p_value
     return None if p is None or not math.isfinite(float(p)) else float(p)
+
+
+def test_name(breakset) -> str:
+    """The name of the test behind ``supf_pvalue``, for sentences."""
+    if breakset is not None and breakset.given:
+        return "F test of the analyst's break dates"
+    return "sup-F test"
 
 
 def cusum_crossing(breakset) -> int | None:
@@ -54,6 +67,12 @@ def own_test(breakset, position: int) -> dict:
     none = {"test": "not available", "statistic": None, "p_value": None}
     if breakset is None or breakset.tests is None:
         return none
+    if breakset.given:  # a date given in advance: its partial F read on the F law
+        brk = next((b for b in breakset.breaks if int(b.position) == int(position)), None)
+        if brk is None:
+            return none
+        return {"test": "F test at the given date",
+                "statistic": _finite(brk.f_statistic), "p_value": brk.p_value}
     for step in breakset.tests.sequential:
         if step.position is not None and int(step.position) == int(position) \
                 and step.p_value is not None and math.isfinite(float(step.p_value)):

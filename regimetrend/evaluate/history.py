@@ -89,13 +89,14 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     rows = []
     for b in breaks:
         lo, hi = b["ci95"]
+        has_ci = lo is not None  # a date the analyst gave has no interval
         fit = from_breaks.get(b["position"])
         own = _own(own_tests, b["position"])
         rows.append({"date": series.iso(b["position"]), "label": series.label(b["position"]),
-                     "position": b["position"],
-                     "ci95": [series.iso(lo), series.iso(hi)],
-                     "ci95_labels": [series.label(lo), series.label(hi)],
-                     "ci95_positions": [int(lo), int(hi)],
+                     "position": b["position"], "given": bool(b.get("given")),
+                     "ci95": [series.iso(lo), series.iso(hi)] if has_ci else None,
+                     "ci95_labels": [series.label(lo), series.label(hi)] if has_ci else None,
+                     "ci95_positions": [int(lo), int(hi)] if has_ci else None,
                      "judgeable": judgeable(b["position"], origins, minimum),
                      "own_test": own["test"], "own_statistic": own["statistic"],
                      "own_p_value": own["p_value"],
@@ -120,7 +121,12 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
                                history_sentence(None, "the break search found no break"),
                                evidence)
 
+    given = any(r["given"] for r in rows)
+    test = "F test of the given dates" if given else "sup-F"
+
     def interval(r):
+        if r["ci95_labels"] is None:
+            return " (a date the analyst gave)"
         a, b = r["ci95_labels"]
         return f" (95% date interval {a} to {b})"
 
@@ -146,7 +152,7 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
         r = (judged or rows)[-1]
         return HistoryDecision(None, None, history_sentence(
                                None, f"the break at {r['label']}{interval(r)} is not "
-                               f"significant on its own ({own_words(r)}; any break: sup-F "
+                               f"significant on its own ({own_words(r)}; any break: {test} "
                                f"{_p(break_p)}){recent_note}{tail}"), evidence)
     chosen = candidates[-1]
     k = 1 + sum(1 for r in judged if r["position"] > chosen["position"])
@@ -154,7 +160,7 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     evidence["judged_break"] = chosen["date"]
     evidence["leak_free_candidate"] = fit.name if fit is not None else None
     hits = None
-    if breaks_by_origin is not None and fit is not None:
+    if breaks_by_origin is not None and fit is not None and chosen["ci95_positions"]:
         starts = leak_free_starts(origins, breaks_by_origin, minimum, k)
         lo, hi = chosen["ci95_positions"]
         hits = sum(1 for s in starts if s > 0 and lo <= s <= hi)
@@ -162,6 +168,8 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
         evidence["leak_free_starts_in_interval"] = hits
     which = ("the latest break" if k == 1 else f"break {k} before the end")
     how = ("found on the full sample and reused at each origin (optimistic)" if optimistic
+           else "of the analyst's dates known at each origin (given in advance, leak-free)"
+           if given
            else "re-detected at each origin from the history up to it (leak-free)")
     where = ("" if hits is None or optimistic else
              f"; at {hits} of {len(origins)} origins the break re-detected there fell in "

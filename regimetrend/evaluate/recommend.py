@@ -26,12 +26,13 @@ ALPHA = LEVEL  # the one test level (words.LEVEL)
 LARGE_GAIN = 0.10
 
 
-def rule_text(reference: str, alpha: float = ALPHA, large_gain: float = LARGE_GAIN) -> str:
+def rule_text(reference: str, alpha: float = ALPHA, large_gain: float = LARGE_GAIN,
+              test: str = "sup-F test") -> str:
     return (f"The {reference} trend is the reference. Another candidate is recommended only when "
             f"its rolling-origin RMSE is lower and either (a) the Diebold-Mariano test "
             f"(HLN-corrected, squared-error loss, pooled over horizons) finds it more accurate "
             f"at the {alpha:.0%} level, or (b) it is regime-aware, its RMSE is at least "
-            f"{large_gain:.0%} lower and the sup-F test finds a break at the {alpha:.0%} level. "
+            f"{large_gain:.0%} lower and the {test} finds a break at the {alpha:.0%} level. "
             f"The qualifying candidate with the lowest RMSE is recommended; otherwise the "
             f"global trend is kept.")
 
@@ -40,9 +41,12 @@ _p = p_phrase  # a p-value for a sentence: 'p = 0.012', 'p < 0.001' or 'p not av
 
 
 def recommend(candidates, reference, break_p: float | None, optimistic: bool = False,
-              alpha: float = ALPHA, large_gain: float = LARGE_GAIN) -> Recommendation:
-    """Apply the rule to ranked ``CandidateResult``s; ``reference`` is the global one."""
-    rule = rule_text(reference.name, alpha, large_gain)
+              alpha: float = ALPHA, large_gain: float = LARGE_GAIN,
+              test: str = "sup-F test") -> Recommendation:
+    """Apply the rule to ranked ``CandidateResult``s; ``reference`` is the global one;
+    ``break_p`` is the p-value of the break test named ``test`` (the sup-F test of the search,
+    or the F test of the analyst's dates)."""
+    rule = rule_text(reference.name, alpha, large_gain, test)
     break_ok = break_p is not None and break_p < alpha
     qualified = []
     for c in candidates:
@@ -65,7 +69,7 @@ def recommend(candidates, reference, break_p: float | None, optimistic: bool = F
         else:
             basis = "large gain with a significant break"
             reason = (f"{best.name} is recommended: {gain}, a gain of at least {large_gain:.0%}, "
-                      f"and the sup-F test finds a break ({_p(break_p)}), although the "
+                      f"and the {test} finds a break ({_p(break_p)}), although the "
                       f"Diebold-Mariano test alone cannot tell the two apart "
                       f"(one-sided {_p(p_better)}){tail}.")
         return Recommendation(best.strategy.name, best.strategy.shape, best.name, reason, rule,
@@ -82,6 +86,6 @@ def recommend(candidates, reference, break_p: float | None, optimistic: bool = F
         detail = "there are no other candidates"
     reason = (f"the {reference.name} trend is kept: no candidate beats it by a margin the "
               f"Diebold-Mariano test can tell apart, nor by {large_gain:.0%} with a significant "
-              f"break (sup-F {_p(break_p)}); {detail}{tail}.")
+              f"break ({test} {_p(break_p)}); {detail}{tail}.")
     return Recommendation(reference.strategy.name, reference.strategy.shape, reference.name,
                           reason, rule, "global kept")

@@ -325,6 +325,7 @@ def build(d: ReportData, *, log_scale: bool = False, progress=None) -> Content:
         bt = break_rows(d.breaks_dict)
         bt = Table(bt.name, bt.title, bt.columns,
                    tuple(dict(r, label=b.label, low=d.label(b.low), high=d.label(b.high))
+                         if b.low is not None else dict(r, label=b.label)
                          for r, b in zip(bt.rows, d.breaks)), bt.note)
         tables.append(bt)
     cautions = list(assemble(d.cautions))  # the analysis's cautions; standing ones always

@@ -54,6 +54,8 @@ class ReportData:
     cautions: tuple[str, ...] = field(default=())
     regime_trend: np.ndarray | None = None  # regime_fitted with seasonal terms at their average
     global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
+    break_test: str = "sup-F test"  # the test behind ``sup_f_p`` (``breakinfo.test_name``)
+    breaks_given: bool = False  # the break dates were given by the analyst, not searched for
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -65,7 +67,8 @@ class ReportData:
 def _breaks(breakset: BreakSet | None, series: Series) -> tuple[BreakInfo, ...]:
     if breakset is None:
         return ()
-    out = [BreakInfo(b.position, b.label, b.date, int(b.ci95[0]), int(b.ci95[1]))
+    out = [BreakInfo(b.position, b.label, b.date, None, None) if b.given  # no interval
+           else BreakInfo(b.position, b.label, b.date, int(b.ci95[0]), int(b.ci95[1]))
            for b in breakset.breaks]
     return tuple(sorted(out, key=lambda b: b.position))
 
@@ -105,4 +108,6 @@ def gather(analysis: Analysis, source_name: str | None = None,
         global_fitted=_fitted(analysis.global_fitted, series.n),
         cautions=tuple(str(c) for c in analysis.cautions),
         regime_trend=_fitted(growth.trend if growth is not None else None, series.n),
-        global_trend=_fitted(analysis.global_trend, series.n))
+        global_trend=_fitted(analysis.global_trend, series.n),
+        break_test=breakinfo.test_name(breakset),
+        breaks_given=bool(breakset is not None and breakset.given))

@@ -25,7 +25,12 @@ _SECTIONS = (
      "821-856; Killick, R., Fearnhead, P. and Eckley, I. A. (2012), Journal of the American "
      "Statistical Association 107(500), 1590-1598."),
     ("Known dates and drift",
-     "A break at a known date is tested with the Chow test. CUSUM paths (of recursive "
+     "A break at a known date is tested with the Chow test. Break dates the analyst gives "
+     "are used instead of the search: the regimes are fitted at those dates, each break is "
+     "tested by its F statistic given the others on the F law (the dates were not searched "
+     "for, so there is no sup-F test and no date interval), and at each rolling origin the "
+     "given dates inside the history known then are used, which leaks nothing from the "
+     "future because the dates were fixed in advance. CUSUM paths (of recursive "
      "residuals, and of ordinary residuals) show when one global trend starts to drift; a path "
      "leaving its 5% band signals instability.",
      "Chow, G. C. (1960), Econometrica 28(3), 591-605; Brown, R. L., Durbin, J. and Evans, "

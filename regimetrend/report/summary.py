@@ -50,9 +50,9 @@ def _sure(data: ReportData) -> str:
     if p is None:
         text = "The break test was not available"
     elif words.significant(p):
-        text = f"A stable single trend is rejected (sup-F test p-value {_p_text(p)})"
+        text = f"A stable single trend is rejected ({data.break_test} p-value {_p_text(p)})"
     else:
-        text = (f"The evidence for a change is weak (sup-F test p-value {_p_text(p)}, above "
+        text = (f"The evidence for a change is weak ({data.break_test} p-value {_p_text(p)}, above "
                 f"{words.LEVEL})")
     if wald:
         last = wald[-1]
@@ -100,16 +100,17 @@ def _history(data: ReportData) -> str | None:
     shape = _history_shape(data)
     if keep:
         article = "an" if shape[:1].lower() in "aeiou" else "a"
+        source = "of the analyst's dates" if data.breaks_given else "found"
         return words.history_sentence(
             keep, f"on past periods, {article} {shape} trend refitted at "
-            f"each forecast origin from the latest break found in the history known then "
+            f"each forecast origin from the latest break {source} in the history known then "
             f"forecast better than the global {shape} trend on all history")
     if not dig(hist, "evidence", "breaks"):
         return words.history_sentence(None, "no break was found to cut it at")
     p = dig(hist, "evidence", "sup_f_p_value")
     if not words.significant(p):
         return words.history_sentence(None, f"the break test does not support cutting it for "
-                                            f"the global {shape} trend (sup-F test p-value "
+                                            f"the global {shape} trend ({data.break_test} p-value "
                                             f"{_p_text(p)})")
     return words.history_sentence(None, f"on past periods, no truncated {shape} trend fitted "
                                         f"from a break forecast better than the global {shape} "

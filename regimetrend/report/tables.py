@@ -166,14 +166,20 @@ def break_rows(breaks: dict, series_labels: dict | None = None) -> Table:
             Column("high", "95% interval, to", "text"),
             Column("f_statistic", "F, this break given the others", "stat"))
     rows = []
+    given = isinstance(breaks, dict) and bool(breaks.get("dates_given"))
     for i, b in enumerate(breaks.get("breaks", []) if isinstance(breaks, dict) else []):
-        ci = b.get("ci95_labels") or b.get("ci95") or [None, None]
+        ci = (["not applicable (date given)"] * 2 if given
+              else b.get("ci95_labels") or b.get("ci95") or [None, None])
         rows.append({"break": i + 1, "label": b.get("label") or b.get("date"),
                      "date": b.get("date"), "low": ci[0], "high": ci[1],
                      "f_statistic": b.get("f_statistic")})
-    return Table("breaks", "Breaks found", cols, tuple(rows),
-                 "F: the partial F statistic of the break given the other breaks, scaled to "
-                 "allow for autocorrelated errors when the analysis does.")
+    note = ("F: the partial F statistic of the break given the other breaks, scaled to "
+            "allow for autocorrelated errors when the analysis does.")
+    if given:
+        return Table("breaks", "Breaks at the dates the analyst gave", cols, tuple(rows),
+                     note + " The dates were given by the analyst, not found by a search, so "
+                            "no date interval applies and F is read on the F law.")
+    return Table("breaks", "Breaks found", cols, tuple(rows), note)
 
 
 # Excel number formats by column kind (the workbook keeps full precision; these set how a cell

@@ -6,12 +6,26 @@ report. ``analyze`` runs all of it; the stage functions are public too.
 
 __version__ = "0.1.0"
 
-from .design import TrendSpec  # noqa: E402
-from .errors import InputError  # noqa: E402
-from .forecast import Forecast, trend_forecast  # noqa: E402
-from .holdout import Holdout, holdout_check  # noqa: E402
-from .series import Frequency, Series  # noqa: E402
-from .settings import resolve_spec  # noqa: E402
+# The public classes load on first use (PEP 562), so ``import regimetrend`` is quick and the
+# command line can answer Ctrl-C with one line even while numpy, pandas and scipy load.
+_LAZY = {"TrendSpec": "design", "InputError": "errors", "Forecast": "forecast",
+         "trend_forecast": "forecast", "Holdout": "holdout", "holdout_check": "holdout",
+         "Frequency": "series", "Series": "series", "resolve_spec": "settings",
+         "Settings": "settings"}
+
+
+def __getattr__(name):
+    if name in _LAZY:
+        from importlib import import_module
+
+        value = getattr(import_module(f".{_LAZY[name]}", __name__), name)
+        globals()[name] = value
+        return value
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
+def __dir__():
+    return sorted(set(globals()) | set(_LAZY))
 
 
 def load_series(*args, **kwargs):
@@ -30,9 +44,6 @@ def demo_path():
 
 __all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec",
            "demo_path", "holdout_check", "load_series", "resolve_spec", "trend_forecast"]
-
-from .settings import Settings  # noqa: E402
-
 
 def analyze(series, settings=None, **choices):
     """The whole analysis of one series (see ``regimetrend.analysis.analyze``)."""

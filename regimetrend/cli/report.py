@@ -36,15 +36,16 @@ def _settings(args) -> dict:
             "reuse_breaks": args.reuse_breaks}
 
 
-def produce_report(series, folder, *, source_name: str | None = None, **settings) -> dict:
-    """Run ``analyze`` on ``series`` with ``settings`` and write the report into ``folder``;
-    returns {output name: path}."""
+def produce_report(series, folder, *, source_name: str | None = None,
+                   extra: dict[str, bytes] | None = None, **settings) -> dict:
+    """Run ``analyze`` on ``series`` with ``settings`` and write the report into ``folder``
+    (with the ``extra`` files, kept when already there); returns {output name: path}."""
     from ..analysis import analyze
     from ..report import write_report
 
     folder = options.check_output_folder(folder)
     analysis = analyze(series, **settings)
-    return write_report(analysis, folder, source_name=source_name)
+    return write_report(analysis, folder, source_name=source_name, extra=extra)
 
 
 def run(args) -> int:

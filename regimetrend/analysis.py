@@ -37,6 +37,7 @@ class Analysis:
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
     def to_dict(self) -> dict:
         from .output import json_safe
@@ -101,4 +102,5 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
     return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
                     evaluation=evaluation, growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
-                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions))
+                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions),
+                    global_trend=global_fit.trend())

@@ -184,7 +184,8 @@ class GrowthTable:
     """Growth of every regime of one series, and the change across each break.
 
     ``fitted`` holds the regime model's in-sample fitted values in original units (the median
-    for the exponential shape), for charts; it is not part of ``to_dict()``."""
+    for the exponential shape), for charts; ``trend`` the same with the seasonal terms at their
+    average (each regime's trend alone). Neither is part of ``to_dict()``."""
 
     series_name: str
     spec: TrendSpec
@@ -196,6 +197,7 @@ class GrowthTable:
     changes: tuple[GrowthChange, ...]
     headline: str  # which figure is the headline annualised growth, in words
     fitted: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    trend: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
     @property
     def last(self) -> RegimeGrowth:
@@ -567,7 +569,20 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
         changes.append(GrowthChange(i, series.iso(nxt.start), series.label(nxt.start), est,
                                     wald, df, p, note))
     return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
-                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted)
+                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted,
+                       _trend_line(model, spec))
+
+
+def _trend_line(model: _Model, spec: TrendSpec) -> np.ndarray:
+    """Each regime's trend over its own periods, seasonal terms at their average (zero for
+    effect-coded dummies), in original units (the median for the exponential shape)."""
+    pieces = []
+    for rt in model.regimes:
+        a, b, c = rt.A @ model.beta
+        u = (np.arange(rt.start, rt.end + 1, dtype=float) - rt.center) / rt.spread
+        pieces.append(a + b * u + c * u * u)
+    line = np.concatenate(pieces) if pieces else np.zeros(0)
+    return np.exp(line) if spec.log_scale else line
 
 
 # ---------------------------------------------------------------------------------------------

@@ -313,3 +313,16 @@ def test_single_file_outputs_clean_what_a_killed_writer_left(tmp_path):
     (tmp_path / ".other.csv.abcd_123").write_text("not a temporary of this file")
     write_atomic(tmp_path / "forecast.csv", "a,b\n")
     assert sorted(p.name for p in tmp_path.iterdir()) == [".other.csv.abcd_123", "forecast.csv"]
+
+
+def test_the_workbook_is_the_same_bytes_on_every_run(analyses):
+    """Two builds a few seconds apart: no creation time or zip entry time differs."""
+    import io
+    import zipfile
+
+    built = analyses["first analysis"][0]
+    again = _outputs("first analysis")
+    assert built["workbook"][1] == again["workbook"][1]
+    assert built["json"][1] == again["json"][1]  # its checksums included
+    core = zipfile.ZipFile(io.BytesIO(built["workbook"][1])).read("docProps/core.xml")
+    assert b"1980-01-01T00:00:00Z" in core

@@ -26,6 +26,7 @@ import csv
 import hashlib
 import io
 import json
+import re
 from pathlib import Path
 
 from ..errors import InputError
@@ -88,9 +89,33 @@ def workbook_bytes(content: Content) -> bytes:
             ws.column_dimensions[ws.cell(row=1, column=col).column_letter].width = 16
         if table.note:
             ws.cell(row=ws.max_row + 2, column=1, value=inert_text(table.note))
+    wb.properties.creator = "regimetrend"
     buf = io.BytesIO()
     wb.save(buf)
-    return buf.getvalue()
+    return steady_zip(buf.getvalue())
+
+
+FIXED_ZIP_TIME = (1980, 1, 1, 0, 0, 0)  # the earliest time a zip entry can hold
+_STAMPS = re.compile(rb"(<dcterms:(created|modified)[^>]*>)[^<]*(</dcterms:\2>)")
+
+
+def steady_zip(data: bytes) -> bytes:
+    """A workbook (a zip archive) with every time stamp fixed (the entries' and the document
+    properties' creation and modification times), so identical reports are identical bytes."""
+    import zipfile
+
+    src = zipfile.ZipFile(io.BytesIO(data))
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w", compression=zipfile.ZIP_DEFLATED) as dst:
+        for info in src.infolist():
+            body = src.read(info.filename)
+            if info.filename == "docProps/core.xml":
+                body = _STAMPS.sub(rb"\g<1>1980-01-01T00:00:00Z\g<3>", body)
+            entry = zipfile.ZipInfo(info.filename, date_time=FIXED_ZIP_TIME)
+            entry.compress_type = zipfile.ZIP_DEFLATED
+            entry.external_attr = 0o644 << 16
+            dst.writestr(entry, body)
+    return out.getvalue()
 
 
 def report_json(data, content: Content, files: list[str],

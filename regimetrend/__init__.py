@@ -4,28 +4,37 @@ The flow runs one way: intake -> trend design -> breaks -> regimes -> evaluation
 report. ``analyze`` runs all of it; the stage functions are public too.
 """
 
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from .errors import InputError
+
 __version__ = "0.1.0"
 
-# The public classes load on first use (PEP 562), so ``import regimetrend`` is quick and the
-# command line can answer Ctrl-C with one line even while numpy, pandas and scipy load.
-_LAZY = {"TrendSpec": "design", "InputError": "errors", "Forecast": "forecast",
-         "trend_forecast": "forecast", "Holdout": "holdout", "holdout_check": "holdout",
-         "Frequency": "series", "Series": "series", "resolve_spec": "settings",
-         "Settings": "settings"}
+# The public names below load their modules (numpy, pandas, scipy) on first use, so that
+# ``regimetrend --help`` and ``--version`` start quickly (benchmarks/bench_startup.py).
+_LAZY = {"TrendSpec": "design", "Forecast": "forecast", "trend_forecast": "forecast",
+         "Holdout": "holdout", "holdout_check": "holdout", "Frequency": "series",
+         "Series": "series", "resolve_spec": "settings", "Settings": "settings"}
+
+if TYPE_CHECKING:
+    from .design import TrendSpec
+    from .forecast import Forecast, trend_forecast
+    from .holdout import Holdout, holdout_check
+    from .series import Frequency, Series
+    from .settings import Settings, resolve_spec
 
 
-def __getattr__(name):
-    if name in _LAZY:
-        from importlib import import_module
+def __getattr__(name: str):
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module 'regimetrend' has no attribute {name!r}")
+    from importlib import import_module
 
-        value = getattr(import_module(f".{_LAZY[name]}", __name__), name)
-        globals()[name] = value
-        return value
-    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-
-
-def __dir__():
-    return sorted(set(globals()) | set(_LAZY))
+    value = getattr(import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
 
 
 def load_series(*args, **kwargs):
@@ -44,6 +53,7 @@ def demo_path():
 
 __all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec",
            "demo_path", "holdout_check", "load_series", "resolve_spec", "trend_forecast"]
+
 
 def analyze(series, settings=None, **choices):
     """The whole analysis of one series (see ``regimetrend.analysis.analyze``)."""

@@ -65,11 +65,13 @@ def _settings(settings: Settings | None, choices: dict) -> Settings:
     return replace(base, **choices) if choices else base
 
 
-def analyze(series: Series, settings: Settings | None = None, **choices) -> Analysis:
+def analyze(series: Series, settings: Settings | None = None, *, progress=None,
+            **choices) -> Analysis:
     """Run the whole analysis of ``series``.
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
-    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``.
+    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
+    total)``, when given, is called after each rolling origin (it does not change the result).
     """
     from .breaks import cusum as cusum_paths
     from .evaluate import break_detector, compare
@@ -91,7 +93,8 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
                          seasonal_by_regime=settings.seasonal_by_regime,
                          serial_correlation=settings.serial_correlation, horizon=horizon,
                          first_origin=settings.first_origin, step=settings.step,
-                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks)
+                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks,
+                         progress=progress)
     chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
     forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
     global_forecast = trend_forecast(series, spec, horizon)

@@ -27,6 +27,7 @@ import hashlib
 import io
 import json
 import re
+from datetime import date
 from pathlib import Path
 
 from ..errors import InputError
@@ -36,7 +37,7 @@ from . import html
 from .content import Content, build
 from .extract import gather
 from .safety import cell, inert_text
-from .tables import Table
+from .tables import EXCEL_FORMATS, Table, excel_value
 
 
 def table_csv(table: Table) -> str:
@@ -77,12 +78,17 @@ def workbook_bytes(content: Content) -> bytes:
             c.alignment = Alignment(wrap_text=True, vertical="top")
     for table in content.tables:
         ws = wb.create_sheet(table.name[:31])
+        kinds = [c.kind for c in table.columns]
         for r, row in enumerate(table.matrix(), start=1):
             for col, v in enumerate(row, start=1):
                 target = ws.cell(row=r, column=col)
-                target.value = cell(v)
+                kind = kinds[col - 1]
+                value = v if r == 1 else excel_value(v, kind)
+                target.value = value if isinstance(value, date) else cell(value)
                 if isinstance(target.value, str):
                     target.data_type = "s"  # never a formula
+                elif r > 1 and kind in EXCEL_FORMATS:
+                    target.number_format = EXCEL_FORMATS[kind]
                 if r == 1:
                     target.font = Font(bold=True)
         for col in range(1, len(table.columns) + 1):
@@ -198,16 +204,21 @@ def build_outputs(data, content: Content,
     return out
 
 
-def write_report(analysis, folder, *, source_name: str | None = None,
+def write_report(analysis, folder, *, source_name: str | None = None, units: str | None = None,
+                 log_scale: bool = False, progress=None,
                  extra: dict[str, bytes] | None = None) -> dict:
     """Write the HTML report, charts, CSV tables, workbook and JSON for ``analysis`` into
-    ``folder``; returns {output name: path}. ``extra`` adds files by name, written only where
-    the folder has no file of that name yet. Nothing is written when building any output
-    fails, and the folder switches from the earlier report to this one as a whole."""
+    ``folder``; returns {output name: path}. ``units`` names the values' units on every axis
+    and in the sentences (the series name by default); ``log_scale`` draws value axes on a log
+    scale; ``progress(done, total)`` is called as the parts are drawn. ``extra`` adds files by
+    name, written only where the folder has no file of that name yet. Nothing is written when
+    building any output fails, and the folder switches from the earlier report to this one as
+    a whole."""
     folder = Path(folder)
-    data = gather(analysis, source_name)
+    data = gather(analysis, source_name, units)
     extra = {k: v for k, v in (extra or {}).items() if not (folder / k).exists()}
-    return publish_report(folder, build_outputs(data, build(data), extra))
+    outputs = build_outputs(data, build(data, log_scale=log_scale, progress=progress), extra)
+    return publish_report(folder, outputs)
 
 
 def publish_report(folder, outputs: dict[str, tuple[Path, bytes | str]]) -> dict:

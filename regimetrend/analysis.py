@@ -34,6 +34,9 @@ class Analysis:
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
+    verdict: object = None  # verdict.Verdict: the one model and what is said about it
+    searches: dict = None  # {shape: BreakSet} every full-sample break search run
+    evaluations: dict = None  # {shape: Evaluation} every rolling-origin evaluation run
 
     def to_dict(self) -> dict:
         from .output import json_safe
@@ -41,6 +44,7 @@ class Analysis:
         breaks = self.breaks.to_dict()
         growth = self.growth.to_dict()
         return json_safe({
+            "verdict": self.verdict.to_dict() if self.verdict is not None else None,
             "series": self.series.to_dict(),
             "settings": self.settings.to_dict(),
             "model": self.spec.to_dict(),
@@ -61,41 +65,119 @@ def _settings(settings: Settings | None, choices: dict) -> Settings:
     return replace(base, **choices) if choices else base
 
 
-def analyze(series: Series, settings: Settings | None = None, **choices) -> Analysis:
+def analyze(series: Series, settings: Settings | None = None, progress=None,
+            **choices) -> Analysis:
     """Run the whole analysis of ``series``.
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
-    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``.
+    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done, total)``
+    is called after each rolling origin.
+
+    With ``shape="auto"`` (the default) the break search runs under every shape the series
+    allows and the verdict's rule (``regimetrend.verdict``) chooses the model; every figure of
+    the result (growth, forecast, history advice, diagnosis) comes from that model.
     """
+    from . import verdict as verdicts
     from .breaks import cusum as cusum_paths
+    from .design import SHAPES
     from .evaluate import break_detector, compare
-    from .growth import growth_table
+    from .growth import growth_from_fits, growth_table
     from .regimes import strategy_forecast
 
     settings = _settings(settings, choices)
-    spec = settings.spec_for(series)
+    explicit = None if settings.shape == "auto" else settings.shape
+    base = settings.spec_for(series)
     horizon = settings.horizon_for(series)
-    detect = break_detector(spec.shape, spec.seasonality, settings.kind, settings.max_breaks,
-                            settings.trim, settings.criterion, settings.events,
-                            spec.season_length, settings.seasonal_by_regime,
-                            settings.serial_correlation)
-    breaks = detect(series, True)
-    evaluation = compare(series, shape=spec.shape, seasonality=spec.seasonality,
-                         season_length=spec.season_length, kind=settings.kind,
-                         max_breaks=settings.max_breaks, trim=settings.trim,
-                         criterion=settings.criterion, events=settings.events,
-                         seasonal_by_regime=settings.seasonal_by_regime,
-                         serial_correlation=settings.serial_correlation, horizon=horizon,
-                         first_origin=settings.first_origin, step=settings.step,
-                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks)
-    chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
-    forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
-    global_forecast = trend_forecast(series, spec, horizon)
-    global_fit = fit_history(series, spec)
+    positive = bool(np.all(series.values > 0))
+    shapes = (explicit,) if explicit else tuple(
+        s for s in SHAPES if s != "exponential" or positive)
+
+    def detector(shape):
+        return break_detector(shape, base.seasonality, settings.kind, settings.max_breaks,
+                              settings.trim, settings.criterion, settings.events,
+                              base.season_length, settings.seasonal_by_regime,
+                              settings.serial_correlation)
+
+    searches = {s: detector(s)(series, True) for s in shapes}
+    run_shapes = verdicts.search_shapes(searches, explicit)
+    latest = [(b.positions[-1], b.trim_periods) for s in run_shapes
+              for b in [searches[s]] if b.positions]
+    place_after = max(latest) if latest else None
+    runs = []
+    for s in run_shapes:
+        ev = compare(series, shape=s, seasonality=base.seasonality,
+                     season_length=base.season_length, kind=settings.kind,
+                     max_breaks=settings.max_breaks, trim=settings.trim,
+                     criterion=settings.criterion, events=settings.events,
+                     seasonal_by_regime=settings.seasonal_by_regime,
+                     serial_correlation=settings.serial_correlation, horizon=horizon,
+                     first_origin=settings.first_origin, step=settings.step,
+                     reuse_breaks=settings.reuse_breaks, full_breaks=searches[s],
+                     place_after=place_after, progress=progress)
+        runs.append(verdicts.Run(s, searches[s], ev))
+    diag0 = runs[0].evaluation.diagnosis.data
+    lag1 = diag0.get("residual_lag1")
+    wandering = lag1 is not None and lag1 >= verdicts.WANDERING_LAG1
+    index, chosen, basis = verdicts.choose(runs, explicit, wandering)
+    run = runs[index]
+    spec = TrendSpec(chosen.strategy.shape, base.seasonality, base.season_length)
+    forecast = strategy_forecast(series, chosen.strategy, run.breaks.positions, horizon,
+                                 TrendSpec(run.shape, base.seasonality, base.season_length))
+    growth = _model_growth(series, spec, chosen.strategy, run.breaks, forecast,
+                           growth_table, growth_from_fits)
+    ref_spec = TrendSpec(runs[0].shape, base.seasonality, base.season_length)
+    global_forecast = trend_forecast(series, ref_spec, horizon)
+    global_fit = fit_history(series, ref_spec)
     y_model = global_fit.fit.X @ global_fit.fit.beta + global_fit.fit.residuals
     cusum = cusum_paths.recursive_cusum(y_model, global_fit.fit.X).to_dict()
-    growth = growth_table(series, spec, breaks)
-    return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
-                    evaluation=evaluation, growth=growth, forecast=forecast,
+    stability = _stability(series, runs, explicit, wandering, index, chosen, detector,
+                           verdicts)
+    verdict = verdicts.build(series, runs, index, chosen, basis, growth, forecast, stability,
+                             explicit, lag1, wandering, searches)
+    extra = [verdicts.coverage_caution(verdict)]
+    return Analysis(series=series, settings=settings, spec=spec, breaks=run.breaks,
+                    evaluation=run.evaluation, growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
-                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions))
+                    cusum=cusum,
+                    cautions=cautions.for_analysis(series, run.breaks if verdict.breaks
+                                                   else None,
+                                                   tuple(run.evaluation.cautions) + tuple(
+                                                       c for c in extra if c)),
+                    verdict=verdict, searches=searches,
+                    evaluations={r.shape: r.evaluation for r in runs})
+
+
+def _model_growth(series, spec, strategy, breakset, forecast, growth_table, growth_from_fits):
+    """The growth table of the chosen model: one trend (global), the trend of the kept history
+    (truncated), the regime model of the break search (separate) or the trend joined at the
+    breaks (continuous); a window average is described by one trend over all history (its
+    windows all end at the last period; the growth table says which model it shows)."""
+    if strategy.name in ("global", "window-average") or not breakset.positions:
+        return growth_table(series, spec, ())
+    if strategy.name == "truncated":
+        return growth_from_fits(series, [fit_history(series, spec, int(forecast.fitted_from))])
+    kind = "slope" if strategy.name == "continuous" else None
+    from .errors import InputError
+
+    try:
+        return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))
+    except InputError:  # a regime too short for its own trend under this shape
+        return growth_table(series, spec, ())
+
+
+def _stability(series, runs, explicit, wandering, index, chosen, detector, verdicts):
+    """The verdict rerun without the last 1..k periods (``verdict.stability_of``): the break
+    search of each shortened series, and the rolling origin rescored on its origins."""
+    from .errors import InputError
+
+    searches = {}
+    for k in verdicts.stability_periods(series):
+        head = series.head(series.n - k)
+        try:
+            searches[k] = [detector(r.shape)(head, False) for r in runs]
+        except InputError:
+            break
+    model = verdicts.model_of(chosen, runs[index])
+    breaks = verdicts.break_dates(series, runs[index].breaks, model)
+    return verdicts.stability_of(series, runs, explicit, wandering,
+                                 (index, chosen.name, breaks), searches)

@@ -13,6 +13,8 @@ def resolve_spec(series, shape: str = "linear", seasonality: str = "auto",
     """A TrendSpec for ``series``: the season length defaults to the calendar's (12 monthly,
     4 quarterly, 52 weekly, 7 daily, none for annual or multi-unit calendars); ``auto``
     seasonality means dummies when the calendar has seasons and none otherwise."""
+    if shape == "auto":  # the verdict chooses the shape; the base spec is the linear one
+        shape = "linear"
     s = series.frequency.season_length if season_length is None else int(season_length)
     if seasonality == "auto":
         seasonality = "dummies" if s > 1 else "none"
@@ -32,10 +34,10 @@ class Settings:
     """Every choice an analysis depends on, in one frozen value (so results are reproducible).
 
     ``seasonality='auto'`` and ``season_length=None`` are resolved against the series by
-    ``resolve_spec``. ``horizon=None`` means one seasonal cycle (at least 4 periods).
+    ``resolve_spec``. ``horizon=None`` means the calendar's default horizon (``evaluate.rolling.default_horizon``).
     """
 
-    shape: str = "linear"
+    shape: str = "auto"  # auto: the verdict chooses the shape (regimetrend.verdict)
     seasonality: str = "auto"
     season_length: int | None = None
     kind: str = "auto"
@@ -54,7 +56,10 @@ class Settings:
         return resolve_spec(series, self.shape, self.seasonality, self.season_length)
 
     def horizon_for(self, series) -> int:
-        return self.horizon or max(series.frequency.season_length, 4)
+        from .evaluate.rolling import default_horizon
+
+        return self.horizon or default_horizon(series.n, series.frequency.unit,
+                                               series.frequency.step)
 
     def to_dict(self) -> dict:
         return {k: (list(v) if isinstance(v, tuple) else v) for k, v in asdict(self).items()}

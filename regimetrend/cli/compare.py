@@ -6,8 +6,8 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
+from ..analysis import analyze
 from ..errors import InputError
-from ..evaluate import compare
 from . import options
 from .text import fmt, table
 
@@ -16,7 +16,7 @@ def register(sub) -> None:
     p = sub.add_parser("compare", help="score every strategy and shape against the global trend "
                                        "on a leak-free rolling origin and recommend one")
     options.add_input_options(p)
-    options.add_model_options(p)
+    options.add_model_options(p, auto=True)
     options.add_break_options(p)
     options.add_evaluation_options(p)
     p.add_argument("--errors", metavar="FILE.csv",
@@ -51,14 +51,16 @@ def run(args) -> int:
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
-    ev = compare(series, shape=spec.shape, seasonality=spec.seasonality,
-                 season_length=spec.season_length, kind=args.kind, max_breaks=args.max_breaks,
-                 trim=args.trim, criterion=args.criterion, events=tuple(args.event),
-                 seasonal_by_regime=args.seasonal_by_regime,
-                 serial_correlation=args.serial_correlation, horizon=args.horizon,
-                 first_origin=args.first_origin, step=args.step,
-                 reuse_breaks=args.reuse_breaks, progress=ProgressBar())
-    result = ev.to_dict()
+    analysis = analyze(series, progress=ProgressBar(), shape=args.shape,
+                       seasonality=spec.seasonality, season_length=spec.season_length,
+                       kind=args.kind, max_breaks=args.max_breaks, trim=args.trim,
+                       criterion=args.criterion, events=tuple(args.event),
+                       seasonal_by_regime=args.seasonal_by_regime,
+                       serial_correlation=args.serial_correlation, horizon=args.horizon,
+                       first_origin=args.first_origin, step=args.step,
+                       reuse_breaks=args.reuse_breaks)
+    ev = analysis.evaluation
+    result = {"verdict": analysis.verdict.to_dict(), **ev.to_dict()}
     if args.errors:
         path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic),
                                     "option --errors", make_folders=False)
@@ -66,7 +68,7 @@ def run(args) -> int:
     if args.json:
         print(options.dumps(result))
     else:
-        print(render(series, ev, result.get("outputs", {})))
+        print(render(series, ev, result.get("outputs", {}), analysis.verdict))
     return 0
 
 
@@ -88,10 +90,15 @@ def _seasonal_words(model) -> str:
     return f"{word}, season length {model['season_length']}"
 
 
-def render(series, ev, outputs) -> str:
+def render(series, ev, outputs, verdict=None) -> str:
     plan = ev.plan
     lines = [f"{series.name}: {series.n} {series.frequency.name} periods, "
              f"{series.label(0)} to {series.label(series.n - 1)}"]
+    if verdict is not None:
+        lines += ["", "verdict:"] + [f"  {s}" for s in verdict.sentences]
+        lines += ["", f"verdict rule: {verdict.rule}", "",
+                  f"evaluation of the chosen shape ({ev.reference}) in detail; the candidates "
+                  f"below are alternatives:"]
     if ev.optimistic:
         lines += ["", "*** OPTIMISTIC RESULTS: breaks found on the full sample were reused at "
                       "every origin ***"]

@@ -23,9 +23,16 @@ def add_input_options(p) -> None:
     p.add_argument("--name", help="name of the series in outputs (the value column by default)")
 
 
-def add_model_options(p) -> None:
-    p.add_argument("--shape", default="linear", choices=("linear", "exponential", "quadratic"),
-                   help="trend shape (default linear)")
+def add_model_options(p, auto: bool = False) -> None:
+    if auto:
+        p.add_argument("--shape", default="auto",
+                       choices=("auto", "linear", "exponential", "quadratic"),
+                       help="trend shape (default auto: the verdict chooses the shape per "
+                            "series; an explicit shape is honoured)")
+    else:
+        p.add_argument("--shape", default="linear",
+                       choices=("linear", "exponential", "quadratic"),
+                       help="trend shape (default linear)")
     p.add_argument("--seasonality", default="auto", choices=("auto", "none", "dummies", "adjust"),
                    help="seasonal terms; auto = dummies for seasonal calendars, none otherwise")
     p.add_argument("--season-length", type=_positive_int, default=None,

@@ -17,7 +17,7 @@ def register(sub) -> None:
     p = sub.add_parser("report", help="write the full analysis as an HTML report with charts, "
                                       "CSV and workbook tables and JSON")
     options.add_input_options(p)
-    options.add_model_options(p)
+    options.add_model_options(p, auto=True)
     options.add_break_options(p)
     options.add_evaluation_options(p)
     p.add_argument("--output", metavar="DIR", required=True,
@@ -52,7 +52,7 @@ def run(args) -> int:
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
     written = produce_report(series, folder, source_name=Path(args.file).name,
-                             shape=spec.shape, seasonality=spec.seasonality,
+                             shape=args.shape, seasonality=spec.seasonality,
                              season_length=spec.season_length, **_settings(args))
     if args.json:
         result = json.loads(Path(written["json"]).read_text(encoding="utf-8"))

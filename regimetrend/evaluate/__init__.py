@@ -25,7 +25,7 @@ from .diagnosis import default_window, diagnose
 from .history import IN_SAMPLE, decide_history
 from .recommend import recommend
 from .result import (OPTIMISTIC_NOTE, CandidateResult, Evaluation, json_clean)
-from .rolling import plan_origins, run_rolling
+from .rolling import default_horizon, plan_origins, run_rolling
 from .scores import candidate_scores
 
 __all__ = ["compare", "Evaluation", "break_detector"]
@@ -118,7 +118,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
             serial_correlation: str = "allow",
             horizon: int | None = None, first_origin: int | None = None, step: int = 1,
             reuse_breaks: bool = False, shapes=None, window_count: int = 10,
-            detector=None, progress=None, full_breaks=None) -> Evaluation:
+            detector=None, progress=None, full_breaks=None,
+            place_after=None) -> Evaluation:
     """Rolling-origin comparison of every candidate against the global ``shape`` trend.
 
     ``shape`` is the analyst's shape: it sets the reference (global) trend, the break search
@@ -131,7 +132,10 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     break search (``with_events`` is False on the shortened histories of the origins);
     ``progress(done, total)`` is called after each origin. ``full_breaks`` is the break search
     already run on the whole series with these settings (``analyze`` passes it to avoid running
-    it twice); the origins are still searched afresh."""
+    it twice); the origins are still searched afresh. ``place_after`` = (latest break,
+    shortest regime) places the default origins so that half of them know a shortest regime
+    after that break (default: the latest break of ``full_breaks`` or of this search, with its
+    trimming; ``rolling.plan_origins``)."""
     spec = resolve_spec(series, shape=shape, seasonality=seasonality, season_length=season_length)
     s = spec.season_length
     cautions = []
@@ -144,7 +148,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     shapes = tuple(dict.fromkeys((spec.shape,) + tuple(shapes)))
     if spec.shape == "exponential" and np.any(series.values <= 0):
         raise InputError("option --shape: the exponential shape needs positive values")
-    H = int(horizon) if horizon is not None else max(s, 4)
+    H = int(horizon) if horizon is not None else default_horizon(
+        series.n, series.frequency.unit, series.frequency.step)
     own_search = detector is None
     if own_search:
         detector = break_detector(spec.shape, spec.seasonality, kind, max_breaks, trim,
@@ -152,10 +157,12 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                                   serial_correlation)
     specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
     w_min = minimum_window(specs)
-    plan = plan_origins(series.n, H, w_min, first_origin, step)
-    m_top = DEFAULT_MAX_BREAKS if max_breaks is None else int(max_breaks)
-
     full = full_breaks if full_breaks is not None else detector(series, True)
+    if place_after is None and breakinfo.positions(full):
+        place_after = (breakinfo.positions(full)[-1], int(getattr(full, "trim_periods", 0)))
+    latest, shortest = place_after if place_after is not None else (None, None)
+    plan = plan_origins(series.n, H, w_min, first_origin, step, latest, shortest, series.label)
+    m_top = DEFAULT_MAX_BREAKS if max_breaks is None else int(max_breaks)
     breaks_at, failed = _origin_breaks(series, plan, full, detector, own_search, reuse_breaks,
                                        spec, kind, m_top, trim, criterion,
                                        seasonal_by_regime)

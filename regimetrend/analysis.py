@@ -13,8 +13,11 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from . import cautions
+from .breaks.result import BreakSet
 from .design import TrendSpec
+from .evaluate.result import Evaluation
 from .forecast import Forecast, fit_history, trend_forecast
+from .growth import GrowthTable
 from .series import Series
 from .settings import Settings
 
@@ -26,9 +29,9 @@ class Analysis:
     series: Series
     settings: Settings
     spec: TrendSpec
-    breaks: object  # breaks.BreakSet on the full sample
-    evaluation: object  # evaluate.Evaluation (rolling origin, recommendation, history, diagnosis)
-    growth: object  # growth.GrowthTable by regime
+    breaks: BreakSet  # on the full sample
+    evaluation: Evaluation  # rolling origin, recommendation, history, diagnosis
+    growth: GrowthTable  # by regime
     forecast: Forecast  # from the recommended strategy, refitted on all history
     global_forecast: Forecast  # the single global trend, for comparison
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)

@@ -33,7 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Sequence
+from collections.abc import Sequence
 
 import numpy as np
 from scipy import stats
@@ -315,10 +315,10 @@ def _joint_design(n: int, breaks: list[int], spec: TrendSpec, kind: str):
     # first period of a new regime is the first on the new slope
     cols += [np.ones(n), u] + ([u * u] if quad else [])
     knots = [float(sc.u(b - 1)) for b in breaks]
-    hinge_cols = []
+    hinge_cols: list[tuple[int, int, float]] = []  # (hinge, squared hinge or -1, knot)
     for k in knots:
         h = np.maximum(u - k, 0.0)
-        hinge_cols.append((len(cols), len(cols) + 1 if quad else None, k))
+        hinge_cols.append((len(cols), len(cols) + 1 if quad else -1, k))
         cols.append(h)
         if quad:
             cols.append(h * h)
@@ -437,7 +437,7 @@ def _ratio_pct(num: _Dual, den: _Dual, cov, z) -> Estimate | None:
 
 def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z: float):
     """All figures of one regime, and notes on those that are undefined."""
-    figures: dict[str, Estimate] = {}
+    figures: dict[str, Estimate | None] = {}
     notes: list[str] = []
     t0, t1 = float(rt.start), float(rt.end)
     f0, f1 = rt.level(beta, t0), rt.level(beta, t1)

@@ -10,6 +10,7 @@ Hyndman and Koehler (2006).
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 
@@ -37,7 +38,7 @@ def accuracy(actual, forecast, *, scale: float | None = None, lower80=None, uppe
     actual = np.asarray(actual, dtype=float)
     forecast = np.asarray(forecast, dtype=float)
     err = actual - forecast
-    out = {"n": int(err.size),
+    out: dict[str, Any] = {"n": int(err.size),
            "me": float(np.mean(err)),
            "mae": float(np.mean(np.abs(err))),
            "rmse": float(math.sqrt(np.mean(err ** 2)))}

@@ -90,7 +90,7 @@ def write_atomic(path, data, what: str = "output", make_folders: bool = True) ->
     except OSError as exc:
         raise InputError(f"{what}: cannot write in {path.parent}: {exc.strerror or exc}") from None
     try:
-        with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})) as fh:
+        with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})) as fh:  # type: ignore[call-overload]
             fh.write(data)
         umask = os.umask(0)
         os.umask(umask)

@@ -308,7 +308,7 @@ class OriginFits:
         shapes = tuple([shape] * len(knots) + [last_shape])
         scales = tuple(TimeScale.for_positions(np.arange(bounds[i], bounds[i + 1]))
                        for i in range(len(bounds) - 1))
-        proto = PiecewiseFit(spec, positions, self.first_season, scale, None, pattern,
+        proto = PiecewiseFit(spec, positions, self.first_season, scale, None, pattern,  # type: ignore[arg-type]
                              layout, knots, shapes, scales)
         X = self._joint_design(proto, positions, 0, self.origin)
         try:

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
+from pandas.tseries.offsets import BaseOffset
 
 # unit -> (pandas offset alias for period starts, periods per year for step 1, season length)
 _UNITS = {
@@ -54,7 +55,7 @@ class Frequency:
         """Default season length: 12 monthly, 4 quarterly, 52 weekly, 7 daily, 1 otherwise."""
         return _UNITS[self.unit][2] if self.step == 1 else 1
 
-    def offset(self) -> pd.DateOffset:
+    def offset(self) -> BaseOffset:
         alias = _UNITS[self.unit][0]
         if self.unit == "week":
             day = ["MON", "TUE", "WED", "THU", "FRI", "SAT", "SUN"][self.weekday]

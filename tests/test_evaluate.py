@@ -2,6 +2,7 @@
 without a documented regime change."""
 
 import csv
+import dataclasses
 import io
 import math
 
@@ -166,7 +167,7 @@ def test_evaluation_is_frozen_and_json_safe(nile_eval):
     assert {"statistic", "p_value"} <= set(c["vs_global"])
     assert set(d["recommended"]) >= {"strategy", "shape", "reason"}
     assert d["optimistic"] is False
-    with pytest.raises(Exception):
+    with pytest.raises(dataclasses.FrozenInstanceError):
         nile_eval.reference = "x"
 
 

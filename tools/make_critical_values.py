@@ -44,7 +44,7 @@ import os
 import sys
 import time
 from concurrent.futures import ProcessPoolExecutor
-from functools import lru_cache
+from functools import cache
 
 import numpy as np
 
@@ -101,7 +101,7 @@ FAMILIES = {  # one simulation pass serves every model of a family (shared draws
 BLOCKS = 8  # draws of a family are simulated in independently seeded blocks
 
 
-@lru_cache(maxsize=None)
+@cache
 def _trend_setup(terms: int, kind: str, h_min: int):
     """Deterministic parts for one kind: inverse Gram matrices of M_Z D_b per position.
 

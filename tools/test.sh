@@ -16,4 +16,7 @@ if ! command -v chromium >/dev/null 2>&1 && command -v apt-get >/dev/null 2>&1 &
     || echo "could not install chromium; the browser test will say so"
 fi
 .venv/bin/python -m ipykernel install --sys-prefix --name regimetrend-test >/dev/null 2>&1 || true
+# Lint and types first (settings in pyproject.toml): a failure stops the run.
+.venv/bin/ruff check regimetrend tests benchmarks tools
+.venv/bin/mypy
 exec .venv/bin/python -m pytest -q "$@"

@@ -100,7 +100,7 @@ def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind
                        season_length, seasonal_by_regime, method, serial_correlation)
 
 
-_BLAS = []  # the threadpoolctl controller, found once per process (finding it costs ~1 ms)
+_BLAS: list = []  # the threadpoolctl controller, found once per process (finding it costs ~1 ms)
 
 
 def _one_blas_thread():
@@ -561,14 +561,11 @@ def _event_position(series, event, h: int) -> tuple[str, int]:
 
 
 def _parse_date(text: str):
-    from .. import intake
+    from ..intake import parse_date
 
-    try:
-        got = intake._date_from_cell(text.strip())
-    except Exception:  # intake's private helper changed: fall back to pandas
-        got = None
+    got = parse_date(text)
     if got is not None:
-        return np.datetime64(got[0], "D")
+        return got
     import pandas as pd
 
     try:

@@ -40,6 +40,7 @@ MAX_SWEEPS = 20
 
 def break_terms(kind: str, degree: int, seasonal: np.ndarray | None = None) -> list:
     """The columns a break adds, as (multiplier or None, power) pairs: 1{t>=b} h (t-b)^p."""
+    terms: list[tuple[np.ndarray | None, int]]
     if kind == "level":
         terms = [(None, 0)]
     elif kind == "slope":
@@ -115,7 +116,7 @@ class OneBreakScan:
     @staticmethod
     def _expand(S: np.ndarray, p: int, beta: np.ndarray, cand: np.ndarray) -> np.ndarray:
         """sum of w (x - beta)^p over the stretch, from the power sums S[q, ..., b]."""
-        total = 0.0
+        total = np.zeros(cand.shape)
         for q in range(p + 1):
             total = total + comb(p, q) * (-beta) ** (p - q) * S[q][..., cand]
         return total
@@ -126,7 +127,7 @@ class OneBreakScan:
         kw, kq = len(self.terms), self.Q.shape[1]
         out = {"cand": cand, "r": np.zeros((cand.size, kw)), "QW": np.zeros((cand.size, kq, kw)),
                "G": np.zeros((cand.size, kw, kw)), "A": np.zeros((cand.size, kw, kw))}
-        early = cand < self.n // 2 if self.complete else np.zeros(cand.size, dtype=bool)
+        early: np.ndarray = cand < self.n // 2 if self.complete else np.zeros(cand.size, dtype=bool)
         out["prefix"] = early
         for mask, suffix in ((~early, True), (early, False)):
             if mask.any():
@@ -148,7 +149,7 @@ class OneBreakScan:
         kw = len(terms)
         r = np.empty((cand.size, kw))
         QW = np.empty((cand.size, Q.shape[1], kw))
-        for j, (h, p) in enumerate(terms):
+        for j, (_h, p) in enumerate(terms):
             S = self._sums(np.column_stack([hs[j] * self.e, Q * hs[j][:, None]]), p, suffix)
             r[:, j] = self._expand(S[:, 0, :], p, beta, cand)
             QW[:, :, j] = self._expand(S[:, 1:, :], p, beta[None, :], cand).T

@@ -56,7 +56,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
     season = _joint_ssr(problem, "both", ())[1] if shared else np.zeros(n)
     chosen = None
     base, changing = problem.base_count, problem.changing("both")
-    for it in range(1, MAX_ITERATIONS + 1):
+    for it in range(1, MAX_ITERATIONS + 1):  # noqa: B007 (read after the loop)
         cost = _segment_cost(problem, problem.y - season)
         if use_pelt:
             pen = exact.bic_penalty(problem.y - season, changing)

@@ -15,7 +15,7 @@ import sys
 from ..errors import InputError
 
 # Command modules, in the order they appear in --help.
-COMMANDS = ("forecast", "scan", "compare", "report", "demo")
+COMMANDS = ("forecast", "scan", "compare", "report", "portfolio", "demo")
 
 
 class _Parser(argparse.ArgumentParser):

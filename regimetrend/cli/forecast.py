@@ -93,6 +93,6 @@ def render(series, spec, held, fc, outputs) -> str:
     lines.append(table(["period", "mean", "median", "80% interval", "95% interval"], rows))
     lines.append("")
     lines += [f"caution: {c}" for c in caution_lines()]
-    for name, path in outputs.items():
+    for path in outputs.values():
         lines.append(f"wrote {path}")
     return "\n".join(lines)

@@ -16,7 +16,10 @@ def add_input_options(p) -> None:
     p.add_argument("--value-column", help="name of the value column (found by itself when obvious)")
     p.add_argument("--frequency", help="calendar of the series, e.g. monthly, quarterly, weekly, "
                                        "'2 weeks' (inferred by default)")
-    p.add_argument("--decimal", default=".", help="decimal mark of the values: '.' (default) or ','")
+    p.add_argument("--decimal", help="decimal mark of the values: '.' or ',' (by default '.', or "
+                                     "what the numbers show in a file not separated by commas)")
+    p.add_argument("--date-format", help="how the dates are written, in strftime codes, e.g. "
+                                         "%%d.%%m.%%Y (common forms are read without it)")
     p.add_argument("--fill-missing", action="store_true",
                    help="fill missing values and calendar gaps by linear interpolation")
     p.add_argument("--sheet", help="sheet name of an Excel workbook (first sheet by default)")
@@ -116,7 +119,8 @@ def load_from_args(args):
 
     return load_series(args.file, date_column=args.date_column, value_column=args.value_column,
                        frequency=args.frequency, decimal=args.decimal,
-                       fill_missing=args.fill_missing, name=args.name, sheet=args.sheet)
+                       fill_missing=args.fill_missing, name=args.name, sheet=args.sheet,
+                       date_format=args.date_format)
 
 
 def model_from_args(args, series):

@@ -113,7 +113,7 @@ def _origin_breaks(series, plan, full, detector, own_search, reuse_breaks, spec,
 
 
 def compare(series, shape: str = "linear", seasonality: str = "auto",
-            season_length: int | None = None, kind: str = "auto", max_breaks: int = 3,
+            season_length: int | None = None, kind: str = "auto", max_breaks: int | None = 3,
             trim=None, criterion: str = "sequential", events=(), seasonal_by_regime: bool = False,
             serial_correlation: str = "allow",
             horizon: int | None = None, first_origin: int | None = None, step: int = 1,
@@ -195,7 +195,7 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     for c, st in enumerate(strategies):
         overall, per_h = candidate_scores(table, c)
         if st.key == reference.key:
-            vs = {"statistic": None, "p_value": None, "p_value_better": None,
+            vs: dict = {"statistic": None, "p_value": None, "p_value_better": None,
                   "note": "the reference itself", "per_horizon": []}
         else:
             pooled, by_h = compare_errors(e_ref, table.errors(st.key), plan.step)

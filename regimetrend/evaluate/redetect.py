@@ -54,7 +54,7 @@ def origin_breaks(series, origins, spec: TrendSpec, max_breaks: int, trim, crite
     by_h: dict[int, list[int]] = {}
     for o in origins:
         by_h.setdefault(resolve_trim(trim, o, spec, by_regime), []).append(o)
-    out = {}
+    out: dict[int, tuple[int, ...] | None] = {}
     for h, group in by_h.items():
         cost = SegmentCost(y, degree, sidx, s, min_size=h)
         h = max(h, cost.min_size)

@@ -3,9 +3,13 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from ..output import json_safe as json_clean  # noqa: F401  (re-exported)
 from ..regimes import Strategy
+
+if TYPE_CHECKING:
+    from .rolling import ErrorTable
 
 OPTIMISTIC_NOTE = ("optimistic: the breaks were found once on the full sample and reused at "
                    "every origin, so the regime-aware candidates were told where the breaks are")
@@ -94,9 +98,9 @@ class Evaluation:
     diagnosis: Diagnosis
     breaks: dict | None     # full-sample break search (BreakSet.to_dict())
     breaks_by_origin: tuple
-    errors: object          # rolling.ErrorTable with every forecast
+    errors: ErrorTable      # every forecast of the rolling origin
     cautions: tuple
-    same_as: dict = None    # candidates left out of the ranking: name -> identical candidate
+    same_as: dict | None = None  # candidates left out of the ranking: name -> identical candidate
 
     def candidate(self, name: str) -> CandidateResult:
         for c in self.candidates + self.sweep:

@@ -8,6 +8,8 @@ each forecast in the errors file so the figure can be recomputed from it.
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
 
 from ..metrics import accuracy, interval_score
@@ -46,7 +48,7 @@ def column_scores(actual, forecast, lower80, upper80, lower95, upper95, scale) -
         cols["interval_score" + tag] = interval_score(actual, lo, hi, level).mean(axis=0)
     out = []
     for j in range(actual.shape[1]):
-        m = {"n": int(n), "me": float(cols["me"][j]), "mae": float(cols["mae"][j]),
+        m: dict[str, Any] = {"n": int(n), "me": float(cols["me"][j]), "mae": float(cols["mae"][j]),
              "rmse": float(cols["rmse"][j])}
         if zero[j]:
             m["mape"] = None

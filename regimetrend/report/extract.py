@@ -9,10 +9,17 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from ..series import Series
+
+if TYPE_CHECKING:  # annotations only: the report computes nothing
+    from ..design import TrendSpec
+    from ..evaluate.rolling import ErrorTable
+    from ..forecast import Forecast
+    from ..growth import GrowthTable
 
 
 @dataclass(frozen=True)
@@ -27,23 +34,23 @@ class BreakInfo:
 @dataclass(frozen=True, eq=False)
 class ReportData:
     series: Series
-    spec: object
+    spec: TrendSpec | None
     source_name: str
     units: str
     result: dict
     growth: dict | None
-    growth_obj: object
+    growth_obj: GrowthTable | None
     breaks: tuple[BreakInfo, ...]
     breaks_dict: dict | None
     sup_f_p: float | None
     cusum: dict | None
     evaluation: dict | None
     evaluation_obj: object
-    errors: object
+    errors: ErrorTable | None
     reference: str | None
     recommended: str | None
-    forecast: object
-    global_forecast: object
+    forecast: Forecast | None
+    global_forecast: Forecast | None
     regime_fitted: np.ndarray | None
     global_fitted: np.ndarray | None
     cautions: tuple[str, ...] = field(default=())

@@ -77,7 +77,8 @@ class Fact:
 
 def _groups(columns) -> list:
     """Columns in display groups: a ``*_low``/``*_high`` pair becomes one interval cell."""
-    out, i = [], 0
+    out: list[tuple] = []
+    i = 0
     cols = list(columns)
     while i < len(cols):
         c = cols[i]

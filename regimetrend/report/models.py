@@ -21,7 +21,7 @@ def growth_model(growth: dict | None) -> str | None:
         return f"one {shape} trend over the whole history"
     return {"slope": f"{shape} trend per regime, joined at the breaks",
             "level": f"{shape} trend with a level jump at each break and one shared slope",
-            }.get(growth.get("kind"), f"{shape} trend per regime")
+            }.get(str(growth.get("kind")), f"{shape} trend per regime")
 
 
 def growth_measure(growth: dict | None) -> str | None:

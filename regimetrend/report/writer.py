@@ -37,7 +37,7 @@ def table_csv(table: Table) -> str:
     """A table as CSV text: header, then raw values; numbers as numbers, text made inert."""
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
-    for i, row in enumerate(table.matrix()):
+    for row in table.matrix():
         out = []
         for v in row:
             c = cell(v)
@@ -52,7 +52,7 @@ def workbook_bytes(content: Content) -> bytes:
     from openpyxl.styles import Alignment, Font
 
     wb = Workbook()
-    first = wb.active
+    first = wb.worksheets[0]
     first.title = "summary"
     first.append([inert_text(content.title)])
     first["A1"].font = Font(bold=True, size=13)

@@ -1,0 +1,141 @@
+"""Per-series settings: one set for the whole portfolio, overridden per id from a file.
+
+The override file (CSV, .xlsx or JSON) has one row per series to change. CSV/.xlsx: an ``id``
+column (or the portfolio's own id columns) and one column per setting to override, named as the
+command-line options without dashes (``shape``, ``seasonality``, ``season_length``, ``kind``,
+``max_breaks``, ``trim``, ``criterion``, ``events`` (dates separated by ``;``),
+``seasonal_by_regime``, ``serial_correlation``, ``horizon``, ``first_origin``, ``step``,
+``reuse_breaks``); an empty cell keeps the portfolio's setting. JSON: an object mapping each id
+to an object of settings. Every value is checked here, so a typo stops the run before any
+series is analysed, with the row and column named.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import replace
+from pathlib import Path
+
+import pandas as pd
+
+from ..errors import InputError
+from ..settings import Settings
+from .inputs import ID_SEPARATOR, _id_text
+
+CHOICES = {
+    "shape": ("linear", "exponential", "quadratic"),
+    "seasonality": ("auto", "none", "dummies", "adjust"),
+    "kind": ("auto", "level", "slope", "both"),
+    "criterion": ("sequential", "bic", "lwz"),
+    "serial_correlation": ("allow", "ignore"),
+}
+WHOLE = {"season_length": 1, "max_breaks": 0, "horizon": 1, "first_origin": 1, "step": 1}
+SWITCHES = ("seasonal_by_regime", "reuse_breaks")
+SETTING_NAMES = (*CHOICES, *WHOLE, *SWITCHES, "trim", "events")
+_TRUE = {"true", "yes", "1", "y"}
+_FALSE = {"false", "no", "0", "n"}
+
+
+def parse_setting(name: str, value, where: str):
+    """The typed value of one override cell; ``where`` names the row and column for errors."""
+    text = value if isinstance(value, str) else ("" if value is None else value)
+    if isinstance(text, str):
+        text = text.strip()
+    if name in CHOICES:
+        if str(text).lower() not in CHOICES[name]:
+            raise InputError(f"{where}: {text!r} is not one of {', '.join(CHOICES[name])}")
+        return str(text).lower()
+    if name in WHOLE:
+        try:
+            number = float(text)
+        except (TypeError, ValueError):
+            number = float("nan")
+        if not (math.isfinite(number) and number.is_integer() and number >= WHOLE[name]):
+            raise InputError(f"{where}: expected a whole number of at least {WHOLE[name]}, "
+                             f"got {text!r}")
+        return int(number)
+    if name in SWITCHES:
+        if isinstance(text, bool):
+            return text
+        word = str(text).lower()
+        if word not in _TRUE | _FALSE:
+            raise InputError(f"{where}: expected yes or no, got {text!r}")
+        return word in _TRUE
+    if name == "trim":
+        try:
+            number = float(text)
+        except (TypeError, ValueError):
+            number = -1.0
+        if not (0 < number < 1 or (number >= 1 and number.is_integer())):
+            raise InputError(f"{where}: expected a share between 0 and 1 or a whole number of "
+                             f"periods, got {text!r}")
+        return number if number < 1 else int(number)
+    if name == "events":
+        items = text if isinstance(text, list) else str(text).split(";")
+        return tuple(str(e).strip() for e in items if str(e).strip())
+    raise InputError(f"{where}: unknown setting {name!r}; settings are "
+                     f"{', '.join(SETTING_NAMES)}")
+
+
+def with_changes(base: Settings, changes: dict) -> Settings:
+    """``base`` with the given fields replaced (the one place settings are combined)."""
+    return replace(base, **changes) if changes else base
+
+
+def read_overrides(path, id_columns: tuple[str, ...], ids) -> dict[str, dict]:
+    """{id: {setting: value}} from the override file; every id must be in the portfolio."""
+    path = Path(path)
+    if not path.is_file():
+        raise InputError(f"option --settings-file: file not found: {path}")
+    ext = path.suffix.lower()
+    known = set(ids)
+    if ext == ".json":
+        try:
+            raw = json.loads(path.read_text(encoding="utf-8"))
+        except (UnicodeDecodeError, json.JSONDecodeError) as exc:
+            raise InputError(f"option --settings-file: {path.name!r} is not valid JSON "
+                             f"({exc})") from None
+        if not isinstance(raw, dict):
+            raise InputError(f"option --settings-file: {path.name!r} must hold an object "
+                             f"mapping each id to its settings")
+        out = {}
+        for ident, changes in raw.items():
+            where = f"{path.name} id {ident!r}"
+            if ident not in known:
+                raise InputError(f"{where}: no series with this id in the portfolio")
+            if not isinstance(changes, dict):
+                raise InputError(f"{where}: expected an object of settings")
+            out[ident] = {k: parse_setting(k, v, f"{where}, setting {k!r}")
+                          for k, v in changes.items() if v is not None}
+        return out
+    if ext in (".csv", ".txt"):
+        frame = pd.read_csv(path, dtype=str, keep_default_na=False, sep=None, engine="python",
+                            encoding="utf-8-sig")
+    elif ext == ".xlsx":
+        frame = pd.read_excel(path, dtype=object, engine="openpyxl")
+    else:
+        raise InputError(f"option --settings-file: {path.name!r} must be .csv, .xlsx or .json")
+    frame.columns = [str(c).strip() for c in frame.columns]
+    id_cols = ["id"] if "id" in frame.columns else [c for c in id_columns if c in frame.columns]
+    if not id_cols or (id_cols != ["id"] and len(id_cols) != len(id_columns)):
+        raise InputError(f"option --settings-file: {path.name!r} needs an 'id' column (or the "
+                         f"id columns {', '.join(map(repr, id_columns))})")
+    out = {}
+    for k, record in enumerate(frame.to_dict("records")):
+        row = k + 2
+        ident = ID_SEPARATOR.join(_id_text(record[c]) for c in id_cols)
+        if ident not in known:
+            raise InputError(f"{path.name} row {row}: no series with id {ident!r} in the "
+                             f"portfolio")
+        if ident in out:
+            raise InputError(f"{path.name} row {row}: id {ident!r} appears twice")
+        changes = {}
+        for name, value in record.items():
+            if name in id_cols or value is None or (isinstance(value, str) and not value.strip()):
+                continue
+            if isinstance(value, float) and math.isnan(value):
+                continue
+            changes[name] = parse_setting(name, value, f"{path.name} row {row}, column {name!r}")
+        out[ident] = changes
+    return out

@@ -1,0 +1,92 @@
+"""The portfolio page in a real browser: headless Chromium (see tests/test_report_browser.py
+for the DevTools-pipe client and how the browser is found).
+
+Checks from the rendered page: the triage table shows every series with its rank, the ranking
+rule is visible, each leading series has a drawn chart (an inline SVG with a size), the counts by
+cause are shown, a hostile series id (markup and script) shows as text and runs nothing, and the
+page asks for nothing over the network. Data: invented series.
+"""
+
+import json
+import os
+
+import pandas as pd
+import pytest
+
+from regimetrend.portfolio import run_portfolio
+from tests.test_portfolio import invented_long, with_bad_series
+from tests.test_report_browser import PipeBrowser, _chromium
+
+HOSTILE = '<img src=x onerror=alert(1)><script>alert("owned")</script>'
+
+CHECK = r"""
+(() => {
+  const shown = (el) => {
+    if (!el) return false;
+    const r = el.getBoundingClientRect();
+    return r.width > 20 && r.height > 10 && getComputedStyle(el).visibility !== 'hidden';
+  };
+  const tables = document.querySelectorAll('table');
+  const triage = tables[tables.length - 1];
+  const ranks = [...triage.tBodies[0].rows].map(r => r.cells[0].innerText);
+  const ids = [...triage.tBodies[0].rows].map(r => r.cells[1].innerText);
+  return JSON.stringify({
+    ranks, ids, triage: shown(triage),
+    rule: shown(document.querySelector('p.rule')),
+    ruleText: document.querySelector('p.rule').innerText,
+    charts: [...document.querySelectorAll('figure svg')].map(shown),
+    polylines: document.querySelectorAll('figure svg polyline').length,
+    causes: tables[0].tBodies[0].rows.length,
+    scripts: document.querySelectorAll('script').length,
+    planted: document.querySelectorAll('img[src="x"]').length,
+    text: document.body.innerText});
+})()
+"""
+
+
+@pytest.fixture(scope="module")
+def page(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("portfolio_page")
+    frame = with_bad_series(invented_long(n_series=5, n=60))
+    frame.loc[frame["product"] == "gizmos", "product"] = HOSTILE
+    src = folder / "long.csv"
+    frame.to_csv(src, index=False)
+    run_portfolio(src, folder / "out", id_columns=["region", "product"], level="scan",
+                  workers=1)
+    return folder / "out" / "portfolio.html"
+
+
+def test_portfolio_page_renders_in_headless_chromium(page, tmp_path):
+    binary = _chromium()
+    if binary is None:
+        if os.environ.get("CI", "").lower() == "true":
+            pytest.fail("chromium is required on CI (.ci/run installs Debian's chromium)")
+        pytest.skip("chromium is not installed (apt-get install chromium); CI runs this test")
+    browser = PipeBrowser(binary, tmp_path / "profile")
+    try:
+        target = browser.send("Target.createTarget", {"url": "about:blank"})["targetId"]
+        session = browser.send("Target.attachToTarget",
+                               {"targetId": target, "flatten": True})["sessionId"]
+        for domain in ("Page", "Network", "Runtime"):
+            browser.send(f"{domain}.enable", session=session)
+        browser.send("Page.navigate", {"url": page.as_uri()}, session=session)
+        browser.wait_for("Page.loadEventFired", timeout=60)
+        got = json.loads(browser.send("Runtime.evaluate",
+                                      {"expression": CHECK, "returnByValue": True},
+                                      session=session)["result"]["value"])
+        shot = browser.send("Page.captureScreenshot", {"format": "png"}, session=session)
+        (tmp_path / "portfolio.png").write_bytes(__import__("base64").b64decode(shot["data"]))
+    finally:
+        browser.close()
+    summary = pd.read_csv(page.parent / "summary.csv").sort_values("rank")
+    assert got["ranks"] == [str(r) for r in summary["rank"]]
+    assert got["ids"] == list(summary["id"])
+    assert HOSTILE in " ".join(got["ids"])  # the hostile id shows as text
+    assert got["scripts"] == 0 and got["planted"] == 0
+    assert got["triage"] and got["rule"] and "ranked by evidence of a recent change" in \
+        got["ruleText"]
+    assert len(got["charts"]) == 3 and all(got["charts"])  # the three series analysed
+    assert got["polylines"] == 6  # values and regime fit in each
+    assert got["causes"] >= 2 and "could not be analysed" in got["text"]
+    requests = [e for e in browser.events if e.get("method") == "Network.requestWillBeSent"]
+    assert all(e["params"]["request"]["url"].startswith("file:") for e in requests)

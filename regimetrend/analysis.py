@@ -20,6 +20,7 @@ from .forecast import Forecast, fit_history, trend_forecast
 from .growth import GrowthTable
 from .series import Series
 from .settings import Settings
+from .verdict import Verdict
 
 
 @dataclass(frozen=True, eq=False)
@@ -37,9 +38,9 @@ class Analysis:
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
-    verdict: object = None  # verdict.Verdict: the one model and what is said about it
-    searches: dict = None  # {shape: BreakSet} every full-sample break search run
-    evaluations: dict = None  # {shape: Evaluation} every rolling-origin evaluation run
+    verdict: Verdict | None = None  # the one model and what is said about it
+    searches: dict | None = None  # {shape: BreakSet} every full-sample break search run
+    evaluations: dict | None = None  # {shape: Evaluation} every rolling-origin evaluation run
 
     def to_dict(self) -> dict:
         from .output import json_safe
@@ -139,7 +140,8 @@ def analyze(series: Series, settings: Settings | None = None, progress=None,
                              explicit, lag1, wandering, searches)
     extra = [verdicts.coverage_caution(verdict)]
     return Analysis(series=series, settings=settings, spec=spec, breaks=run.breaks,
-                    evaluation=run.evaluation, growth=growth, forecast=forecast,
+                    evaluation=_as_decided(run.evaluation, runs[0].evaluation, verdict),
+                    growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
                     cusum=cusum,
                     cautions=cautions.for_analysis(series, run.breaks if verdict.breaks
@@ -148,6 +150,24 @@ def analyze(series: Series, settings: Settings | None = None, progress=None,
                                                        c for c in extra if c)),
                     verdict=verdict, searches=searches,
                     evaluations={r.shape: r.evaluation for r in runs})
+
+
+def _as_decided(evaluation, reference_evaluation, verdict):
+    """The evaluation with the verdict's decisions in place of its own: the recommended
+    candidate, the history decision and the diagnosis sentence, so that every table and chart
+    that reads the evaluation shows the chosen model (the evidence stays as computed)."""
+    from .evaluate.result import Diagnosis, HistoryDecision, Recommendation
+    from .verdict import HISTORY_RULE, history_sentence
+
+    m = verdict.model
+    rec = Recommendation(m.strategy, m.shape, m.name, verdict.sentences[0], verdict.rule,
+                         verdict.evidence.basis)
+    evidence = dict(evaluation.history.evidence or {}, rule=HISTORY_RULE)
+    hist = HistoryDecision(verdict.history.keep_from, verdict.history.keep_from_label,
+                           history_sentence(verdict), evidence)
+    diag = Diagnosis(verdict.diagnosis.sentence,
+                     dict(reference_evaluation.diagnosis.data, cause=verdict.diagnosis.cause))
+    return replace(evaluation, recommended=rec, history=hist, diagnosis=diag)
 
 
 def _model_growth(series, spec, strategy, breakset, forecast, growth_table, growth_from_fits):

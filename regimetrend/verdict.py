@@ -42,11 +42,22 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from .evaluate.accuracy_tests import compare_errors
 from .evaluate.recommend import ALPHA, LARGE_GAIN, recommend
+
+HISTORY_RULE = ("the history kept follows from the chosen model: one trend over all history and "
+                "the trend joined at the breaks keep all history; a truncated trend keeps the "
+                "history from the break it starts at; separate trends forecast from the last "
+                "regime, so the history from the last break; the window average keeps the "
+                "span it averages over, from the first period. The history sweep is cited, and "
+                "a sweep gain of 30% or more that is not followed is explained")
+if TYPE_CHECKING:
+    from .breaks.result import BreakSet
+    from .evaluate.result import Evaluation
 
 SWEEP_NOTE = 0.30  # a sweep gain this large that the verdict declines is explained
 COVERAGE_FLOOR = 0.80  # rolling 95% intervals covering less than this are flagged
@@ -148,8 +159,8 @@ class Run:
     """One rolling-origin evaluation and the full-sample break search of its shape."""
 
     shape: str
-    breaks: object  # breaks.BreakSet
-    evaluation: object  # evaluate.Evaluation
+    breaks: BreakSet
+    evaluation: Evaluation
 
 
 @dataclass(frozen=True)
@@ -327,13 +338,16 @@ def eligible(candidate, run_shape: str, explicit: str | None) -> bool:
     return st.shape == run_shape
 
 
-def _within(run: Run, candidates: dict | None, explicit, wandering: bool):
-    """Rule step 2 on one evaluation: (winning CandidateResult, basis)."""
+def _within(run: Run, candidates: dict | None, explicit, wandering: bool,
+            break_p: Any = "search"):
+    """Rule step 2 on one evaluation: (winning CandidateResult, basis). ``break_p`` replaces
+    the search's sup-F p-value (stability reruns)."""
     ev = run.evaluation
     pool = candidates if candidates is not None else {c.name: c for c in ev.candidates}
     ref = pool[ev.reference]
     cands = [c for c in pool.values() if eligible(c, run.shape, explicit)]
-    rec = recommend(cands, ref, _supf(run.breaks), ev.optimistic)
+    p = _supf(run.breaks) if break_p == "search" else break_p
+    rec = recommend(cands, ref, p, ev.optimistic)
     best, basis = pool[rec.name], rec.basis
     if wandering and best.name == ref.name:
         better = [c for c in cands if c.name != ref.name and c.gain is not None
@@ -360,11 +374,10 @@ def choose(runs: list[Run], explicit: str | None, wandering: bool = False, resco
     ``rescored`` (stability reruns) gives per run {name: CandidateResult} scored on fewer
     origins (``masks``), and ``break_p`` per run the sup-F p of the shortened series' search."""
     winners = []
+    ps = [_supf(r.breaks) for r in runs] if break_p is None else list(break_p)
     for i, run in enumerate(runs):
         pool = rescored[i] if rescored is not None else None
-        if break_p is not None:
-            run = Run(run.shape, _PSearch(run.breaks, break_p[i]), run.evaluation)
-        best, basis = _within(run, pool, explicit, wandering)
+        best, basis = _within(run, pool, explicit, wandering, ps[i])
         winners.append((i, best, basis, run))
     i, best, basis, run = winners[0]
     for j, other, obasis, orun in winners[1:]:
@@ -383,7 +396,7 @@ def choose(runs: list[Run], explicit: str | None, wandering: bool = False, resco
         p = dm.p_value_better
         rs, rc = simple[1].metrics["rmse"], complex_[1].metrics["rmse"]
         gain = 1.0 - rc / rs if rs > 0 else 0.0
-        bp = _supf(complex_[3].breaks)
+        bp = ps[complex_[0]]
         if rc < rs and ((p is not None and p < ALPHA)
                         or (gain >= LARGE_GAIN and bp is not None and bp < ALPHA)):
             i, best, basis, run = complex_[0], complex_[1], \
@@ -393,24 +406,6 @@ def choose(runs: list[Run], explicit: str | None, wandering: bool = False, resco
             i, best, basis, run = simple[0], simple[1], \
                 f"{simple[2]}; fewer breaks than {complex_[1].name}", simple[3]
     return i, best, basis
-
-
-@dataclass(frozen=True)
-class _PSearch:
-    """A break search seen with another sup-F p-value (the shortened series' one)."""
-
-    inner: object
-    p: float | None
-
-    @property
-    def positions(self):
-        return self.inner.positions
-
-    @property
-    def tests(self):
-        from types import SimpleNamespace
-
-        return SimpleNamespace(supf=SimpleNamespace(p_value=self.p))
 
 
 def model_of(candidate, run: Run) -> Model:
@@ -432,7 +427,7 @@ def evidence_of(runs: list[Run], run_index: int, candidate, basis: str) -> Evide
                                own.evaluation.errors.errors(candidate.name),
                                int(ev0.plan.get("step", 1)))
         p = dm.p_value_better
-    others = []
+    others: list[tuple] = []
     for r in runs:
         for c in r.evaluation.candidates:
             if c.name == candidate.name or not eligible(c, r.shape, None) \
@@ -825,7 +820,7 @@ def _breaks_sentence(series, model: Model, breaks, search_breaks: int, break_p) 
             f"none (sup-F {p_text(break_p)}).")
 
 
-def _growth_sentence(g: GrowthNow) -> str | None:
+def _growth_sentence(g: GrowthNow | None) -> str | None:
     if g is None:
         return None
     lo, hi = g.ci95
@@ -897,6 +892,10 @@ def _alternatives_sentence(ev: Evidence) -> str | None:
     return "Alternatives, not chosen: " + "; ".join(parts) + "."
 
 
+def history_sentence(v: Verdict) -> str:
+    return _history_sentence(v.history)
+
+
 def sentences(v: Verdict) -> tuple[str, ...]:
     start_label = v.history.keep_from_label if v.model.strategy == "truncated" else None
     out = [_model_sentence_for(v, start_label),
@@ -954,7 +953,7 @@ def build(series, runs: list[Run], run_index: int, candidate, basis: str, growth
 def judged_by(run: Run, position: int) -> int:
     """Origins that know a shortest regime (the search's trimming) after ``position``."""
     h = int(getattr(run.breaks, "trim_periods", 0) or 1)
-    return sum(1 for o in run.evaluation.plan.get("origins", []) if o >= position + h)
+    return sum(1 for o in run.evaluation.plan.get("origins", []) if int(o) >= position + h)
 
 
 def _origin_note(series, run: Run, breaks) -> str | None:

@@ -60,7 +60,8 @@ def run(args) -> int:
                        first_origin=args.first_origin, step=args.step,
                        reuse_breaks=args.reuse_breaks)
     ev = analysis.evaluation
-    result = {"verdict": analysis.verdict.to_dict(), **ev.to_dict()}
+    verdict = analysis.verdict
+    result = {"verdict": verdict.to_dict() if verdict is not None else None, **ev.to_dict()}
     if args.errors:
         path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic),
                                     "option --errors", make_folders=False)
@@ -68,7 +69,7 @@ def run(args) -> int:
     if args.json:
         print(options.dumps(result))
     else:
-        print(render(series, ev, result.get("outputs", {}), analysis.verdict))
+        print(render(series, ev, result.get("outputs", {}), verdict))
     return 0
 
 

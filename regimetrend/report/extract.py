@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # annotations only: the report computes nothing
     from ..evaluate.rolling import ErrorTable
     from ..forecast import Forecast
     from ..growth import GrowthTable
+    from ..verdict import Verdict
 
 
 @dataclass(frozen=True)
@@ -54,6 +55,7 @@ class ReportData:
     regime_fitted: np.ndarray | None
     global_fitted: np.ndarray | None
     cautions: tuple[str, ...] = field(default=())
+    verdict: Verdict | None = None  # the chosen model and its sentences
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -162,4 +164,5 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
         evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
         reference=_get(evaluation, "reference"), recommended=rec,
         forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),
-        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions)
+        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions,
+        verdict=_get(analysis, "verdict"))

@@ -38,6 +38,7 @@ class Analysis:
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
     verdict: Verdict | None = None  # the one model and what is said about it
     searches: dict | None = None  # {shape: BreakSet} every full-sample break search run
     evaluations: dict | None = None  # {shape: Evaluation} every rolling-origin evaluation run
@@ -148,7 +149,7 @@ def analyze(series: Series, settings: Settings | None = None, progress=None,
                                                    else None,
                                                    tuple(run.evaluation.cautions) + tuple(
                                                        c for c in extra if c)),
-                    verdict=verdict, searches=searches,
+                    global_trend=global_fit.trend(), verdict=verdict, searches=searches,
                     evaluations={r.shape: r.evaluation for r in runs})
 
 

@@ -180,10 +180,13 @@ def test_page_escapes_every_user_string():
 
 
 def test_fmt_rounds_for_reading():
+    """Table cells follow the one rounding rule of regimetrend.numformat."""
     assert fmt(1234.5678, "num") == "1,235"
-    assert fmt(0.012345, "num") == "0.01235"
-    assert fmt(14.1946, "pct") == "14.19"
-    assert fmt(3.2e-7, "pvalue") == "<0.0001"
+    assert fmt(0.012345, "num") == "0.0123"
+    assert fmt(14.1946, "pct") == "14.2"
+    assert fmt(-0.00001, "pct") == "0"
+    assert fmt(3.2e-7, "pvalue") == "< 0.001"
+    assert fmt(31.567, "stat") == "31.57"
     assert fmt(None, "num") == "\u2013"
 
 

@@ -6,6 +6,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
+from .. import numformat
 from ..analysis import analyze
 from ..errors import InputError
 from . import options
@@ -73,14 +74,12 @@ def run(args) -> int:
     return 0
 
 
-def _pct(x, digits=0):
-    return "-" if x is None else f"{100 * x:.{digits}f}%"
+def _pct(x):
+    return numformat.percent(None if x is None else 100 * x, "-")
 
 
 def _p(x):
-    if x is None:
-        return "-"
-    return "<0.001" if x < 0.001 else f"{x:.3f}"
+    return numformat.pvalue(x, "-")
 
 
 def _seasonal_words(model) -> str:
@@ -115,7 +114,7 @@ def render(series, ev, outputs, verdict=None) -> str:
         rows.append([c.name, str(c.rank), fmt(m["rmse"]), fmt(m["mae"]),
                      fmt(m["mape"]) if m["mape"] is not None else "-", fmt(m["mase"]),
                      fmt(m["me"]), _pct(m["coverage80"]), _pct(m["coverage95"]),
-                     _pct(c.gain, 1) if c.name != ev.reference else "reference",
+                     _pct(c.gain) if c.name != ev.reference else "reference",
                      _p(vs.get("p_value_better"))])
     lines.append(table(["candidate", "rank", "RMSE", "MAE", "MAPE %", "MASE", "ME",
                         "80% cover", "95% cover", "gain vs global", "DM p (better)"], rows))
@@ -141,7 +140,7 @@ def render(series, ev, outputs, verdict=None) -> str:
     if len(sweep) > 1:
         lines.append(table(["fit from", "RMSE", "MAE", "gain vs all history"],
                            [[r["label"], fmt(r["rmse"]), fmt(r["mae"]),
-                             _pct(r["gain_over_global"], 1)] for r in sweep]))
+                             _pct(r["gain_over_global"])] for r in sweep]))
     lines += ["", f"diagnosis: {ev.diagnosis.sentence}", ""]
     lines += [f"caution: {c}" for c in ev.cautions]
     for path in outputs.values():

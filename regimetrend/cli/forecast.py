@@ -6,6 +6,7 @@ import csv
 import io
 from pathlib import Path
 
+from .. import numformat
 from ..forecast import fit_history, trend_forecast
 from ..holdout import holdout_check
 from . import options
@@ -48,7 +49,7 @@ def run(args) -> int:
         fit = fit_history(series, spec)
         from ..report.forecast_chart import forecast_png
 
-        png = forecast_png(series, fit.fitted(), 0, fc)
+        png = forecast_png(series, fit.fitted(), 0, fc, holdout=held)
         csv_text = forecast_csv(fc)
         targets = [folder / "forecast.csv", folder / "forecast.png"]
         options.check_targets(targets, "option --output")  # nothing is written if one fails
@@ -84,8 +85,8 @@ def render(series, spec, held, fc, outputs) -> str:
     lines.append(table(["ME", "MAE", "RMSE", "MAPE %", "MASE", "80% cover", "95% cover"],
                        [[fmt(m["me"]), fmt(m["mae"]), fmt(m["rmse"]),
                          fmt(m["mape"]) if m["mape"] is not None else "undefined (zero actual)",
-                         fmt(m["mase"]), fmt(100 * m["coverage80"], 0) + "%",
-                         fmt(100 * m["coverage95"], 0) + "%"]]))
+                         fmt(m["mase"]), numformat.percent(100 * m["coverage80"]),
+                         numformat.percent(100 * m["coverage95"])]]))
     lines += ["", f"forecast, refitted on all {series.n} periods (point = mean):"]
     rows = [[r["label"], fmt(r["mean"]), fmt(r["median"]),
              f"{fmt(r['lower80'])} to {fmt(r['upper80'])}",

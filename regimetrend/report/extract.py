@@ -55,6 +55,8 @@ class ReportData:
     regime_fitted: np.ndarray | None
     global_fitted: np.ndarray | None
     cautions: tuple[str, ...] = field(default=())
+    regime_trend: np.ndarray | None = None  # regime_fitted with seasonal terms at their average
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
     verdict: Verdict | None = None  # the chosen model and its sentences
 
     def label(self, position) -> str | None:
@@ -165,4 +167,6 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
         reference=_get(evaluation, "reference"), recommended=rec,
         forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),
         regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions,
+        regime_trend=_fitted(_get(growth_obj, "trend"), series.n),
+        global_trend=_fitted(_get(analysis, "global_trend"), series.n),
         verdict=_get(analysis, "verdict"))

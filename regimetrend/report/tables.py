@@ -8,12 +8,13 @@ JSON cannot disagree.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
-# how a column reads: text, int, pct (percent, 2 decimals), num (4 significant digits),
-# pvalue, points (percentage points)
-KINDS = ("text", "int", "pct", "num", "pvalue", "points")
+from .. import numformat
+
+# how a column reads (rounded by ``regimetrend.numformat``): text, int, pct (percent), num (plain
+# number), pvalue, points (percentage points), stat (a test statistic)
+KINDS = ("text", "int", "pct", "num", "pvalue", "points", "stat")
 
 
 @dataclass(frozen=True)
@@ -149,33 +150,25 @@ def break_rows(breaks: dict, series_labels: dict | None = None) -> Table:
 
 
 def fmt(value, kind: str) -> str:
-    """A value rounded for reading (the HTML page); empty for missing values."""
+    """A value rounded for reading (the HTML page) by the rule of ``regimetrend.numformat``;
+    an en dash for missing values."""
     if value is None:
-        return "\u2013"
-    if kind in ("text",):
+        return numformat.MISSING
+    if kind in ("text",) or isinstance(value, str):
         return str(value)
-    if isinstance(value, str):
-        return value
-    v = float(value)
-    if not math.isfinite(v):
-        return "\u2013"
     if kind == "int":
-        return f"{int(round(v)):d}"
-    if kind in ("pct", "points"):
-        return f"{v:+.2f}" if kind == "points" else f"{v:.2f}"
+        return numformat.count(value)
+    if kind == "pct":
+        return numformat.percent(value, symbol=False)
+    if kind == "points":
+        return numformat.points(value)
     if kind == "pvalue":
-        return "<0.0001" if v < 1e-4 else f"{v:.4f}"
-    return num(v)
+        return numformat.pvalue(value)
+    if kind == "stat":
+        return numformat.statistic(value)
+    return numformat.number(value)
 
 
 def num(v: float) -> str:
-    """Four significant digits, without exponent for ordinary business magnitudes."""
-    if v == 0:
-        return "0"
-    a = abs(v)
-    if a >= 1e9 or a < 1e-3:
-        return f"{v:.3e}"
-    digits = max(0, 3 - int(math.floor(math.log10(a))))
-    if digits and abs(round(v, digits)) >= 10 ** (4 - digits):  # 999.96 rounds up to 1,000
-        digits -= 1
-    return f"{v:,.{digits}f}"
+    """A plain number by the report's one rounding rule (``regimetrend.numformat.number``)."""
+    return numformat.number(v)

@@ -526,7 +526,8 @@ def growth_now(growth, model: Model) -> GrowthNow | None:
     if shape == "exponential":
         base = "compound growth of the exponential trend"
     elif shape == "linear":
-        base = "the yearly increase as a share of the fitted level at the regime's end"
+        base = ("compound growth of the fitted line from its level at the regime's start to "
+                "its level at the end")
     else:
         base = "growth at the regime's end, a year's worth, as a share of the fitted level there"
     strategy = "global" if model.strategy == "window-average" else model.strategy

@@ -217,6 +217,7 @@ class History:
     sweep_best_label: str | None
     sweep_best_gain: float | None
     declined: str | None  # why a sweep gain of SWEEP_NOTE or more is not followed
+    sweep_shape: str = "linear"  # the shape of the trends the sweep fitted
 
 
 @dataclass(frozen=True)
@@ -491,11 +492,11 @@ def history_advice(series, model: Model, forecast, evaluation, breaks, evidence)
     best_gain = best.get("gain_over_global") if best else None
     declined = None
     follows = best is not None and (best["position"] == (start or 0))
-    own = evidence.gain if evidence is not None else None
+    own = evidence.rmse if evidence is not None else None
     if best is not None and not follows and best_gain is not None and best_gain >= SWEEP_NOTE \
-            and own is not None and own >= best_gain:
-        declined = (f"the chosen model forecast better still ({pct_text(100 * own, 0)} better "
-                    f"than all history)")
+            and own is not None and own <= best["rmse"]:
+        declined = (f"the chosen model forecast better still (rolling-origin RMSE "
+                    f"{num_text(own)} against {num_text(best['rmse'])} from that start)")
     elif best is not None and not follows and best_gain is not None \
             and best_gain >= SWEEP_NOTE:
         n_starts = len(sweep)
@@ -512,7 +513,7 @@ def history_advice(series, model: Model, forecast, evaluation, breaks, evidence)
                     f"and the chosen model is what the rule accepts on leak-free evidence")
     return History(series.iso(start) if start else None,
                    series.label(start) if start else None, why, best_label, best_gain,
-                   declined)
+                   declined, str(evaluation.model.get("shape", model.search_shape)))
 
 
 def growth_now(growth, model: Model) -> GrowthNow | None:
@@ -855,15 +856,16 @@ def _history_sentence(h: History) -> str:
         text = f"Keep all history for forecasting: {h.why}."
     if h.sweep_best_label is not None and h.sweep_best_gain is not None:
         g = h.sweep_best_gain
+        sweep = f"The history sweep ({h.sweep_shape} trends fitted from fixed starts)"
         if h.declined:
-            text += (f" The history sweep's best start, {h.sweep_best_label}, forecast "
-                     f"{pct_text(100 * g, 0)} better than all history, but is not followed: "
-                     f"{h.declined}.")
+            text += (f" {sweep} did best from {h.sweep_best_label}, "
+                     f"{pct_text(100 * g, 0)} better than one {h.sweep_shape} trend on all "
+                     f"history, but that start is not followed: {h.declined}.")
         elif g > 0:
-            text += (f" The history sweep's best start is {h.sweep_best_label} "
-                     f"({pct_text(100 * g, 0)} better than all history).")
+            text += (f" {sweep} did best from {h.sweep_best_label} ({pct_text(100 * g, 0)} "
+                     f"better than one {h.sweep_shape} trend on all history).")
         else:
-            text += " The history sweep found no start that beat all history."
+            text += f" {sweep} found no start that beat all history."
     return text
 
 

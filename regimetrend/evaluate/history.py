@@ -122,6 +122,8 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
         a, b = r["ci95_labels"]
         return f" (95% date interval {a} to {b})"
 
+    from ..verdict import significance
+
     def own_words(r):
         return f"{r['own_test']} {_p(r['own_p_value'])}"
 
@@ -141,11 +143,20 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     judged = [r for r in rows if r["judgeable"]]
     candidates = [r for r in judged if r["significant"]]
     if not candidates:
-        r = (judged or rows)[-1]
+        if not judged:
+            r = rows[-1]
+            return HistoryDecision(None, None,
+                                   f"keep all history: the break at {r['label']}{interval(r)} "
+                                   f"is too recent for the rolling origin to judge "
+                                   f"({own_words(r)}), so revisit it as data arrive{tail}.",
+                                   evidence)
+        r = judged[-1]
         return HistoryDecision(None, None,
-                               f"keep all history: the break at {r['label']}{interval(r)} is not "
-                               f"significant on its own ({own_words(r)}; any break: sup-F "
-                               f"{_p(break_p)}){recent_note}{tail}.", evidence)
+                               f"keep all history: the break at {r['label']}{interval(r)} is "
+                               f"the latest the rolling origin can judge, and on its own it is "
+                               f"{significance(r['own_p_value'])} ({own_words(r)}; any break: "
+                               f"sup-F {_p(break_p)}){recent_note}{tail}.",
+                               evidence)
     chosen = candidates[-1]
     k = 1 + sum(1 for r in judged if r["position"] > chosen["position"])
     fit = leak.get(k)
@@ -164,8 +175,8 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     where = ("" if hits is None or optimistic else
              f"; at {hits} of {len(origins)} origins the break re-detected there fell in "
              f"that 95% interval")
-    significant = (f"the break there{interval(chosen)} is significant on its own "
-                   f"({own_words(chosen)})")
+    significant = (f"the break there{interval(chosen)} is, on its own, "
+                   f"{significance(chosen['own_p_value'])} ({own_words(chosen)})")
     if fit is None or not fit.metrics["rmse"] <= rmse_all:
         got = ("was not run" if fit is None else
                f"did not forecast better than all history (RMSE {fit.metrics['rmse']:.4g} "

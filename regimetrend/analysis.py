@@ -70,13 +70,13 @@ def _settings(settings: Settings | None, choices: dict) -> Settings:
     return replace(base, **choices) if choices else base
 
 
-def analyze(series: Series, settings: Settings | None = None, progress=None,
+def analyze(series: Series, settings: Settings | None = None, *, progress=None,
             **choices) -> Analysis:
     """Run the whole analysis of ``series``.
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
-    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done, total)``
-    is called after each rolling origin.
+    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
+    total)``, when given, is called after each rolling origin (it does not change the result).
 
     With ``shape="auto"`` (the default) the break search runs under every shape the series
     allows and the verdict's rule (``regimetrend.verdict``) chooses the model; every figure of

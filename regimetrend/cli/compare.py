@@ -3,13 +3,13 @@ origin."""
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 
 from .. import numformat
 from ..analysis import analyze
 from ..errors import InputError
 from . import options
+from .progress import StageBar
 from .text import fmt, table
 
 
@@ -20,29 +20,11 @@ def register(sub) -> None:
     options.add_model_options(p, auto=True)
     options.add_break_options(p)
     options.add_evaluation_options(p)
+    options.add_progress_option(p)
     p.add_argument("--errors", metavar="FILE.csv",
                    help="write every rolling-origin forecast with its actual value to this CSV")
     p.add_argument("--json", action="store_true", help="print the full result as JSON")
     p.set_defaults(run=run)
-
-
-class ProgressBar:
-    """A one-line bar on standard error, drawn only when standard error is a terminal."""
-
-    def __init__(self, stream=None, width: int = 30):
-        self.stream = stream or sys.stderr
-        self.width = width
-        self.on = bool(getattr(self.stream, "isatty", lambda: False)())
-
-    def __call__(self, done: int, total: int) -> None:
-        if not self.on:
-            return
-        filled = int(self.width * done / max(total, 1))
-        self.stream.write(f"\rrolling origin [{'#' * filled}{'.' * (self.width - filled)}] "
-                          f"{done}/{total}")
-        if done >= total:
-            self.stream.write("\r" + " " * (self.width + 40) + "\r")
-        self.stream.flush()
 
 
 def run(args) -> int:
@@ -52,9 +34,9 @@ def run(args) -> int:
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
-    analysis = analyze(series, progress=ProgressBar(), shape=args.shape,
-                       seasonality=spec.seasonality, season_length=spec.season_length,
-                       kind=args.kind, max_breaks=args.max_breaks, trim=args.trim,
+    bar = StageBar("rolling origin", "origins", quiet=args.quiet)
+    analysis = analyze(series, progress=bar, shape=args.shape, seasonality=spec.seasonality,
+                       season_length=spec.season_length, kind=args.kind, max_breaks=args.max_breaks, trim=args.trim,
                        criterion=args.criterion, events=tuple(args.event),
                        seasonal_by_regime=args.seasonal_by_regime,
                        serial_correlation=args.serial_correlation, horizon=args.horizon,

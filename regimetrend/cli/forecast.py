@@ -7,8 +7,6 @@ import io
 from pathlib import Path
 
 from .. import numformat
-from ..forecast import fit_history, trend_forecast
-from ..holdout import holdout_check
 from . import options
 from .text import caution_lines, fmt, table
 
@@ -22,6 +20,7 @@ def register(sub) -> None:
                    help="periods held out for scoring (default: one seasonal cycle, at least 4)")
     p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
                    help="periods to forecast (default: one seasonal cycle, at least 4)")
+    options.add_chart_options(p)
     options.add_output_options(p, "folder for forecast.csv and forecast.png")
     p.set_defaults(run=run)
 
@@ -37,6 +36,10 @@ def default_steps(series) -> int:
 def run(args) -> int:
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    options.check_log_scale(args, series)
+    from ..forecast import fit_history, trend_forecast
+    from ..holdout import holdout_check
+
     k = args.holdout or default_steps(series)
     h = args.horizon or default_steps(series)
     if args.output:
@@ -52,7 +55,8 @@ def run(args) -> int:
         fit = fit_history(series, spec)
         from ..report.forecast_chart import forecast_png
 
-        png = forecast_png(series, fit.fitted(), 0, fc, holdout=held)
+        png = forecast_png(series, fit.fitted(), 0, fc, units=args.units or "", holdout=held,
+                           log_scale=args.log_scale)
         csv_text = forecast_csv(fc)
         targets = [folder / "forecast.csv", folder / "forecast.png"]
         options.check_targets(targets, "option --output")  # nothing is written if one fails

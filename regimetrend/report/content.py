@@ -64,7 +64,7 @@ def _regime_bands(d: ReportData, line) -> list:
             if b > a]
 
 
-def _series_chart(d: ReportData) -> Chart:
+def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
     s = d.series
     seasonal = _seasonal(d)
     trend = d.regime_trend if d.regime_trend is not None else d.regime_fitted
@@ -96,7 +96,7 @@ def _series_chart(d: ReportData) -> Chart:
         regime_trends=regime_bands if d.breaks or d.regime_trend is not None else [],
         global_trend=global_trend, seasonal_fit=seasonal_fit, forecast=forecast,
         global_forecast=global_forecast, zoom_from=None if first is None else s.starts[first],
-        labels=labels, title=f"{s.name}: regimes, trends and forecast")
+        labels=labels, log_scale=log_scale, title=f"{s.name}: regimes, trends and forecast")
     parts = ["Actual values in black."]
     if d.breaks:
         parts.append(f"Solid blue lines: the {shape} trend of each regime"
@@ -330,9 +330,14 @@ def _facts(d: ReportData) -> list[Fact]:
     return facts
 
 
-def build(d: ReportData) -> Content:
+def build(d: ReportData, *, log_scale: bool = False, progress=None) -> Content:
+    """Every part of the report; ``log_scale`` draws value axes on a log scale,
+    ``progress(done, total)`` is called after each chart."""
     s = d.series
-    made = [_series_chart(d)]
+    steps = 7
+    made = [_series_chart(d, log_scale)]
+    if progress is not None:
+        progress(1, steps)
     missing = []
     for name, fn, why in (("forecast errors", _error_chart, "no rolling-origin evaluation"),
                           ("CUSUM path", _cusum_chart, "the break search gave no CUSUM path"),
@@ -344,11 +349,15 @@ def build(d: ReportData) -> Content:
             missing.append(f"The {name} chart is not shown: {why}.")
         else:
             made.append(chart)
+        if progress is not None:
+            progress(len(made) + len(missing), steps)
     tables: list[Table] = []
     if d.growth:
         tables.append(growth_rows(d.growth))
     if d.evaluation and d.evaluation.get("candidates"):
-        tables.append(ranking_rows(d.evaluation))
+        names = {c.get("name"): _name(d, c.get("name"))
+                 for c in d.evaluation.get("candidates") or ()}
+        tables.append(ranking_rows(d.evaluation, names))
     if d.forecast is not None:
         tables.append(forecast_rows(d.forecast.to_dict()))
     if d.breaks_dict and d.breaks_dict.get("breaks"):
@@ -362,6 +371,8 @@ def build(d: ReportData) -> Content:
     source = f"{d.source_name}: " if d.source_name else ""
     subtitle = (f"{source}{s.n} {s.frequency.name} periods, {s.label(0)} to "
                 f"{s.label(s.n - 1)}; {spec_text}")
+    if progress is not None:
+        progress(steps, steps)
     return Content(title=f"{s.name}: growth regimes and forecast", subtitle=subtitle,
                    facts=_facts(d), summary=summary_sentences(d), charts=made, tables=tables,
                    cautions=cautions, missing=missing)

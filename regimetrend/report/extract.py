@@ -141,8 +141,9 @@ def _fitted(line, n: int):
     return arr if arr.shape == (n,) else None
 
 
-def gather(analysis, source_name: str | None = None) -> ReportData:
-    """Read everything the report shows from ``analysis``."""
+def gather(analysis, source_name: str | None = None, units: str | None = None) -> ReportData:
+    """Read everything the report shows from ``analysis``; ``units`` of the values, when the
+    analyst names them (the series name otherwise)."""
     series = _get(analysis, "series")
     if not isinstance(series, Series):
         raise TypeError("write_report needs an Analysis (with its series)")
@@ -158,7 +159,7 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
     return ReportData(
         series=series, spec=spec,
         source_name=source_name or _get(analysis, "source") or "",
-        units=_get(analysis, "units") or series.name,
+        units=units or _get(analysis, "units") or series.name,
         result=_to_dict(analysis) or {}, growth=_to_dict(growth_obj), growth_obj=growth_obj,
         breaks=_breaks(breakset, series), breaks_dict=_to_dict(breakset),
         sup_f_p=_sup_f(breakset), cusum=_cusum(analysis),

@@ -16,7 +16,8 @@ __version__ = "0.1.0"
 # ``regimetrend --help`` and ``--version`` start quickly (benchmarks/bench_startup.py).
 _LAZY = {"TrendSpec": "design", "Forecast": "forecast", "trend_forecast": "forecast",
          "Holdout": "holdout", "holdout_check": "holdout", "Frequency": "series",
-         "Series": "series", "resolve_spec": "settings", "Settings": "settings"}
+         "Series": "series", "resolve_spec": "settings", "Settings": "settings",
+         "Verdict": "verdict"}
 
 if TYPE_CHECKING:
     from .design import TrendSpec
@@ -24,6 +25,7 @@ if TYPE_CHECKING:
     from .holdout import Holdout, holdout_check
     from .series import Frequency, Series
     from .settings import Settings, resolve_spec
+    from .verdict import Verdict
 
 
 def __getattr__(name: str):
@@ -51,7 +53,7 @@ def demo_path():
     return files("regimetrend") / "data" / "lumen_grid_energy.csv"
 
 
-__all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec",
+__all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec", "Verdict",
            "demo_path", "holdout_check", "load_series", "resolve_spec", "trend_forecast"]
 
 

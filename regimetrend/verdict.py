@@ -822,14 +822,15 @@ def _breaks_sentence(series, model: Model, breaks, search_breaks: int, break_p) 
             f"none (sup-F {p_text(break_p)}).")
 
 
-def _growth_sentence(g: GrowthNow | None) -> str | None:
+def _growth_sentence(g: GrowthNow | None, chosen: str = "") -> str | None:
     if g is None:
         return None
     lo, hi = g.ci95
     ci = (f" (95% interval {pct_text(lo)} to {pct_text(hi)})"
           if lo is not None and hi is not None else "")
-    since = f"since {g.since_label}" if g.since_label else "over the whole history"
     model = strategy_words(g.strategy, g.shape)
+    if g.since_label:
+        model += f", since {g.since_label}"
     units = ""
     if g.per_year_units is not None:
         ulo, uhi = g.per_year_units_ci95
@@ -839,10 +840,14 @@ def _growth_sentence(g: GrowthNow | None) -> str | None:
     pct = (f"{pct_text(g.annualised_pct)} a year{ci}, {g.base}"
            if g.annualised_pct is not None else None)
     if g.shape == "linear":
-        body = units + (f", that is {pct}" if pct else "")
+        body = units + (f"; as {g.base}, {pct_text(g.annualised_pct)} a year{ci}"
+                        if g.annualised_pct is not None else "")
     else:
         body = (pct or "") + (f"; in units, {units}" if units else "")
-    text = f"Growth now ({model}, {since}): {body}."
+    text = f"Growth now ({model}): {body}."
+    if chosen == "window-average":
+        text += (" The chosen average of trends has no single growth rate of its own, so growth "
+                 "is described by one trend over all history.")
     if g.shared:
         text += (" The breaks shift the level only: all regimes share this one growth rate, so "
                  "growth did not change at the breaks.")
@@ -904,7 +909,7 @@ def sentences(v: Verdict) -> tuple[str, ...]:
     out = [_model_sentence_for(v, start_label),
            _breaks_sentence(_Named(v.series_name), v.model, v.breaks, v.search_breaks,
                             v.evidence.break_p),
-           _growth_sentence(v.growth_now), _history_sentence(v.history),
+           _growth_sentence(v.growth_now, v.model.strategy), _history_sentence(v.history),
            v.diagnosis.sentence, v.forecast_text, _coverage_sentence(v.evidence),
            v.origin_note, v.stability.sentence, _alternatives_sentence(v.evidence)]
     return tuple(s for s in out if s)
@@ -925,8 +930,7 @@ def forecast_sentence(forecast, model: Model, start_label: str | None = None) ->
     first, last = rows[0], rows[-1]
     text = f"Forecast ({words}): {num_text(first['mean'])} for {first['label']}"
     if len(rows) > 1:
-        verb = "rising" if last["mean"] >= first["mean"] else "falling"
-        text += f", {verb} to {num_text(last['mean'])} by {last['label']}"
+        text += f" and {num_text(last['mean'])} for {last['label']}"
     return (text + f", with a 95% range of {num_text(last['lower95'])} to "
             f"{num_text(last['upper95'])} for {last['label']}.")
 

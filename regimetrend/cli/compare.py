@@ -6,7 +6,6 @@ from __future__ import annotations
 from pathlib import Path
 
 from .. import numformat
-from ..analysis import analyze
 from ..errors import InputError
 from . import options
 from .progress import StageBar
@@ -32,6 +31,8 @@ def run(args) -> int:
         options.check_targets([args.errors], "option --errors")
         if not Path(args.errors).parent.is_dir():
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
+    from ..analysis import analyze
+
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
     bar = StageBar("rolling origin", "origins", quiet=args.quiet)

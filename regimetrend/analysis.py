@@ -43,6 +43,13 @@ class Analysis:
     searches: dict | None = None  # {shape: BreakSet} every full-sample break search run
     evaluations: dict | None = None  # {shape: Evaluation} every rolling-origin evaluation run
 
+    def summary(self) -> str:
+        """Plain text of the whole analysis: breaks and growth by regime, the recommendation,
+        history and diagnosis, the forecast with intervals, the cautions."""
+        from .plaintext import analysis_text
+
+        return analysis_text(self)
+
     def to_dict(self) -> dict:
         from .output import json_safe
 
@@ -63,16 +70,10 @@ class Analysis:
         })
 
 
-def _settings(settings: Settings | None, choices: dict) -> Settings:
-    base = settings or Settings()
-    if "events" in choices and choices["events"] is not None:
-        choices = dict(choices, events=tuple(choices["events"]))
-    return replace(base, **choices) if choices else base
-
-
-def analyze(series: Series, settings: Settings | None = None, *, progress=None,
+def analyze(series, settings: Settings | None = None, *, progress=None,
             **choices) -> Analysis:
-    """Run the whole analysis of ``series``.
+    """Run the whole analysis of ``series`` (a ``Series``, or a pandas Series or date/value
+    DataFrame, read by intake).
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
     fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
@@ -84,62 +85,49 @@ def analyze(series: Series, settings: Settings | None = None, *, progress=None,
     """
     from . import verdict as verdicts
     from .breaks import cusum as cusum_paths
+    from .breaks.detect import find_breaks
     from .design import SHAPES
-    from .evaluate import break_detector, compare
+    from .evaluate import evaluate
     from .growth import growth_from_fits, growth_table
+    from .intake import as_series
     from .regimes import strategy_forecast
 
-    settings = _settings(settings, choices)
-    explicit = None if settings.shape == "auto" else settings.shape
-    base = settings.spec_for(series)
+    settings = Settings.coerce(settings, choices, caller="analyze")
+    series = as_series(series)
+    explicit = None if settings.model.shape == "auto" else settings.model.shape
+    base = settings.spec_for(series)  # resolved once; the shapes below share its seasons
     horizon = settings.horizon_for(series)
     positive = bool(np.all(series.values > 0))
     shapes = (explicit,) if explicit else tuple(
         s for s in SHAPES if s != "exponential" or positive)
-
-    def detector(shape):
-        return break_detector(shape, base.seasonality, settings.kind, settings.max_breaks,
-                              settings.trim, settings.criterion, settings.events,
-                              base.season_length, settings.seasonal_by_regime,
-                              settings.serial_correlation)
-
-    searches = {s: detector(s)(series, True) for s in shapes}
+    specs = {s: TrendSpec(s, base.seasonality, base.season_length) for s in shapes}
+    searches = {s: find_breaks(series, specs[s], settings.breaks) for s in shapes}
     run_shapes = verdicts.search_shapes(searches, explicit)
     latest = [(b.positions[-1], b.trim_periods) for s in run_shapes
               for b in [searches[s]] if b.positions]
     place_after = max(latest) if latest else None
-    runs = []
-    for s in run_shapes:
-        ev = compare(series, shape=s, seasonality=base.seasonality,
-                     season_length=base.season_length, kind=settings.kind,
-                     max_breaks=settings.max_breaks, trim=settings.trim,
-                     criterion=settings.criterion, events=settings.events,
-                     seasonal_by_regime=settings.seasonal_by_regime,
-                     serial_correlation=settings.serial_correlation, horizon=horizon,
-                     first_origin=settings.first_origin, step=settings.step,
-                     reuse_breaks=settings.reuse_breaks, full_breaks=searches[s],
-                     place_after=place_after, progress=progress)
-        runs.append(verdicts.Run(s, searches[s], ev))
-    diag0 = runs[0].evaluation.diagnosis.data
-    lag1 = diag0.get("residual_lag1")
+    runs = [verdicts.Run(s, searches[s], evaluate(series, specs[s], settings, searches[s],
+                                                  progress=progress, place_after=place_after))
+            for s in run_shapes]
+    lag1 = runs[0].evaluation.diagnosis.data.get("residual_lag1")
     wandering = lag1 is not None and lag1 >= verdicts.WANDERING_LAG1
     index, chosen, basis = verdicts.choose(runs, explicit, wandering)
     run = runs[index]
     spec = TrendSpec(chosen.strategy.shape, base.seasonality, base.season_length)
     forecast = strategy_forecast(series, chosen.strategy, run.breaks.positions, horizon,
-                                 TrendSpec(run.shape, base.seasonality, base.season_length))
+                                 specs[run.shape])
     growth = _model_growth(series, spec, chosen.strategy, run.breaks, forecast,
                            growth_table, growth_from_fits)
-    ref_spec = TrendSpec(runs[0].shape, base.seasonality, base.season_length)
+    ref_spec = specs[runs[0].shape]
     global_forecast = trend_forecast(series, ref_spec, horizon)
     global_fit = fit_history(series, ref_spec)
     y_model = global_fit.fit.X @ global_fit.fit.beta + global_fit.fit.residuals
     cusum = cusum_paths.recursive_cusum(y_model, global_fit.fit.X).to_dict()
-    stability = _stability(series, runs, explicit, wandering, index, chosen, detector,
+    stability = _stability(series, runs, explicit, wandering, index, chosen, settings,
                            verdicts)
     verdict = verdicts.build(series, runs, index, chosen, basis, growth, forecast, stability,
                              explicit, lag1, wandering, searches)
-    extra = [verdicts.coverage_caution(verdict)]
+    extra = tuple(c for c in [verdicts.coverage_caution(verdict)] if c)
     return Analysis(series=series, settings=settings, spec=spec, breaks=run.breaks,
                     evaluation=_as_decided(run.evaluation, runs[0].evaluation, verdict),
                     growth=growth, forecast=forecast,
@@ -147,8 +135,7 @@ def analyze(series: Series, settings: Settings | None = None, *, progress=None,
                     cusum=cusum,
                     cautions=cautions.for_analysis(series, run.breaks if verdict.breaks
                                                    else None,
-                                                   tuple(run.evaluation.cautions) + tuple(
-                                                       c for c in extra if c)),
+                                                   tuple(run.evaluation.cautions) + extra),
                     global_trend=global_fit.trend(), verdict=verdict, searches=searches,
                     evaluations={r.shape: r.evaluation for r in runs})
 
@@ -176,29 +163,31 @@ def _model_growth(series, spec, strategy, breakset, forecast, growth_table, grow
     (truncated), the regime model of the break search (separate) or the trend joined at the
     breaks (continuous); a window average is described by one trend over all history (its
     windows all end at the last period; the growth table says which model it shows)."""
+    from .errors import InputError
+
     if strategy.name in ("global", "window-average") or not breakset.positions:
         return growth_table(series, spec, ())
     if strategy.name == "truncated":
         return growth_from_fits(series, [fit_history(series, spec, int(forecast.fitted_from))])
     kind = "slope" if strategy.name == "continuous" else None
-    from .errors import InputError
-
     try:
         return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))
     except InputError:  # a regime too short for its own trend under this shape
         return growth_table(series, spec, ())
 
 
-def _stability(series, runs, explicit, wandering, index, chosen, detector, verdicts):
+def _stability(series, runs, explicit, wandering, index, chosen, settings, verdicts):
     """The verdict rerun without the last 1..k periods (``verdict.stability_of``): the break
-    search of each shortened series, and the rolling origin rescored on its origins."""
+    search of each shortened series (as at a rolling origin: no events, breaks capped at what
+    it holds), and the rolling origin rescored on the origins it would have had."""
     from .errors import InputError
+    from .evaluate import history_breaks
 
     searches = {}
     for k in verdicts.stability_periods(series):
         head = series.head(series.n - k)
         try:
-            searches[k] = [detector(r.shape)(head, False) for r in runs]
+            searches[k] = [history_breaks(head, r.breaks.spec, settings.breaks) for r in runs]
         except InputError:
             break
     model = verdicts.model_of(chosen, runs[index])

@@ -64,6 +64,7 @@ COVERAGE_FLOOR = 0.80  # rolling 95% intervals covering less than this are flagg
 WANDERING_LAG1 = 0.80  # residual lag-1 correlation of the global trend that counts as wandering
 #                        (this tool's threshold; a random walk detrended over 80 periods gives
 #                        about 0.85, white noise about 0)
+CURVE_LAG1 = 0.50  # a trend of the right shape leaves residuals less correlated than this
 CAUSES = ("regime change", "wrong shape", "wandering", "outlier", "noise")
 BREAK_FREE = ("global", "window-average")
 
@@ -83,19 +84,17 @@ RULE = ("One model is chosen per series. Each rolling-origin evaluation keeps th
 
 
 def p_text(p) -> str:
-    """'p < 0.001', 'p = 0.012' or 'p not available'."""
-    if p is None or not math.isfinite(float(p)):
-        return "p not available"
-    return "p < 0.001" if p < 0.001 else f"p = {p:.3f}"
+    """'p < 0.001', 'p = 0.012' or 'p not available' (``words.p_phrase``)."""
+    from .words import p_phrase
+
+    return p_phrase(p)
 
 
 def significance(p, alpha: float = ALPHA) -> str:
-    """The one wording of a test result: significant or not at ``alpha``, or not tested."""
-    if p is None or not math.isfinite(float(p)):
-        return "not tested"
-    level = f"{alpha:.0%}"
-    return (f"significant at the {level} level" if p < alpha
-            else f"not significant at the {level} level")
+    """The one wording of a test result (``words.significance``)."""
+    from .words import significance as words_significance
+
+    return words_significance(p, alpha)
 
 
 def pct_text(v, digits: int = 1, signed: bool = False) -> str:
@@ -590,13 +589,15 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         return Diagnosis("noise", (
             f"{head}, which looks like noise: one {ref_shape} trend still fits the last "
             f"periods."), ev)
-    reach = max(k, 2 * series.frequency.season_length)
+    # within reach: a break at most a third of the series, and at most ten years, before the
+    # failure window (never less than the window or two seasons): not decades before
+    ten_years = int(10 * series.frequency.periods_per_year)
+    reach = max(k, 2 * series.frequency.season_length, min(n // 3, ten_years))
     near = [b for b in breaks if b.position >= ws - reach]
     via_cusum = _cross(crossing, breaks, k)
     cross_text = (f"its CUSUM left the 5% band at {series.label(crossing)}"
                   if crossing is not None else "its CUSUM stayed inside the 5% band")
-    if breaks and model.strategy not in BREAK_FREE and (model.shape == ref_shape
-                                                        or near or via_cusum):
+    if breaks and model.strategy not in BREAK_FREE:
         b = (near or [via_cusum] if (near or via_cusum) else list(breaks))[-1]
         gap = ws - b.position
         when = (f"{gap} periods before these" if gap > 0 else "within these periods")
@@ -617,13 +618,7 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             dict(ev, shape=shape))
     found_near = [b for b in found if b.position >= ws - reach] or \
         ([_cross(crossing, found, k)] if _cross(crossing, found, k) else [])
-    if wandering:
-        return Diagnosis("wandering", (
-            f"{head}; {cross_text}. The residuals of one trend wander like a random walk "
-            f"(lag-1 correlation {_corr(lag1)}): breaks in the trend cannot be told apart from "
-            f"wandering, and recent history and short windows serve forecasting better than a "
-            f"long trend."), ev)
-    if found_near:
+    if found_near and evidence.break_p is not None and evidence.break_p < ALPHA:
         b = found_near[-1]
         why = ("it is too recent for the rolling origin to judge" if not judged_by(runs[0], 0)
                or not _judged(runs, b) else "on past periods that did not pay by the rule")
@@ -632,6 +627,12 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             f"({interval_words(*b.ci95_labels)}) explains it; the chosen model does "
             f"not forecast from it, because {why}."),
             dict(ev, explaining_break=b.label))
+    if wandering:
+        return Diagnosis("wandering", (
+            f"{head}; {cross_text}. The residuals of one trend wander like a random walk "
+            f"(lag-1 correlation {_corr(lag1)}): breaks in the trend cannot be told apart from "
+            f"wandering, and recent history and short windows serve forecasting better than a "
+            f"long trend."), ev)
     if crossing is not None or found:
         where = (f"the break at {found[-1].label}" if found else
                  f"the CUSUM crossing at {series.label(crossing)}")
@@ -657,16 +658,20 @@ def _other_shape(runs: list[Run], ref_shape: str, model: Model, evidence: Eviden
     ref = ev0.candidate(ev0.reference).metrics["rmse"]
     if not ref > 0:
         return None
-    def clean(shape):  # its own break search found no significant break
+    def clean(shape):
+        """Its own break search found no significant break, and (when it was evaluated) one
+        trend of that shape leaves residuals that do not wander: a curve, not a random walk."""
         b = (searches or {}).get(shape)
         if b is None:
             return False
         p = _supf(b)
+        for r in runs:
+            lag = r.evaluation.diagnosis.data.get("residual_lag1") if r.shape == shape else None
+            if lag is not None and lag >= CURVE_LAG1:
+                return False
         return not b.positions or p is None or p >= ALPHA
 
-    if model.shape != ref_shape and evidence.rmse < ref and (
-            model.strategy in BREAK_FREE or model.start is not None or clean(model.shape)
-            or start_label):
+    if model.shape != ref_shape and evidence.rmse < ref and clean(model.shape):
         return model.shape, evidence.rmse, ref, start_label
     best = None
     for c in ev0.candidates:

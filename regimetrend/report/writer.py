@@ -53,6 +53,17 @@ def table_csv(table: Table) -> str:
     return buf.getvalue()
 
 
+_XL_ILLEGAL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")  # what a workbook cannot hold
+
+
+def xl_text(value):
+    """A cell value a workbook can hold: control characters (a name from the data may carry
+    them) shown as ``\\x1b``-style escapes; other values unchanged."""
+    if not isinstance(value, str):
+        return value
+    return _XL_ILLEGAL.sub(lambda m: f"\\x{ord(m.group()):02x}", value)
+
+
 def workbook_bytes(content: Content) -> bytes:
     """All tables in one .xlsx workbook (openpyxl), plus a sheet with summary and cautions."""
     from openpyxl import Workbook
@@ -61,17 +72,17 @@ def workbook_bytes(content: Content) -> bytes:
     wb = Workbook()
     first = wb.worksheets[0]
     first.title = "summary"
-    first.append([inert_text(content.title)])
+    first.append([xl_text(inert_text(content.title))])
     first["A1"].font = Font(bold=True, size=13)
-    first.append([inert_text(content.subtitle)])
+    first.append([xl_text(inert_text(content.subtitle))])
     first.append([])
     for sentence in content.summary:
-        first.append([inert_text(sentence)])
+        first.append([xl_text(inert_text(sentence))])
     first.append([])
     first.append(["Cautions"])
     first.cell(row=first.max_row, column=1).font = Font(bold=True)
     for text in content.cautions:
-        first.append([inert_text(text)])
+        first.append([xl_text(inert_text(text))])
     first.column_dimensions["A"].width = 120
     for row in first.iter_rows():
         for c in row:
@@ -84,7 +95,7 @@ def workbook_bytes(content: Content) -> bytes:
                 target = ws.cell(row=r, column=col)
                 kind = kinds[col - 1]
                 value = v if r == 1 else excel_value(v, kind)
-                target.value = value if isinstance(value, date) else cell(value)
+                target.value = value if isinstance(value, date) else xl_text(cell(value))
                 if isinstance(target.value, str):
                     target.data_type = "s"  # never a formula
                 elif r > 1 and kind in EXCEL_FORMATS:
@@ -94,7 +105,7 @@ def workbook_bytes(content: Content) -> bytes:
         for col in range(1, len(table.columns) + 1):
             ws.column_dimensions[ws.cell(row=1, column=col).column_letter].width = 16
         if table.note:
-            ws.cell(row=ws.max_row + 2, column=1, value=inert_text(table.note))
+            ws.cell(row=ws.max_row + 2, column=1, value=xl_text(inert_text(table.note)))
     wb.properties.creator = "regimetrend"
     buf = io.BytesIO()
     wb.save(buf)

@@ -284,3 +284,15 @@ def test_full_level_local_and_dask_identical_with_reports(tmp_path):
     reports = [k for k in local if k.startswith("reports/") and k.endswith("report.html")]
     assert len(reports) == 1 and top.replace(" / ", "_") in reports[0]
     assert 'href="reports/' in local["portfolio.html"].decode()
+
+
+def test_workers_hold_every_blas_library_to_one_thread():
+    # threadpoolctl (a reference library) lists every BLAS loaded in the process
+    code = ("from regimetrend.portfolio.worker import hold_blas; hold_blas(); "
+            "from threadpoolctl import threadpool_info; "
+            "print(sorted({i['num_threads'] for i in threadpool_info() "
+            "if i['user_api'] == 'blas'}), len(threadpool_info()))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, env=dict(os.environ, PYTHONPATH=str(ROOT)))
+    threads, libraries = out.stdout.split("] ")
+    assert threads == "[1" and int(libraries) >= 1

@@ -150,18 +150,19 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
     for idx in reused:
         if rows[idx] is None:
             rows[idx] = store.read_result(jobs[idx].task.id)["row"]
-    order = ranking.rank(rows)
+    done_rows: list[dict] = [r if r is not None else {} for r in rows]
+    order = ranking.rank(done_rows)
     ranks = [0] * len(rows)
     for r, k in enumerate(order, start=1):
         ranks[k] = r
     columns = summary.header(portfolio.id_columns)
-    recs = summary.records(rows, tasks, ranks, portfolio.id_columns)
+    recs = summary.records(done_rows, tasks, ranks, portfolio.id_columns)
     files = {}
     for name, data in summary.summary_files(recs, columns, formats).items():
         files[name] = write_atomic(folder / name, data, "--output")
     files["page"] = write_page(folder, recs, order, store, tasks, level)
-    ok = sum(1 for r in rows if r and r.get("status") == "ok")
-    return RunSummary(total=len(rows), ok=ok, failed=len(rows) - ok, reused=len(reused),
+    ok = sum(1 for r in done_rows if r.get("status") == "ok")
+    return RunSummary(total=len(done_rows), ok=ok, failed=len(done_rows) - ok, reused=len(reused),
                       computed=len(todo), seconds=time.perf_counter() - started, files=files,
                       reports=n_reports)
 

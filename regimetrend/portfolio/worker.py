@@ -23,16 +23,22 @@ import numpy as np
 
 from ..errors import InputError
 from ..output import json_safe
+from ..settings import Settings
 from .inputs import SeriesTask, file_rows_message
 from .row import failed_row, row_from_analysis, row_from_scan
 
 LEVELS = ("full", "scan")
-_BLAS_HELD = []
+_BLAS_HELD: list = []
 
 
 def hold_blas() -> None:
-    """One BLAS thread in this process from now on (threadpoolctl; found once per process)."""
+    """One BLAS thread in this process from now on (threadpoolctl; found once per process).
+
+    threadpoolctl limits only the libraries loaded when it is called, and numpy and scipy each
+    bring their own OpenBLAS, so both are imported first (scipy's loads with ``scipy.linalg``)."""
     if not _BLAS_HELD:
+        import numpy  # noqa: F401
+        import scipy.linalg  # noqa: F401
         from threadpoolctl import threadpool_limits
 
         _BLAS_HELD.append(threadpool_limits(limits=1))
@@ -44,7 +50,7 @@ class Job:
 
     index: int  # position in the portfolio (input order)
     task: SeriesTask
-    settings: object  # regimetrend.settings.Settings
+    settings: Settings
     key: str  # content hash of data and settings (resume key)
     load: dict  # load_series options shared by the portfolio
     level: str = "full"  # full (analyze) or scan (break search and growth only)
@@ -181,7 +187,7 @@ def report_files(analysis) -> dict:
 def report_chunk(jobs: list[Job]) -> list[tuple[int, str, dict | None, str | None]]:
     """Reports for series whose results already exist: (index, id, files, failure)."""
     hold_blas()
-    out = []
+    out: list[tuple[int, str, dict | None, str | None]] = []
     for job in jobs:
         try:
             from ..analysis import analyze

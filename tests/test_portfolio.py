@@ -296,3 +296,24 @@ def test_workers_hold_every_blas_library_to_one_thread():
                          check=True, env=dict(os.environ, PYTHONPATH=str(ROOT)))
     threads, libraries = out.stdout.split("] ")
     assert threads == "[1" and int(libraries) >= 1
+
+
+def test_analyze_holds_blas_to_one_thread(monkeypatch):
+    # threadpoolctl (a reference library) reports the BLAS threads while growth is computed
+    import scipy.linalg  # noqa: F401  (scipy's own BLAS loaded, as in any analysis)
+    from threadpoolctl import threadpool_info
+
+    from regimetrend import analysis, growth
+    from tests.conftest import rseries
+
+    seen = []
+    real = growth.growth_table
+
+    def spy(*args, **kwargs):
+        seen.extend(i["num_threads"] for i in threadpool_info() if i["user_api"] == "blas")
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(growth, "growth_table", spy)
+    # base-R datasets: Nile, annual flow of the Nile at Aswan 1871-1970
+    analysis.analyze(rseries("Nile", "year"), step=10)
+    assert seen and set(seen) == {1}

@@ -4,14 +4,37 @@ The flow runs one way: intake -> trend design -> breaks -> regimes -> evaluation
 report. ``analyze`` runs all of it; the stage functions are public too.
 """
 
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from .errors import InputError
+
 __version__ = "0.1.0"
 
-from .design import TrendSpec  # noqa: E402
-from .errors import InputError  # noqa: E402
-from .forecast import Forecast, trend_forecast  # noqa: E402
-from .holdout import Holdout, holdout_check  # noqa: E402
-from .series import Frequency, Series  # noqa: E402
-from .settings import resolve_spec  # noqa: E402
+# The public names below load their modules (numpy, pandas, scipy) on first use, so that
+# ``regimetrend --help`` and ``--version`` start quickly (benchmarks/bench_startup.py).
+_LAZY = {"TrendSpec": "design", "Forecast": "forecast", "trend_forecast": "forecast",
+         "Holdout": "holdout", "holdout_check": "holdout", "Frequency": "series",
+         "Series": "series", "resolve_spec": "settings", "Settings": "settings"}
+
+if TYPE_CHECKING:
+    from .design import TrendSpec
+    from .forecast import Forecast, trend_forecast
+    from .holdout import Holdout, holdout_check
+    from .series import Frequency, Series
+    from .settings import Settings, resolve_spec
+
+
+def __getattr__(name: str):
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module 'regimetrend' has no attribute {name!r}")
+    from importlib import import_module
+
+    value = getattr(import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
 
 
 def load_series(*args, **kwargs):
@@ -30,8 +53,6 @@ def demo_path():
 
 __all__ = ["Forecast", "Frequency", "Holdout", "InputError", "Series", "TrendSpec",
            "demo_path", "holdout_check", "load_series", "resolve_spec", "trend_forecast"]
-
-from .settings import Settings  # noqa: E402
 
 
 def analyze(series, settings=None, **choices):

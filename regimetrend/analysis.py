@@ -37,6 +37,7 @@ class Analysis:
     global_fitted: np.ndarray  # in-sample fit of the global trend (original units)
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
     def to_dict(self) -> dict:
         from .output import json_safe
@@ -80,11 +81,13 @@ def _blas_held(fn):
 
 
 @_blas_held
-def analyze(series: Series, settings: Settings | None = None, **choices) -> Analysis:
+def analyze(series: Series, settings: Settings | None = None, *, progress=None,
+            **choices) -> Analysis:
     """Run the whole analysis of ``series``.
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
-    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``.
+    fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
+    total)``, when given, is called after each rolling origin (it does not change the result).
     """
     from .breaks import cusum as cusum_paths
     from .evaluate import break_detector, compare
@@ -106,7 +109,8 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
                          seasonal_by_regime=settings.seasonal_by_regime,
                          serial_correlation=settings.serial_correlation, horizon=horizon,
                          first_origin=settings.first_origin, step=settings.step,
-                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks)
+                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks,
+                         progress=progress)
     chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
     forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
     global_forecast = trend_forecast(series, spec, horizon)
@@ -117,4 +121,5 @@ def analyze(series: Series, settings: Settings | None = None, **choices) -> Anal
     return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
                     evaluation=evaluation, growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
-                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions))
+                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions),
+                    global_trend=global_fit.trend())

@@ -1,12 +1,17 @@
 """Growth by regime: how fast each regime grew, with honest intervals, and the change at each break.
 
-One joint least-squares model is fitted on the model scale (logs for the exponential shape): each
-regime has its own trend terms, the seasonal terms (when asked for) are shared by all regimes.
-What a break may change follows the break kind:
+One joint least-squares model is fitted on the model scale (logs for the exponential shape): the
+regime design of ``regimetrend.regime_design``, the very model the break search dated the
+breaks with (same columns, same hinge, same seasonal terms, so the same SSR). What a break may
+change follows the break kind:
 
 - ``both``   each regime has its own level and slope (and curvature for the quadratic shape);
-- ``slope``  the trend is continuous: it bends at each break (hinge terms), no jump;
+- ``slope``  the trend is continuous: it bends at each break (hinge terms zero at the break),
+  no jump;
 - ``level``  each regime has its own level, the slope is shared (growth cannot differ).
+
+The seasonal terms (when asked for) are shared by all regimes, or change at each break too when
+the breaks were searched with seasonal terms per regime.
 
 Every figure is a smooth function of the coefficients, so its standard error comes from the
 Newey-West (HAC) covariance of the coefficients and the delta method (gradients carried exactly
@@ -39,9 +44,9 @@ import numpy as np
 from scipy import stats
 
 from . import ols
-from .design import (TimeScale, TrendSpec, seasonal_columns, seasonal_pattern, season_index,
-                     to_model_scale)
+from .design import TrendSpec
 from .errors import InputError
+from .regime_design import RegimeDesign, model_response
 from .series import Series
 
 LEVEL = 0.95
@@ -184,7 +189,10 @@ class GrowthTable:
     """Growth of every regime of one series, and the change across each break.
 
     ``fitted`` holds the regime model's in-sample fitted values in original units (the median
-    for the exponential shape), for charts; it is not part of ``to_dict()``."""
+    for the exponential shape), for charts; ``trend`` the same with the seasonal terms at their
+    average (each regime's trend alone); ``ssr`` the joint fit's sum of squared residuals on
+    the model scale (the break search's SSR for the same breaks; None for separate fits).
+    None of these is part of ``to_dict()``."""
 
     series_name: str
     spec: TrendSpec
@@ -196,6 +204,9 @@ class GrowthTable:
     changes: tuple[GrowthChange, ...]
     headline: str  # which figure is the headline annualised growth, in words
     fitted: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    trend: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    ssr: float | None = None
+    seasonal_by_regime: bool = False
 
     @property
     def last(self) -> RegimeGrowth:
@@ -204,6 +215,7 @@ class GrowthTable:
     def to_dict(self) -> dict:
         return {"series": self.series_name, "shape": self.spec.shape, "kind": self.kind,
                 "spec": self.spec.to_dict(), "frequency": self.frequency,
+                "seasonal_by_regime": self.seasonal_by_regime,
                 "periods_per_year": self.periods_per_year,
                 "covariance": f"Newey-West HAC, Bartlett kernel, {self.hac_lags} lags, "
                               f"small-sample factor n/(n-k)",
@@ -264,6 +276,7 @@ class _Model:
     regimes: tuple[_RegimeTrend, ...]
     lags: int
     fitted: np.ndarray  # in-sample fitted values, original units
+    ssr: float | None = None  # joint fit's SSR on the model scale (None for separate fits)
 
 
 def _check_breaks(n: int, breaks: Sequence[int], spec: TrendSpec, kind: str) -> list[int]:
@@ -279,96 +292,28 @@ def _check_breaks(n: int, breaks: Sequence[int], spec: TrendSpec, kind: str) -> 
     return positions
 
 
-def _joint_design(n: int, breaks: list[int], spec: TrendSpec, kind: str):
-    """Trend columns of the joint regime model and each regime's map from beta to theta."""
-    t = np.arange(n, dtype=float)
-    edges = [0] + breaks + [n]
-    m = len(edges) - 1
-    quad = spec.shape == "quadratic"
-    cols: list[np.ndarray] = []
-    maps: list[tuple[int, int, float, float, list]] = []  # per regime: rows of A as (col, weight)
-    if kind == "both":
-        for r in range(m):
-            s, e = edges[r], edges[r + 1]
-            sc = TimeScale.for_positions(np.arange(s, e))
-            inside = ((t >= s) & (t < e)).astype(float)
-            u = sc.u(t)
-            base = len(cols)
-            cols += [inside, inside * u] + ([inside * u * u] if quad else [])
-            rows = [[(base, 1.0)], [(base + 1, 1.0)], [(base + 2, 1.0)] if quad else []]
-            maps.append((s, e - 1, sc.center, sc.spread, rows))
-        return cols, maps
-    sc = TimeScale.for_positions(t)
-    u = sc.u(t)
-    if kind == "level":
-        for r in range(m):
-            cols.append(((t >= edges[r]) & (t < edges[r + 1])).astype(float))
-        slope_col = len(cols)
-        cols.append(u)
-        if quad:
-            cols.append(u * u)
-        for r in range(m):
-            rows = [[(r, 1.0)], [(slope_col, 1.0)], [(slope_col + 1, 1.0)] if quad else []]
-            maps.append((edges[r], edges[r + 1] - 1, sc.center, sc.spread, rows))
-        return cols, maps
-    # continuous: hinges max(u - u(b - 1), 0), as the continuous strategy uses them, so the
-    # first period of a new regime is the first on the new slope
-    cols += [np.ones(n), u] + ([u * u] if quad else [])
-    knots = [float(sc.u(b - 1)) for b in breaks]
-    hinge_cols: list[tuple[int, int, float]] = []  # (hinge, squared hinge or -1, knot)
-    for k in knots:
-        h = np.maximum(u - k, 0.0)
-        hinge_cols.append((len(cols), len(cols) + 1 if quad else -1, k))
-        cols.append(h)
-        if quad:
-            cols.append(h * h)
-    for r in range(m):
-        const, lin, sq = [(0, 1.0)], [(1, 1.0)], [(2, 1.0)] if quad else []
-        for d_col, e_col, k in hinge_cols[:r]:
-            const.append((d_col, -k))
-            lin.append((d_col, 1.0))
-            if quad:
-                const.append((e_col, k * k))
-                lin.append((e_col, -2.0 * k))
-                sq.append((e_col, 1.0))
-        maps.append((edges[r], edges[r + 1] - 1, sc.center, sc.spread, [const, lin, sq]))
-    return cols, maps
-
-
 def _fit_joint(series: Series, spec: TrendSpec, breaks: list[int], kind: str,
-               lags: int | None) -> _Model:
+               lags: int | None, seasonal_by_regime: bool = False) -> _Model:
+    """The regime design that dates the breaks (``regime_design``), fitted by least squares,
+    with its HAC covariance and each regime's trend as a map of the coefficients."""
     n = series.n
-    y = to_model_scale(series.values, spec)
-    positions = np.arange(n)
     first = series.first_season()
-    if spec.seasonality == "adjust":
-        pattern = seasonal_pattern(y, positions, first, spec.season_length)
-        y = y - pattern[season_index(positions, first, spec.season_length)]
-    cols, maps = _joint_design(n, breaks, spec, kind)
-    X = np.column_stack(cols)
-    if spec.seasonality == "dummies":
-        X = np.hstack([X, seasonal_columns(positions, first, spec.season_length)])
+    response = model_response(series.values, spec, first)
+    design = RegimeDesign(spec, kind, tuple(breaks), n, first, seasonal_by_regime)
+    X = design.columns()
     if X.shape[0] - X.shape[1] < 2:
         raise InputError(f"the series has {n} points, too few for {len(breaks) + 1} regimes "
                          f"of a {spec.describe()}")
     try:
-        res = ols.fit(X, y)
+        res = ols.fit(X, response.y)
     except ols.RankDeficient as exc:
         raise InputError(f"the regime model cannot be fitted as a {spec.describe()}: {exc}") from None
     L = ols.newey_west_lags(n) if lags is None else int(lags)
     cov = res.cov_hac(L, small_sample=True)
-    fitted = y - res.residuals + (0.0 if spec.seasonality != "adjust" else
-                                  pattern[season_index(positions, first, spec.season_length)])
+    fitted = response.y - res.residuals + response.seasonal_offset()
     fitted = np.exp(fitted) if spec.log_scale else fitted
-    k = X.shape[1]
-    regimes = []
-    for s, e, center, spread, rows in maps:
-        A = np.zeros((3, k))
-        for i, terms in enumerate(rows):
-            for col, w in terms:
-                A[i, col] += w
-        regimes.append(_RegimeTrend(s, e, center, spread, A))
-    return _Model(res.beta, cov, tuple(regimes), L, fitted)
+    regimes = tuple(_RegimeTrend(p.start, p.end, p.center, p.spread, p.A) for p in design.pieces)
+    return _Model(res.beta, cov, regimes, L, fitted, res.ssr)
 
 
 def _model_from_fits(fits) -> _Model:
@@ -550,7 +495,8 @@ def _headline_words(spec: TrendSpec) -> str:
     return "growth at the regime's end, a year's worth, as % of the fitted level there"
 
 
-def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: float) -> GrowthTable:
+def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: float,
+           seasonal_by_regime: bool = False) -> GrowthTable:
     ppy = series.frequency.periods_per_year
     z = _z(level)
     regimes = []
@@ -567,7 +513,20 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
         changes.append(GrowthChange(i, series.iso(nxt.start), series.label(nxt.start), est,
                                     wald, df, p, note))
     return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
-                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted)
+                       tuple(regimes), tuple(changes), _headline_words(spec), model.fitted,
+                       _trend_line(model, spec), model.ssr, seasonal_by_regime)
+
+
+def _trend_line(model: _Model, spec: TrendSpec) -> np.ndarray:
+    """Each regime's trend over its own periods, seasonal terms at their average (zero for
+    effect-coded dummies), in original units (the median for the exponential shape)."""
+    pieces = []
+    for rt in model.regimes:
+        a, b, c = rt.A @ model.beta
+        u = (np.arange(rt.start, rt.end + 1, dtype=float) - rt.center) / rt.spread
+        pieces.append(a + b * u + c * u * u)
+    line = np.concatenate(pieces) if pieces else np.zeros(0)
+    return np.exp(line) if spec.log_scale else line
 
 
 # ---------------------------------------------------------------------------------------------
@@ -575,11 +534,13 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
 
 
 def regime_growth(series: Series, spec: TrendSpec, breaks: Sequence[int] = (), *,
-                  kind: str = "both", lags: int | None = None, level: float = LEVEL) -> GrowthTable:
+                  kind: str = "both", lags: int | None = None, level: float = LEVEL,
+                  seasonal_by_regime: bool = False) -> GrowthTable:
     """Growth of every regime of ``series`` between the break positions ``breaks``.
 
     ``breaks`` are positions of the first period of each new regime. ``kind`` says what a break
-    may change (``both``, ``slope``, ``level``); ``lags`` is the Newey-West truncation lag
+    may change (``both``, ``slope``, ``level``); ``seasonal_by_regime`` lets the seasonal
+    dummies change at each break as well; ``lags`` is the Newey-West truncation lag
     (``floor(4 (n/100)^(2/9))`` by default).
     """
     if kind not in KINDS:
@@ -587,8 +548,9 @@ def regime_growth(series: Series, spec: TrendSpec, breaks: Sequence[int] = (), *
     if not 0 < level < 1:
         raise InputError("growth interval level must be between 0 and 1")
     positions = _check_breaks(series.n, breaks, spec, kind)
-    model = _fit_joint(series, spec, positions, kind, lags)
-    return _table(series, spec, kind, model, level)
+    model = _fit_joint(series, spec, positions, kind, lags, seasonal_by_regime)
+    return _table(series, spec, kind, model, level,
+                  seasonal_by_regime and spec.seasonality == "dummies")
 
 
 def growth_from_fits(series: Series, fits: Sequence, *, level: float = LEVEL) -> GrowthTable:
@@ -615,6 +577,7 @@ def growth_table(source, spec: TrendSpec | None = None, breaks=None, **options) 
             raise InputError("growth_table: give the TrendSpec of the trend")
         kind = options.pop("kind", None)
         positions, break_kind = _break_positions(breaks)
+        options.setdefault("seasonal_by_regime", _by_regime(breaks))
         return regime_growth(source, spec, positions, kind=kind or break_kind, **options)
     existing = getattr(source, "growth", None)
     if isinstance(existing, GrowthTable) and not options and spec is None and breaks is None:
@@ -622,10 +585,16 @@ def growth_table(source, spec: TrendSpec | None = None, breaks=None, **options) 
     series = getattr(source, "series", None)
     if not isinstance(series, Series):
         raise InputError("growth_table: expected an Analysis or a Series")
-    positions, break_kind = _break_positions(getattr(source, "breaks", None)
-                                             if breaks is None else breaks)
+    breaks = getattr(source, "breaks", None) if breaks is None else breaks
+    positions, break_kind = _break_positions(breaks)
     kind = options.pop("kind", None) or break_kind
+    options.setdefault("seasonal_by_regime", _by_regime(breaks))
     return regime_growth(series, spec or source.spec, positions, kind=kind, **options)
+
+
+def _by_regime(breaks) -> bool:
+    """Whether a BreakSet's search let the seasonal terms change with the regime."""
+    return bool(getattr(breaks, "seasonal_by_regime", False))
 
 
 def _break_positions(breaks) -> tuple[list[int], str]:

@@ -20,9 +20,11 @@ positions ``o..`` with 80% and 95% prediction intervals in original units.
   estimation windows that all end at the origin (Pesaran and Pick, 2011), a hedge when the
   break date is uncertain. Interval ends are averaged quantile by quantile (quantile averaging).
 
-Joint fits go through the least-squares core, and their forecasts use the core's ``predict`` at
-the right design rows (the last regime's columns, zeros elsewhere), then the same back-transform
-as a single trend (lognormal mean for the exponential shape).
+The joint fits (``separate``, ``continuous``) are the regime design of ``regime_design`` (kinds
+``both`` and ``slope``), the same model the break search dates breaks with and growth reports.
+They go through the least-squares core, and their forecasts use the core's ``predict`` at the
+design's rows after the history (the last regime's), then the same back-transform as a single
+trend (lognormal mean for the exponential shape).
 
 Breaks that leave a regime too short for its own trend are ignored (the regime joins the one
 before it), so a strategy never fails because a break was found close to an origin.
@@ -35,13 +37,21 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from . import ols
-from .design import (SHAPES, TimeScale, TrendSpec, seasonal_columns, seasonal_pattern,
-                     season_index, to_model_scale, trend_columns)
+from .design import (
+    SHAPES,
+    TimeScale,
+    TrendSpec,
+    seasonal_columns,
+    to_model_scale,
+    trend_columns,
+)
 from .errors import InputError
 from .ols import t_quantile
+from .regime_design import ModelResponse, RegimeDesign, model_response
 from .trendfit import PointForecasts, TrendFit, fit_trend
 
 STRATEGIES = ("global", "separate", "truncated", "continuous", "window-average")
+LAYOUTS = {"separate": "both", "continuous": "slope"}  # joint strategy -> regime design kind
 TERMS = {"linear": 2, "exponential": 2, "quadratic": 3}
 
 
@@ -134,57 +144,21 @@ def usable_breaks(breaks, origin: int, first_need: int, last_need: int) -> tuple
 
 @dataclass(frozen=True, eq=False)
 class PiecewiseFit(TrendFit):
-    """A joint least-squares fit of regime trends; forecasts use TrendFit's back-transform.
+    """A joint least-squares fit of the regime design (``regime_design.RegimeDesign``: kind
+    ``both`` for the separate strategy, ``slope`` for the continuous one); forecasts use
+    TrendFit's back-transform at the design's rows after the history (the last regime's)."""
 
-    ``layout`` is ``separate`` (a trend per regime, own local time scale each) or
-    ``continuous`` (one trend plus hinge terms at the knots)."""
+    regimes: RegimeDesign | None = None
 
-    layout: str = "separate"
-    knots: tuple[int, ...] = ()
-    shapes: tuple[str, ...] = ()
-    scales: tuple[TimeScale, ...] = field(default=())
-
-    def trend_design(self, positions) -> np.ndarray:
-        positions = np.asarray(positions, dtype=float)
-        if self.layout == "separate":
-            return separate_columns(positions, self.knots, self.shapes, self.scales)
-        return continuous_columns(positions, self.knots, self.spec.shape, self.scale)
+    @property
+    def regime_design(self) -> RegimeDesign:
+        if self.regimes is None:
+            raise ValueError("a piecewise fit needs its regime design")
+        return self.regimes
 
     def design(self, positions, seasonal=None) -> np.ndarray:
         """Design rows at ``positions``; ``seasonal`` may pass their seasonal columns in."""
-        X = self.trend_design(positions)
-        if self.spec.seasonality == "dummies":
-            if seasonal is None:
-                seasonal = seasonal_columns(np.asarray(positions, dtype=int), self.first_season,
-                                            self.spec.season_length)
-            X = np.hstack([X, seasonal])
-        return X
-
-
-def separate_columns(positions, knots, shapes, scales) -> np.ndarray:
-    """Block columns: regime r gets [1, u_r (, u_r^2)] on its own rows and zeros elsewhere;
-    positions after the history belong to the last regime."""
-    regime = np.searchsorted(np.asarray(knots, dtype=float), positions, side="right")
-    blocks = []
-    for r, (shape, scale) in enumerate(zip(shapes, scales)):
-        cols = trend_columns(positions, shape, scale)
-        blocks.append(cols * (regime == r)[:, None])
-    return np.hstack(blocks)
-
-
-def continuous_columns(positions, knots, shape: str, scale: TimeScale) -> np.ndarray:
-    """[1, u (, u^2)] plus, at each knot b, the hinge max(u - u(b), 0) (and its square for the
-    quadratic shape): the trend bends at b, where both pieces meet (the break search's
-    ``slope`` kind uses the same hinge)."""
-    X = trend_columns(positions, shape, scale)
-    u = scale.u(positions)
-    extra = []
-    for b in knots:
-        h = np.maximum(u - scale.u(b), 0.0)
-        extra.append(h)
-        if shape == "quadratic":
-            extra.append(h * h)
-    return np.column_stack([X] + extra) if extra else X
+        return self.regime_design.columns(np.asarray(positions), seasonal)
 
 
 class OriginFits:
@@ -297,36 +271,32 @@ class OriginFits:
             fit = self.trend(last_shape)
             self._trends[key] = fit
             return fit
+        response = self._response(spec)
+        design = RegimeDesign(spec, LAYOUTS[layout], knots, self.origin, self.first_season,
+                              last_shape=last_shape if layout == "separate" else None)
         positions = np.arange(self.origin)
-        y = self._model_y(spec)
-        pattern = None
-        if spec.seasonality == "adjust":
-            pattern = seasonal_pattern(y, positions, self.first_season, self.season_length)
-            y = y - pattern[season_index(positions, self.first_season, self.season_length)]
         scale = TimeScale.for_positions(positions)
-        bounds = (0,) + knots + (self.origin,)
-        shapes = tuple([shape] * len(knots) + [last_shape])
-        scales = tuple(TimeScale.for_positions(np.arange(bounds[i], bounds[i + 1]))
-                       for i in range(len(bounds) - 1))
-        proto = PiecewiseFit(spec, positions, self.first_season, scale, None, pattern,  # type: ignore[arg-type]
-                             layout, knots, shapes, scales)
+        proto = PiecewiseFit(spec, positions, self.first_season, scale, None,  # type: ignore[arg-type]
+                             response.pattern,
+                             design)
         X = self._joint_design(proto, positions, 0, self.origin)
         try:
-            result = ols.fit(X, y)
+            result = ols.fit(X, response.y)
         except ols.RankDeficient as exc:
             raise InputError(f"the {layout} {shape} trend cannot be fitted to the history up to "
                              f"position {self.origin}: {exc}") from None
-        fit = PiecewiseFit(spec, positions, self.first_season, scale, result, pattern,
-                           layout, knots, shapes, scales)
+        fit = PiecewiseFit(spec, positions, self.first_season, scale, result, response.pattern,
+                           design)
         self._trends[key] = fit
         return fit
 
     def _joint_design(self, fit: PiecewiseFit, positions, start: int, stop: int) -> np.ndarray:
         """Design rows ``start..stop-1`` of a joint fit, cached: linear and exponential pieces
-        have the same columns ([1, u] per regime or hinge), so their fits share one matrix.
-        The matrix is read-only (the least-squares core keeps it, nobody edits it)."""
-        columns = tuple("quadratic" if sh == "quadratic" else "linear" for sh in fit.shapes)
-        key = (fit.layout, columns, fit.knots, fit.spec.seasonality, start, stop)
+        have the same columns, so their fits share one matrix. The matrix is read-only (the
+        least-squares core keeps it, nobody edits it)."""
+        d = fit.regime_design
+        columns = tuple("quadratic" if sh == "quadratic" else "linear" for sh in d.shapes)
+        key = (d.kind, columns, d.breaks, d.spec.seasonality, start, stop)
         X = self._designs.get(key)
         if X is None:
             X = fit.design(positions, self._seasonal(start, stop)
@@ -334,6 +304,13 @@ class OriginFits:
             X.setflags(write=False)
             self._designs[key] = X
         return X
+
+    def _response(self, spec: TrendSpec) -> ModelResponse:
+        """The history on the model scale (seasonally adjusted under ``adjust``), cached."""
+        key = ("response", spec.log_scale)
+        if key not in self._y:
+            self._y[key] = model_response(self.values, spec, self.first_season)
+        return self._y[key]
 
     # -- strategies -----------------------------------------------------------------------
     def forecast(self, strategy: Strategy, horizon: int) -> PointForecasts:

@@ -77,6 +77,14 @@ class TrendFit:
         m = self.fitted_model_scale()
         return np.exp(m) if self.spec.log_scale else m
 
+    def trend(self) -> np.ndarray:
+        """In-sample trend with the seasonal terms at their average (zero for effect-coded
+        dummies, none for ``adjust``), in original units (the median for the exponential
+        shape)."""
+        k = self.spec.trend_terms
+        m = self.fit.X[:, :k] @ self.fit.beta[:k]
+        return np.exp(m) if self.spec.log_scale else m
+
     def forecast(self, positions) -> PointForecasts:
         """Forecasts at ``positions`` with 80% and 95% prediction intervals, original units."""
         positions = np.atleast_1d(np.asarray(positions, dtype=int))

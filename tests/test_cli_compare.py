@@ -9,7 +9,6 @@ import numpy as np
 import pytest
 
 from regimetrend.cli import main
-from regimetrend.cli.compare import ProgressBar
 from regimetrend.evaluate.scores import score
 from tests.conftest import rseries
 
@@ -74,20 +73,6 @@ def test_reuse_breaks_is_labelled_optimistic_in_text(nile_csv, capsys):
 def test_bad_horizon_is_one_line_and_exit_code_2(nile_csv, capsys):
     code, out, err = run(capsys, "compare", str(nile_csv), "--horizon", "90")
     assert code == 2 and err.count("\n") == 1 and "--horizon" in err
-
-
-def test_progress_bar_draws_only_on_a_terminal():
-    class Tty(io.StringIO):
-        def isatty(self):
-            return True
-
-    tty, pipe = Tty(), io.StringIO()
-    for stream in (tty, pipe):
-        bar = ProgressBar(stream)
-        for i in range(1, 4):
-            bar(i, 3)
-    assert "rolling origin [" in tty.getvalue() and "3/3" in tty.getvalue()
-    assert pipe.getvalue() == ""
 
 
 def test_history_sentence_is_leak_free_and_labels_in_sample_breaks(nile_csv, capsys):

@@ -121,16 +121,16 @@ def test_nile_linear_percent_of_level_interval_is_the_hand_delta_method():
 
 
 def test_continuous_kind_matches_statsmodels_hinge_regression():
-    # statsmodels OLS + HAC on a hand-built hinge design (kink at the last period of the old
-    # regime); planted-break data as the input only.
+    # statsmodels OLS + HAC on a hand-built hinge design: the hinge is zero at the break, as in
+    # the break search and the continuous strategy; planted-break data as the input only.
     rng = np.random.default_rng(5)
     n, brk = 80, 50
     t = np.arange(n, dtype=float)
-    y = 100 + 2 * t + 3 * np.maximum(t - (brk - 1), 0) + rng.normal(0, 2, n)
+    y = 100 + 2 * t + 3 * np.maximum(t - brk, 0) + rng.normal(0, 2, n)
     s = Series("planted", pd.date_range("2010-01-01", periods=n, freq="MS").values, y,
                Frequency("month"))
     g = regime_growth(s, TrendSpec("linear"), [brk], kind="slope")
-    X = np.column_stack([np.ones(n), t, np.maximum(t - (brk - 1), 0)])
+    X = np.column_stack([np.ones(n), t, np.maximum(t - brk, 0)])
     L = newey_west_lags(n)
     res = _sm_hac(X, y, L)
     V = res.cov_params()

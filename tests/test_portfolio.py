@@ -72,9 +72,11 @@ def test_bad_series_never_stop_the_batch_and_name_the_file_row(tmp_path):
     src = tmp_path / "long.csv"
     frame.to_csv(src, index=False)
     out = tmp_path / "out"
+    calls = []
     result = run_portfolio(src, out, id_columns=["region", "product"], level="scan",
-                           workers=2)
+                           workers=2, progress=lambda done, total: calls.append((done, total)))
     assert (result.total, result.ok, result.failed) == (6, 4, 2)
+    assert calls[-1] == (6, 6) and [d for d, _ in calls] == sorted(d for d, _ in calls)
     rows = read_rows(out).set_index("id")
     bad_date = rows.loc["north / gadgets"]
     assert bad_date["status"] == "failed"

@@ -180,10 +180,13 @@ def test_page_escapes_every_user_string():
 
 
 def test_fmt_rounds_for_reading():
+    """Table cells follow the one rounding rule of regimetrend.numformat."""
     assert fmt(1234.5678, "num") == "1,235"
-    assert fmt(0.012345, "num") == "0.01235"
-    assert fmt(14.1946, "pct") == "14.19"
-    assert fmt(3.2e-7, "pvalue") == "<0.0001"
+    assert fmt(0.012345, "num") == "0.0123"
+    assert fmt(14.1946, "pct") == "14.2"
+    assert fmt(-0.00001, "pct") == "0"
+    assert fmt(3.2e-7, "pvalue") == "< 0.001"
+    assert fmt(31.567, "stat") == "31.57"
     assert fmt(None, "num") == "\u2013"
 
 
@@ -242,7 +245,7 @@ def test_growth_numbers_in_html_and_csv_match_the_json(demo_report):
             assert _close_to_shown(row[key], g[key], "pct")
             assert _close_to_shown(row[f"{key}_low"], g[f"{key}_ci95"][0], "pct")
             assert _close_to_shown(row[f"{key}_high"], g[f"{key}_ci95"][1], "pct")
-        assert float(crow["Annualised growth, %"]) == g["annualised_pct"]  # full precision
+        assert float(crow["Growth a year, %"]) == g["annualised_pct"]  # full precision
         assert row["from"] == seg["start_label"] and row["to"] == seg["end_label"]
 
 
@@ -262,9 +265,17 @@ def test_forecast_and_ranking_tables_match_the_json(demo_report):
             assert float(b["95% high"]) == a["upper95"]
     cands = result["evaluation"]["candidates"]
     ranking = parsed.tables["candidate_ranking"]
-    assert [r["candidate"] for r in ranking] == [c["name"] for c in cands]
+    # every candidate appears (the leading five, the rest folded in <details>), in rank order,
+    # with its readable name and its key in report.json
+    assert [r["key"] for r in ranking] == [c["name"] for c in cands]
+    assert len(ranking) > 5
+    page = (folder / "report.html").read_text()
+    section = page[page.index('id="table-candidate_ranking"'):]
+    assert f"<summary>The other {len(cands) - 5} candidates</summary>" in section
     for c, r in zip(cands, ranking):
         assert _close_to_shown(r["rmse"], c["metrics"]["rmse"], "num")
+        assert r["candidate"] and r["candidate"] != c["name"]  # words, not the key
+        assert " before the end" not in r["candidate"]
     assert sum(r["recommended"] == "yes" for r in ranking) == 1
 
 

@@ -1,5 +1,8 @@
 """Break searches where neighbouring regimes share coefficients: kinks and pure level shifts.
 
+This is the fast increment form of the regime design (``regimetrend.regime_design``): the same
+model, written so that a whole profile of break positions is priced in one pass.
+
 A break adds columns that are zero before it. For the kinds handled here:
 
 - ``slope``: hinge terms (t - b)^p for t >= b, p = 1 (and p = 2 for the quadratic shape): the
@@ -34,21 +37,17 @@ from math import comb
 
 import numpy as np
 
+from ..regime_design import break_powers
+
 GRID_LENGTH = 1500  # exact two-break grid up to this length
 MAX_SWEEPS = 20
 
 
 def break_terms(kind: str, degree: int, seasonal: np.ndarray | None = None) -> list:
-    """The columns a break adds, as (multiplier or None, power) pairs: 1{t>=b} h (t-b)^p."""
-    terms: list[tuple[np.ndarray | None, int]]
-    if kind == "level":
-        terms = [(None, 0)]
-    elif kind == "slope":
-        terms = [(None, p) for p in range(1, max(degree, 1) + 1)]
-    elif kind == "both":
-        terms = [(None, p) for p in range(0, degree + 1)]
-    else:
-        raise ValueError(f"unknown break kind {kind!r}")
+    """The columns a break adds in increment form, as (multiplier or None, power) pairs:
+    1{t>=b} h (t-b)^p. They span the same space as the regime design's break columns
+    (``regime_design.RegimeDesign``), in raw periods so the power sums below stay exact."""
+    terms: list[tuple[np.ndarray | None, int]] = [(None, p) for p in break_powers(kind, degree)]
     if seasonal is not None:
         terms += [(seasonal[:, j], 0) for j in range(seasonal.shape[1])]
     return terms

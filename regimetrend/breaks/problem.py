@@ -1,17 +1,18 @@
 """The break problem on the model scale: response, base design, break columns, trimming.
 
-Every kind of break is written the same way: the base design (trend polynomial in the scaled
-time index, plus the shared seasonal dummies) and, for each break b, columns that are zero
-before b:
+The model is the regime design (``regimetrend.regime_design``), the same one the strategies
+forecast with and growth reports: the base design (trend polynomial in the scaled time index,
+plus the shared seasonal dummies) and, for each break b, columns that are zero before b:
 
 - ``level``: 1{t >= b}                                     (a jump, shared slope)
 - ``slope``: (t - b)^p 1{t >= b}, p = 1..degree             (a kink: continuous trend)
-- ``both``:  (t - b)^p 1{t >= b}, p = 0..degree             (every trend coefficient free)
+- ``both``:  every trend coefficient free per regime
 
-plus, with ``seasonal_by_regime``, the seasonal columns times 1{t >= b}. Regime j's trend is
-then the base polynomial plus the full polynomials (t - b)^p of the breaks before it, so the
-jump at a break is its step coefficient, the slope change its (t - b) coefficient and the
-curvature change its (t - b)^2 coefficient, all per period on the model scale.
+plus, with ``seasonal_by_regime``, the seasonal columns times 1{t >= b}. The searches use the
+increment form of the same columns (``kinks.break_terms``: (t - b)^p 1{t >= b}, p = 0..degree
+for ``both``), which spans the same space; ``trend_poly`` reads each regime's trend from the
+regime design, so the jump at a break, its slope change and its curvature change are per period
+on the model scale whatever the parameterisation.
 """
 
 from __future__ import annotations
@@ -22,12 +23,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from .. import ols
-from ..design import (TimeScale, TrendSpec, season_index, seasonal_columns, seasonal_pattern,
-                      to_model_scale, trend_columns)
+from ..design import TimeScale, TrendSpec, seasonal_columns, trend_columns
 from ..errors import InputError
+from ..regime_design import KINDS, RegimeDesign, model_response  # noqa: F401 (KINDS re-exported)
 from . import kinks
 
-KINDS = ("level", "slope", "both")
 
 
 @dataclass(frozen=True, eq=False)
@@ -72,8 +72,13 @@ class BreakProblem:
     def model_key(self, kind: str) -> str:
         return f"{'quadratic' if self.degree == 2 else 'linear'}-{kind}"
 
+    def regime_design(self, kind: str, positions) -> RegimeDesign:
+        """The shared regime design of this series with breaks of ``kind`` at ``positions``."""
+        return RegimeDesign(self.spec, kind, tuple(positions), self.n, self.first_season,
+                            self.seasonal_by_regime)
+
     def design(self, kind: str, positions) -> np.ndarray:
-        return kinks.design_with_breaks(self.base, sorted(positions), self.terms(kind))
+        return self.regime_design(kind, positions).columns(seasonal=self.seasonal)
 
     def fit(self, kind: str, positions) -> ols.LeastSquaresFit:
         X = self.design(kind, positions)
@@ -85,7 +90,8 @@ class BreakProblem:
                              ) from None
 
     def seasonal_part(self, fit: ols.LeastSquaresFit) -> np.ndarray:
-        """The shared seasonal component of a joint fit (zero when there is none)."""
+        """The shared seasonal component of a joint fit (zero when there is none): the regime
+        design puts the shared seasonal columns right after the first regime's trend terms."""
         if self.seasonal is None:
             return np.zeros(self.n)
         k = self.trend.shape[1]
@@ -93,27 +99,9 @@ class BreakProblem:
 
     def trend_poly(self, fit: ols.LeastSquaresFit, kind: str, positions, regime: int):
         """Regime ``regime``'s trend on the model scale, as a function of (float) positions."""
-        positions = sorted(positions)
-        k = self.trend.shape[1]
-        kb = self.base.shape[1]
-        terms = self.terms(kind)
-        trend_beta = fit.beta[:k]
-        blocks = []
-        for i, b in enumerate(positions[:regime]):
-            coef = fit.beta[kb + i * len(terms): kb + (i + 1) * len(terms)]
-            blocks.append((b, [(p, c) for (h, p), c in zip(terms, coef) if h is None]))
-
-        def f(t):
-            t = np.asarray(t, dtype=float)
-            u = self.scale.u(t)
-            val = trend_beta[0] + trend_beta[1] * u
-            if k == 3:
-                val = val + trend_beta[2] * u * u
-            for b, pcs in blocks:
-                for p, c in pcs:
-                    val = val + c * (t - b) ** p
-            return val
-        return f
+        piece = self.regime_design(kind, positions).pieces[regime]
+        beta = fit.beta
+        return lambda t: piece.value(beta, t)
 
 
 def default_min_length(spec: TrendSpec, seasonal_by_regime: bool) -> int:
@@ -170,22 +158,13 @@ def build_problem(series, spec: TrendSpec, seasonal_by_regime: bool, trim) -> Br
     n = series.n
     positions = np.arange(n)
     first = series.first_season()
-    y = to_model_scale(series.values, spec)
-    pattern = None
-    sidx = None
-    s = spec.season_length
-    if spec.seasonality != "none" and s > 1:
-        sidx = season_index(positions, first, s)
-    if spec.seasonality == "adjust":
-        pattern = seasonal_pattern(y, positions, first, s)
-        y = y - pattern[sidx]
+    response = model_response(series.values, spec, first)
     scale = TimeScale.for_positions(positions)
     trend = trend_columns(positions, spec.shape, scale)
+    s = spec.season_length
     seasonal = seasonal_columns(positions, first, s) if spec.seasonality == "dummies" else None
     by_regime = bool(seasonal_by_regime) and seasonal is not None
     h = resolve_trim(trim, n, spec, by_regime)
-    y = np.asarray(y, dtype=float)
-    y.setflags(write=False)
-    return BreakProblem(spec=spec, y=y, pattern=pattern, first_season=first, scale=scale,
-                        trend=trend, seasonal=seasonal, season_idx=sidx,
-                        seasonal_by_regime=by_regime, h=h)
+    return BreakProblem(spec=spec, y=response.y, pattern=response.pattern, first_season=first,
+                        scale=scale, trend=trend, seasonal=seasonal,
+                        season_idx=response.season_idx, seasonal_by_regime=by_regime, h=h)

@@ -3,12 +3,12 @@ origin."""
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 
+from .. import numformat
 from ..errors import InputError
-from ..evaluate import compare
 from . import options
+from .progress import StageBar
 from .text import fmt, table
 
 
@@ -19,29 +19,11 @@ def register(sub) -> None:
     options.add_model_options(p)
     options.add_break_options(p)
     options.add_evaluation_options(p)
+    options.add_progress_option(p)
     p.add_argument("--errors", metavar="FILE.csv",
                    help="write every rolling-origin forecast with its actual value to this CSV")
     p.add_argument("--json", action="store_true", help="print the full result as JSON")
     p.set_defaults(run=run)
-
-
-class ProgressBar:
-    """A one-line bar on standard error, drawn only when standard error is a terminal."""
-
-    def __init__(self, stream=None, width: int = 30):
-        self.stream = stream or sys.stderr
-        self.width = width
-        self.on = bool(getattr(self.stream, "isatty", lambda: False)())
-
-    def __call__(self, done: int, total: int) -> None:
-        if not self.on:
-            return
-        filled = int(self.width * done / max(total, 1))
-        self.stream.write(f"\rrolling origin [{'#' * filled}{'.' * (self.width - filled)}] "
-                          f"{done}/{total}")
-        if done >= total:
-            self.stream.write("\r" + " " * (self.width + 40) + "\r")
-        self.stream.flush()
 
 
 def run(args) -> int:
@@ -51,13 +33,16 @@ def run(args) -> int:
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    from ..evaluate import compare
+
     ev = compare(series, shape=spec.shape, seasonality=spec.seasonality,
                  season_length=spec.season_length, kind=args.kind, max_breaks=args.max_breaks,
                  trim=args.trim, criterion=args.criterion, events=tuple(args.event),
                  seasonal_by_regime=args.seasonal_by_regime,
                  serial_correlation=args.serial_correlation, horizon=args.horizon,
                  first_origin=args.first_origin, step=args.step,
-                 reuse_breaks=args.reuse_breaks, progress=ProgressBar())
+                 reuse_breaks=args.reuse_breaks,
+                 progress=StageBar("rolling origin", "origins", quiet=args.quiet))
     result = ev.to_dict()
     if args.errors:
         path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic),
@@ -70,14 +55,12 @@ def run(args) -> int:
     return 0
 
 
-def _pct(x, digits=0):
-    return "-" if x is None else f"{100 * x:.{digits}f}%"
+def _pct(x):
+    return numformat.percent(None if x is None else 100 * x, "-")
 
 
 def _p(x):
-    if x is None:
-        return "-"
-    return "<0.001" if x < 0.001 else f"{x:.3f}"
+    return numformat.pvalue(x, "-")
 
 
 def _seasonal_words(model) -> str:
@@ -107,7 +90,7 @@ def render(series, ev, outputs) -> str:
         rows.append([c.name, str(c.rank), fmt(m["rmse"]), fmt(m["mae"]),
                      fmt(m["mape"]) if m["mape"] is not None else "-", fmt(m["mase"]),
                      fmt(m["me"]), _pct(m["coverage80"]), _pct(m["coverage95"]),
-                     _pct(c.gain, 1) if c.name != ev.reference else "reference",
+                     _pct(c.gain) if c.name != ev.reference else "reference",
                      _p(vs.get("p_value_better"))])
     lines.append(table(["candidate", "rank", "RMSE", "MAE", "MAPE %", "MASE", "ME",
                         "80% cover", "95% cover", "gain vs global", "DM p (better)"], rows))
@@ -133,7 +116,7 @@ def render(series, ev, outputs) -> str:
     if len(sweep) > 1:
         lines.append(table(["fit from", "RMSE", "MAE", "gain vs all history"],
                            [[r["label"], fmt(r["rmse"]), fmt(r["mae"]),
-                             _pct(r["gain_over_global"], 1)] for r in sweep]))
+                             _pct(r["gain_over_global"])] for r in sweep]))
     lines += ["", f"diagnosis: {ev.diagnosis.sentence}", ""]
     lines += [f"caution: {c}" for c in ev.cautions]
     for path in outputs.values():

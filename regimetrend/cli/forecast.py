@@ -6,8 +6,7 @@ import csv
 import io
 from pathlib import Path
 
-from ..forecast import fit_history, trend_forecast
-from ..holdout import holdout_check
+from .. import numformat
 from . import options
 from .text import caution_lines, fmt, table
 
@@ -21,6 +20,7 @@ def register(sub) -> None:
                    help="periods held out for scoring (default: one seasonal cycle, at least 4)")
     p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
                    help="periods to forecast (default: one seasonal cycle, at least 4)")
+    options.add_chart_options(p)
     options.add_output_options(p, "folder for forecast.csv and forecast.png")
     p.set_defaults(run=run)
 
@@ -33,6 +33,10 @@ def default_steps(series) -> int:
 def run(args) -> int:
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    options.check_log_scale(args, series)
+    from ..forecast import fit_history, trend_forecast
+    from ..holdout import holdout_check
+
     k = args.holdout or default_steps(series)
     h = args.horizon or default_steps(series)
     if args.output:
@@ -48,7 +52,8 @@ def run(args) -> int:
         fit = fit_history(series, spec)
         from ..report.forecast_chart import forecast_png
 
-        png = forecast_png(series, fit.fitted(), 0, fc)
+        png = forecast_png(series, fit.fitted(), 0, fc, units=args.units or "", holdout=held,
+                           log_scale=args.log_scale)
         csv_text = forecast_csv(fc)
         targets = [folder / "forecast.csv", folder / "forecast.png"]
         options.check_targets(targets, "option --output")  # nothing is written if one fails
@@ -84,8 +89,8 @@ def render(series, spec, held, fc, outputs) -> str:
     lines.append(table(["ME", "MAE", "RMSE", "MAPE %", "MASE", "80% cover", "95% cover"],
                        [[fmt(m["me"]), fmt(m["mae"]), fmt(m["rmse"]),
                          fmt(m["mape"]) if m["mape"] is not None else "undefined (zero actual)",
-                         fmt(m["mase"]), fmt(100 * m["coverage80"], 0) + "%",
-                         fmt(100 * m["coverage95"], 0) + "%"]]))
+                         fmt(m["mase"]), numformat.percent(100 * m["coverage80"]),
+                         numformat.percent(100 * m["coverage95"])]]))
     lines += ["", f"forecast, refitted on all {series.n} periods (point = mean):"]
     rows = [[r["label"], fmt(r["mean"]), fmt(r["median"]),
              f"{fmt(r['lower80'])} to {fmt(r['upper80'])}",

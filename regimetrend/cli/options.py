@@ -6,7 +6,31 @@ import argparse
 from pathlib import Path
 
 from ..errors import InputError
-from ..output import check_targets, dumps, json_safe, write_atomic  # noqa: F401  (for commands)
+
+
+# The output helpers, loaded when first called (numpy is not needed for --help or --version).
+def check_targets(*args, **kwargs):
+    from ..output import check_targets as f
+
+    return f(*args, **kwargs)
+
+
+def dumps(*args, **kwargs):
+    from ..output import dumps as f
+
+    return f(*args, **kwargs)
+
+
+def json_safe(*args, **kwargs):
+    from ..output import json_safe as f
+
+    return f(*args, **kwargs)
+
+
+def write_atomic(*args, **kwargs):
+    from ..output import write_atomic as f
+
+    return f(*args, **kwargs)
 
 
 def add_input_options(p) -> None:
@@ -69,6 +93,31 @@ def add_evaluation_options(p) -> None:
     p.add_argument("--reuse-breaks", action="store_true",
                    help="reuse the full-sample breaks at every origin instead of finding them "
                         "again (faster; results are labelled optimistic)")
+
+
+def add_chart_options(p) -> None:
+    """How values are labelled and drawn (the report and the forecast chart)."""
+    p.add_argument("--units", metavar="TEXT",
+                   help="units of the values, e.g. 'orders a month' or 'EUR million', written "
+                        "on every value axis and in the sentences (default: the series name)")
+    p.add_argument("--log-scale", action="store_true",
+                   help="draw value axes on a log scale (steady exponential growth becomes a "
+                        "straight line); needs positive values")
+
+
+def check_log_scale(args, series) -> None:
+    """Refuse --log-scale for a series with a value at or below zero, naming the period."""
+    if not getattr(args, "log_scale", False):
+        return
+    bad = [i for i, v in enumerate(series.values) if not v > 0]
+    if bad:
+        raise InputError(f"option --log-scale: needs positive values; {series.label(bad[0])} "
+                         f"is {series.values[bad[0]]:g}")
+
+
+def add_progress_option(p) -> None:
+    p.add_argument("--quiet", action="store_true",
+                   help="no progress bar on standard error (it is drawn only on a terminal)")
 
 
 def add_output_options(p, output_help: str = "folder for the output files") -> None:

@@ -20,6 +20,8 @@ def register(sub) -> None:
     options.add_model_options(p)
     options.add_break_options(p)
     options.add_evaluation_options(p)
+    options.add_chart_options(p)
+    options.add_progress_option(p)
     p.add_argument("--output", metavar="DIR", required=True,
                    help="folder for the report files (created when missing)")
     p.add_argument("--json", action="store_true",
@@ -36,22 +38,28 @@ def _settings(args) -> dict:
             "reuse_breaks": args.reuse_breaks}
 
 
-def produce_report(series, folder, *, source_name: str | None = None, **settings) -> dict:
+def produce_report(series, folder, *, source_name: str | None = None, units: str | None = None,
+                   log_scale: bool = False, quiet: bool = True, **settings) -> dict:
     """Run ``analyze`` on ``series`` with ``settings`` and write the report into ``folder``;
-    returns {output name: path}."""
+    returns {output name: path}. A progress bar shows on a terminal unless ``quiet``."""
     from ..analysis import analyze
     from ..report import write_report
+    from .progress import StageBar
 
     folder = options.check_output_folder(folder)
-    analysis = analyze(series, **settings)
-    return write_report(analysis, folder, source_name=source_name)
+    analysis = analyze(series, progress=StageBar("rolling origin", "origins", quiet=quiet),
+                       **settings)
+    return write_report(analysis, folder, source_name=source_name, units=units,
+                        log_scale=log_scale, progress=StageBar("report", "parts", quiet=quiet))
 
 
 def run(args) -> int:
     folder = options.check_output_folder(args.output)
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
+    options.check_log_scale(args, series)
     written = produce_report(series, folder, source_name=Path(args.file).name,
+                             units=args.units, log_scale=args.log_scale, quiet=args.quiet,
                              shape=spec.shape, seasonality=spec.seasonality,
                              season_length=spec.season_length, **_settings(args))
     if args.json:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from .. import numformat
 from . import options
 from .text import fmt, table
 
@@ -48,14 +49,15 @@ def run(args) -> int:
 
 def _interval(g: dict, key: str) -> str:
     lo, hi = g.get(key + "_ci95") or (None, None)
-    return f"{fmt(lo, 1)} to {fmt(hi, 1)}" if lo is not None and hi is not None else "-"
+    return numformat.interval(lo, hi, numformat.percent, missing="-")
 
 
 def pvalue(p) -> str:
     """'p = 0.079', 'p < 0.001' or 'p not available'."""
     if p is None:
         return "p not available"
-    return "p < 0.001" if p < 0.001 else f"p = {p:.3f}"
+    text = numformat.pvalue(p)
+    return f"p {text}" if text.startswith("<") else f"p = {text}"
 
 
 def render(series, b, growth: dict | None = None) -> str:
@@ -71,10 +73,12 @@ def render(series, b, growth: dict | None = None) -> str:
         for x in b.breaks:
             lo90, hi90 = (series.label(int(p)) for p in x.ci90)
             lo95, hi95 = (series.label(int(p)) for p in x.ci95)
-            slope = (f"{x.slope_change_pct:+.2f} pp/period" if log and x.slope_change_pct is not None
-                     else f"{x.slope_change:+,.4g}/period")
-            rows.append([x.label, f"{lo90} to {hi90}", f"{lo95} to {hi95}", f"{x.jump:+,.4g}",
-                         slope, fmt(x.f_statistic)])
+            slope = (f"{numformat.points(x.slope_change_pct, '-')} pp/period"
+                     if log and x.slope_change_pct is not None
+                     else f"{numformat.signed(x.slope_change, '-')}/period")
+            rows.append([x.label, f"{lo90} to {hi90}", f"{lo95} to {hi95}",
+                         numformat.signed(x.jump, "-"), slope,
+                         numformat.statistic(x.f_statistic, "-")])
         lines.append(f"breaks found: {len(b.breaks)} (each is the first period of a new regime)")
         lines.append(table(["break", "90% interval", "95% interval", "jump (units)",
                             "growth change", "F"], rows))
@@ -82,15 +86,15 @@ def render(series, b, growth: dict | None = None) -> str:
         lines.append("breaks found: none")
     t = b.tests
     lines += ["", "tests:"]
-    lines.append(f"  sup-F, no break against one: F = {fmt(t.supf.statistic)}, "
+    lines.append(f"  sup-F, no break against one: F = {numformat.statistic(t.supf.statistic)}, "
                  f"{pvalue(t.supf.p_value)} (shortest regime {t.supf.trim_share:.0%} of "
                  f"the series)")
     for step in t.sequential:
         where = f" (best at {series.label(step.position)})" if step.position is not None else ""
         lines.append(f"  sup-F({step.breaks_before + 1}|{step.breaks_before}): "
-                     f"F = {fmt(step.statistic)}, {pvalue(step.p_value)}{where}")
+                     f"F = {numformat.statistic(step.statistic)}, {pvalue(step.p_value)}{where}")
     for ev in t.chow:
-        lines.append(f"  Chow test at event {ev.event} ({ev.label}): F = {fmt(ev.statistic)}, "
+        lines.append(f"  Chow test at event {ev.event} ({ev.label}): F = {numformat.statistic(ev.statistic)}, "
                      f"{pvalue(ev.p_value)}")
     for c in t.cusum:
         where = (f"leaves its 5% band at {series.label(c.first_crossing)}"
@@ -103,10 +107,11 @@ def render(series, b, growth: dict | None = None) -> str:
     per_regime = (growth or {}).get("segments") or [{} for _ in b.segments]
     for s, g in zip(b.segments, per_regime):
         g = g.get("growth", {})
-        step = (f"{s.growth_pct:+.2f}%" if s.growth_pct is not None else f"{s.slope:+,.4g}")
+        step = (numformat.percent(s.growth_pct, sign=True) if s.growth_pct is not None
+                else numformat.signed(s.slope, "-"))
         year = g.get("annualised_pct")
         rows.append([f"{s.start_label} to {s.end_label}", str(s.n), fmt(s.level), step,
-                     f"{year:+.1f}%" if year is not None else "-",
+                     numformat.percent(year, "-", sign=True),
                      _interval(g, "annualised_pct")])
     lines.append(table(["regime", "periods", "trend level at start",
                         "growth per period" if log else "slope per period",
@@ -114,7 +119,7 @@ def render(series, b, growth: dict | None = None) -> str:
     for c in (growth or {}).get("changes", []):
         ch = c.get("annualised_pct_change")
         if ch is not None:
-            lines.append(f"  growth change at {c['label']}: {ch:+.1f} points a year "
+            lines.append(f"  growth change at {c['label']}: {numformat.points(ch)} points a year "
                          f"(95% interval {_interval(c, 'annualised_pct_change')}), Wald "
                          f"{pvalue(c.get('p_value'))}")
     notes = list(b.notes)

@@ -4,18 +4,18 @@ from __future__ import annotations
 
 import math
 
+from .. import numformat
+
 
 def fmt(x, digits: int | None = None) -> str:
-    """A number rounded for reading: about four significant figures, thousands separated."""
-    if x is None:
-        return "-"
-    x = float(x)
-    if not math.isfinite(x):
-        return "-"
+    """A number rounded for reading by the one rule of ``regimetrend.numformat`` (``digits``
+    fixes the decimals instead); ``-`` when missing."""
     if digits is None:
-        ax = abs(x)
-        digits = 0 if ax >= 1000 else 1 if ax >= 100 else 2 if ax >= 1 else 3
-    return f"{x:,.{digits}f}"
+        return numformat.number(x, missing="-")
+    if x is None or not math.isfinite(float(x)):
+        return "-"
+    text = f"{float(x):,.{digits}f}"
+    return "0" if text.lstrip("-").strip("0.,") == "" else text
 
 
 def table(header: list[str], rows: list[list[str]]) -> str:

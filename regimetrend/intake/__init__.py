@@ -37,8 +37,8 @@ Modules, in data-flow order (each imports only those above it): ``wording`` (sho
 messages), ``values`` (value cells), ``dates`` (date forms; the public ``parse_date`` and
 ``parse_dates``), ``calendar`` (frequency words, inference, regular calendar), ``validate``
 (checks later stages ask for), ``table`` (the raw table), ``marks`` (the decimal mark of a
-text file), ``text_file``/``excel``/``parquet`` (one reader per format), ``source`` (which reader), ``columns`` (choosing the date and value
-columns), ``load`` (``load_series``).
+text file), ``text_file``/``excel``/``parquet`` (one reader per format), ``source`` (which
+reader), ``columns`` (choosing the date and value columns), ``load`` (``load_series``).
 """
 
 from .calendar import FREQUENCY_WORDS, parse_frequency

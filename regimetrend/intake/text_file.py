@@ -64,11 +64,14 @@ def decode(raw: bytes, name: str) -> str:
     head = raw[:4096]
     if b"\x00" in head:
         even, odd = head[0::2].count(0), head[1::2].count(0)
-        encoding = "utf-16-le" if odd > 0.4 * len(head) / 2 and even == 0 else \
-            "utf-16-be" if even > 0.4 * len(head) / 2 and odd == 0 else None
-        if encoding is not None:
+        wide = None  # UTF-16 without a byte-order mark: every other byte of ASCII text is zero
+        if even == 0 and odd > 0.2 * len(head):
+            wide = "utf-16-le"
+        elif odd == 0 and even > 0.2 * len(head):
+            wide = "utf-16-be"
+        if wide is not None:
             try:
-                return raw.decode(encoding)
+                return raw.decode(wide)
             except UnicodeDecodeError:
                 pass
         raise InputError(f"file {name!r} holds zero bytes, so it is not plain text (a "

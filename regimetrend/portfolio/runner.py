@@ -20,7 +20,6 @@ from . import ranking, summary
 from .engines import make_engine
 from .inputs import read_portfolio
 from .overrides import read_overrides, with_changes
-from .progress import Progress
 from .store import Store, result_key
 from .worker import LEVELS, Job, Record, report_chunk, run_chunk
 
@@ -78,12 +77,13 @@ def parse_reports(text) -> tuple[str, int]:
 def run_portfolio(source, output, *, id_columns=(), date_column=None, value_column=None,
                   sheet=None, load_options=None, settings: Settings | None = None,
                   settings_file=None, level="full", engine="local", workers=None,
-                  scheduler=None, reports="none", formats=summary.FORMATS, quiet=True,
-                  stream=None, engine_object=None) -> RunSummary:
+                  scheduler=None, reports="none", formats=summary.FORMATS, progress=None,
+                  engine_object=None) -> RunSummary:
     """Analyse every series of ``source`` into the folder ``output``; see the module docstring.
 
     ``load_options``: ``load_series`` options shared by every series (frequency, decimal,
     fill_missing). ``settings``: one ``Settings`` for all; ``settings_file`` overrides it per id.
+    ``progress(done, total)``: called as series finish (the command passes its progress bar).
     ``engine_object``: an engine already made (tests pass a Dask cluster of threads)."""
     from .page import write_page
 
@@ -121,7 +121,7 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
         todo_reports = []
 
     rows: list[dict | None] = [None] * len(jobs)
-    progress = Progress(len(todo), stream=stream, quiet=quiet)
+    done = 0
     eng = engine_object or (make_engine(engine, workers, scheduler) if todo or todo_reports
                             else None)
     n_reports = 0
@@ -135,8 +135,9 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
                     if rec.report_files:
                         store.write_report(rec.id, rec.key, rec.report_files)
                         n_reports += 1
-                progress.advance(len(records))
-            progress.close()
+                done += len(records)
+                if progress is not None:
+                    progress(done, len(todo))
             for idx in reused:
                 rows[idx] = store.read_result(jobs[idx].task.id)["row"]
             chosen = _report_jobs(mode, top, jobs, rows, store) + todo_reports

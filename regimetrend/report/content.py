@@ -3,16 +3,26 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from itertools import pairwise
 
 import numpy as np
 
-from . import charts
+from .. import numformat
 from ..cautions import assemble
+from . import charts
 from .extract import ReportData
 from .html import Chart, Fact
-from .models import growth_model
+from .models import candidate_name, growth_model, recommended_candidate, strategy_words
 from .summary import summary_sentences
-from .tables import Table, break_rows, dig, forecast_rows, growth_rows, num, ranking_rows
+from .tables import (
+    Table,
+    break_rows,
+    dig,
+    forecast_rows,
+    growth_rows,
+    num,
+    ranking_rows,
+)
 
 
 @dataclass(frozen=True)
@@ -32,33 +42,84 @@ def _band(label, fc) -> charts.Band:
     return charts.Band(label, fc.starts, p.mean, p.lower80, p.upper80, p.lower95, p.upper95)
 
 
-def _series_chart(d: ReportData) -> Chart:
+def _seasonal(d: ReportData) -> bool:
+    return getattr(d.spec, "seasonality", "none") != "none"
+
+
+def zoom_start(n: int, last_break: int | None, horizon: int, season: int) -> int | None:
+    """First position of the zoomed panel: the latest regime with a little context, at least
+    three horizons or two seasons, at most six horizons or four seasons; None when that would
+    show most of the history anyway."""
+    least = max(3 * horizon, 2 * season, 12)
+    most = max(6 * horizon, 4 * season, 36)
+    span = least if last_break is None else n - last_break + max(season, 4)
+    span = min(max(span, least), most)
+    return None if span >= 0.8 * n else n - span
+
+
+def _regime_bands(d: ReportData, line) -> list:
     s = d.series
-    regimes = []
     edges = [0] + [b.position for b in d.breaks] + [s.n]
-    for a, b in zip(edges[:-1], edges[1:]):
-        regimes.append((s.starts[a], s.starts[min(b, s.n - 1)]))  # shaded up to the next
-    spans = [(s.starts[b.low], s.starts[b.high]) for b in d.breaks
-             if b.low is not None and b.high is not None]
-    global_fit = (charts.Band("global trend, fitted", s.starts, d.global_fitted)
-                  if d.global_fitted is not None else None)
+    return [charts.Band("regime", s.starts[a:b], line[a:b]) for a, b in pairwise(edges)
+            if b > a]
+
+
+def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
+    s = d.series
+    seasonal = _seasonal(d)
+    trend = d.regime_trend if d.regime_trend is not None else d.regime_fitted
+    regime_bands = _regime_bands(d, trend) if trend is not None else []
+    gline = d.global_trend if d.global_trend is not None else d.global_fitted
+    global_trend = charts.Band("global", s.starts, gline) if gline is not None else None
+    seasonal_fit = (charts.Band("seasonal", s.starts, d.regime_fitted)
+                    if seasonal and d.regime_fitted is not None and d.regime_trend is not None
+                    else None)
+    forecast = _band("forecast", d.forecast) if d.forecast is not None else None
+    global_forecast = (_band("global", d.global_forecast)
+                       if d.global_forecast is not None and d.global_forecast is not d.forecast
+                       else None)
+    horizon = d.forecast.horizon if d.forecast is not None else 4
+    first = zoom_start(s.n, d.breaks[-1].position if d.breaks else None, horizon,
+                       s.frequency.season_length)
     shape = (d.growth or {}).get("shape") or "trend"
-    regime_fit = (charts.Band(f"regime trends ({shape}), fitted", s.starts, d.regime_fitted)
-                  if d.regime_fitted is not None and d.breaks else None)
-    forecasts = []
-    if d.forecast is not None:
-        forecasts.append(_band(f"recommended ({d.recommended or d.forecast.model})", d.forecast))
-    if d.global_forecast is not None and d.global_forecast is not d.forecast:
-        forecasts.append(_band("global trend", d.global_forecast))
-    png = charts.series_chart(s.starts, s.values, units=d.units, frequency=s.frequency.name,
-                              regimes=regimes, break_spans=spans, global_fit=global_fit,
-                              regime_fit=regime_fit, forecasts=forecasts,
-                              title=f"{s.name}: regimes, fits and forecasts")
-    return Chart("series_regimes", "The series, its regimes, fits and forecasts",
-                 "Actual values in black; regimes shaded; hatched spans are the 95% intervals "
-                 "of the break dates. The dashed line is one trend over all history, the solid "
-                 "line the trends of the regimes; bands are 80% and 95% prediction intervals.",
-                 png)
+    at_average = " (seasonal terms at their average)" if seasonal else ""
+    at_average = " (seasonal terms at average)" if seasonal else ""
+    labels = {"regime": f"{shape} trend of each regime{at_average}" if d.breaks else
+              f"{shape} trend{at_average}",
+              "global": "one global trend" + (", its forecast on the right" if first is not None
+                                              and global_forecast is not None else "")}
+    png = charts.series_chart(
+        s.starts, s.values, units=d.units, frequency=s.frequency,
+        breaks=[s.starts[b.position] for b in d.breaks],
+        break_spans=[(s.starts[b.low], s.starts[b.high]) for b in d.breaks
+                     if b.low is not None and b.high is not None],
+        regime_trends=regime_bands if d.breaks or d.regime_trend is not None else [],
+        global_trend=global_trend, seasonal_fit=seasonal_fit, forecast=forecast,
+        global_forecast=global_forecast, zoom_from=None if first is None else s.starts[first],
+        labels=labels, log_scale=log_scale, title=f"{s.name}: regimes, trends and forecast")
+    parts = ["Actual values in black."]
+    if d.breaks:
+        parts.append(f"Solid blue lines: the {shape} trend of each regime"
+                     + (", with the seasonal terms at their average" if seasonal else "") + "; "
+                     "orange lines mark the breaks (the first period of a new regime), hatched "
+                     "spans the 95% intervals of their dates.")
+    elif d.regime_trend is not None:
+        parts.append(f"Solid blue line: the {shape} trend"
+                     + (", with the seasonal terms at their average" if seasonal else "") + ".")
+    if global_trend is not None:
+        parts.append("Dashed purple: one trend over all history"
+                     + (" (with its forecast in the right panel)." if first is not None
+                        and global_forecast is not None else " and its forecast."))
+    if forecast is not None and d.forecast is not None:
+        words = strategy_words(recommended_candidate(d.evaluation)) or d.forecast.model
+        parts.append(f"Vermillion: the recommended forecast ({words}) with 80% and 95% "
+                     "prediction intervals (darker and lighter bands).")
+    if first is not None:
+        parts.append(f"The right panel zooms on the periods from {s.label(first)}"
+                     + (" and adds the regime model with its seasonal pattern (dotted)."
+                        if seasonal_fit is not None else "."))
+    return Chart("series_regimes", "The series, its regimes, trends and forecast",
+                 " ".join(parts), png)
 
 
 def _error_chart(d: ReportData) -> Chart | None:
@@ -67,17 +128,29 @@ def _error_chart(d: ReportData) -> Chart | None:
         return None
     s = d.series
     targets = np.asarray(t.targets)[:, 0]
-    lines = {f"global trend ({d.reference})": t.errors(d.reference)[:, 0]}
+    lines = {f"reference: {_name(d, d.reference)}": t.errors(d.reference)[:, 0]}
     if d.recommended != d.reference:
-        lines[f"recommended ({d.recommended})"] = t.errors(d.recommended)[:, 0]
+        lines[f"recommended: {_name(d, d.recommended)}"] = t.errors(d.recommended)[:, 0]
     png = charts.error_chart(s.starts[targets], lines, units=d.units,
-                             frequency=s.frequency.name, horizon_note=", one period ahead",
+                             frequency=s.frequency, horizon_note=", one period ahead",
                              title="Forecast errors on the rolling origin")
     return Chart("forecast_errors", "Forecast errors over time",
                  "One-period-ahead errors (actual minus forecast) of the global trend and of the "
                  "recommended strategy, each fitted only on the history before the period it "
                  "forecasts. Errors drifting away from zero show a trend that no longer holds.",
                  png)
+
+
+def _candidate(d: ReportData, name: str | None) -> dict | None:
+    for c in (d.evaluation or {}).get("candidates") or ():
+        if c.get("name") == name:
+            return c
+    return None
+
+
+def _name(d: ReportData, name: str | None) -> str | None:
+    """A candidate's readable name (``models.candidate_name``), or its key when unknown."""
+    return candidate_name(_candidate(d, name), [b.label for b in d.breaks]) or name
 
 
 def _cusum_chart(d: ReportData) -> Chart | None:
@@ -93,7 +166,7 @@ def _cusum_chart(d: ReportData) -> Chart | None:
     ols = c.get("method") == "ols"
     ylabel = ("cumulative sum of residuals,\nscaled by sigma sqrt(n) (no units)" if ols else
               "cumulative sum of standardised\nrecursive residuals (no units)")
-    png = charts.cusum_chart(s.starts[pos], path, lo, hi, frequency=s.frequency.name,
+    png = charts.cusum_chart(s.starts[pos], path, lo, hi, frequency=s.frequency,
                              ylabel=ylabel, title="CUSUM of the global trend")
     crossing = c.get("first_crossing")
     when = (f" It first leaves the band at {s.label(int(crossing))}." if crossing is not None
@@ -123,12 +196,20 @@ def _history_chart(d: ReportData) -> Chart | None:
                        "start at the last break, found again at each origin"))
     png = charts.history_chart(dates, [r["rmse"] for r in rows],
                                metric=f"rolling-origin RMSE ({d.units})",
-                               frequency=d.series.frequency.name, chosen=keep,
+                               frequency=d.series.frequency, chosen=keep,
                                points=points, title="How much history to keep")
-    return Chart("history_sweep", "Accuracy against the history kept",
-                 "Rolling-origin RMSE of the trend fitted from each fixed start date (the first "
-                 "point uses all history) and from the breaks. Lower is better; the dashed line "
-                 "marks the recommended start when history is cut.", png)
+    marks = {label for _, value, label in points if value is not None}
+    caption = ("Rolling-origin RMSE of the trend fitted from each fixed start date (blue "
+               "line; the first point uses all history)")
+    if marks:
+        caption += " and from the breaks (separate marks)"
+    caption += ". Lower is better."
+    if keep is not None:
+        caption += (f" The dashed vertical line marks the recommended start, "
+                    f"{d.series.frequency.label(keep)}.")
+    else:
+        caption += " All history is kept, so no start is marked."
+    return Chart("history_sweep", "Accuracy against the history kept", caption, png)
 
 
 def _horizon_chart(d: ReportData) -> Chart | None:
@@ -145,15 +226,19 @@ def _horizon_chart(d: ReportData) -> Chart | None:
     if d.reference and d.reference not in lines:
         ref = next((c for c in cands if c.get("name") == d.reference), None)
         if ref and ref.get("per_horizon"):
+            lines = dict(list(lines.items())[:charts.MAX_LEGEND - 1])
             lines[d.reference] = [m.get("rmse") for m in ref["per_horizon"]]
     if not lines or horizons is None:
         return None
+    lines = {_name(d, k): v for k, v in lines.items()}
     png = charts.horizon_chart(horizons, lines, metric=f"RMSE ({d.units})",
-                               highlight=d.recommended, reference=d.reference,
+                               highlight=_name(d, d.recommended),
+                               reference=_name(d, d.reference),
                                title="Accuracy by forecast horizon")
     return Chart("accuracy_by_horizon", "Accuracy by horizon for the candidates",
                  "Rolling-origin RMSE at each horizon for the best-ranked candidates and the "
-                 "global trend; the recommended strategy is drawn thicker.", png)
+                 "global trend (dashed purple); the recommended strategy is drawn thicker in "
+                 "vermillion.", png)
 
 
 def _growth_chart(d: ReportData) -> Chart | None:
@@ -167,7 +252,7 @@ def _growth_chart(d: ReportData) -> Chart | None:
         return None
     ci = [s["growth"].get("annualised_pct_ci95") or [None, None] for s in segs]
     png = charts.growth_chart(labels, vals, [c[0] for c in ci], [c[1] for c in ci],
-                              quantity="annualised growth (% a year)",
+                              quantity="growth (% a year)",
                               title="Growth by regime")
     model = growth_model(g)
     model_text = f" Model: {model}, as in the growth table." if model else ""
@@ -185,9 +270,10 @@ def _facts(d: ReportData) -> list[Fact]:
         v = last["growth"].get("annualised_pct")
         ci = last["growth"].get("annualised_pct_ci95") or [None, None]
         if v is not None:
-            sub = (f"95%: {ci[0]:.1f}% to {ci[1]:.1f}%" if None not in ci else "")
+            sub = (f"95%: {numformat.interval(ci[0], ci[1], numformat.percent)}"
+                   if None not in ci else "")
             facts.append(Fact(f"growth since {last['start_label']} ({g.get('shape')} trend)",
-                              f"{v:.1f}% a year", sub))
+                              f"{numformat.percent(v)} a year", sub))
     if d.breaks:
         b = d.breaks[-1]
         sub = (f"95%: {d.label(b.low)} to {d.label(b.high)}" if b.low is not None else "")
@@ -201,13 +287,18 @@ def _facts(d: ReportData) -> list[Fact]:
                           f"95%: {num(row['lower95'])} to {num(row['upper95'])}"))
     rec = d.recommended
     if rec:
-        facts.append(Fact("recommended strategy", rec, ""))
+        facts.append(Fact("recommended strategy", _name(d, rec) or rec, ""))
     return facts
 
 
-def build(d: ReportData) -> Content:
+def build(d: ReportData, *, log_scale: bool = False, progress=None) -> Content:
+    """Every part of the report; ``log_scale`` draws value axes on a log scale,
+    ``progress(done, total)`` is called after each chart."""
     s = d.series
-    made = [_series_chart(d)]
+    steps = 7
+    made = [_series_chart(d, log_scale)]
+    if progress is not None:
+        progress(1, steps)
     missing = []
     for name, fn, why in (("forecast errors", _error_chart, "no rolling-origin evaluation"),
                           ("CUSUM path", _cusum_chart, "the break search gave no CUSUM path"),
@@ -219,11 +310,15 @@ def build(d: ReportData) -> Content:
             missing.append(f"The {name} chart is not shown: {why}.")
         else:
             made.append(chart)
+        if progress is not None:
+            progress(len(made) + len(missing), steps)
     tables: list[Table] = []
     if d.growth:
         tables.append(growth_rows(d.growth))
     if d.evaluation and d.evaluation.get("candidates"):
-        tables.append(ranking_rows(d.evaluation))
+        names = {c.get("name"): _name(d, c.get("name"))
+                 for c in d.evaluation.get("candidates") or ()}
+        tables.append(ranking_rows(d.evaluation, names))
     if d.forecast is not None:
         tables.append(forecast_rows(d.forecast.to_dict()))
     if d.breaks_dict and d.breaks_dict.get("breaks"):
@@ -237,6 +332,8 @@ def build(d: ReportData) -> Content:
     source = f"{d.source_name}: " if d.source_name else ""
     subtitle = (f"{source}{s.n} {s.frequency.name} periods, {s.label(0)} to "
                 f"{s.label(s.n - 1)}; {spec_text}")
+    if progress is not None:
+        progress(steps, steps)
     return Content(title=f"{s.name}: growth regimes and forecast", subtitle=subtitle,
                    facts=_facts(d), summary=summary_sentences(d), charts=made, tables=tables,
                    cautions=cautions, missing=missing)

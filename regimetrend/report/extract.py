@@ -54,6 +54,8 @@ class ReportData:
     regime_fitted: np.ndarray | None
     global_fitted: np.ndarray | None
     cautions: tuple[str, ...] = field(default=())
+    regime_trend: np.ndarray | None = None  # regime_fitted with seasonal terms at their average
+    global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -137,8 +139,9 @@ def _fitted(line, n: int):
     return arr if arr.shape == (n,) else None
 
 
-def gather(analysis, source_name: str | None = None) -> ReportData:
-    """Read everything the report shows from ``analysis``."""
+def gather(analysis, source_name: str | None = None, units: str | None = None) -> ReportData:
+    """Read everything the report shows from ``analysis``; ``units`` of the values, when the
+    analyst names them (the series name otherwise)."""
     series = _get(analysis, "series")
     if not isinstance(series, Series):
         raise TypeError("write_report needs an Analysis (with its series)")
@@ -154,7 +157,7 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
     return ReportData(
         series=series, spec=spec,
         source_name=source_name or _get(analysis, "source") or "",
-        units=_get(analysis, "units") or series.name,
+        units=units or _get(analysis, "units") or series.name,
         result=_to_dict(analysis) or {}, growth=_to_dict(growth_obj), growth_obj=growth_obj,
         breaks=_breaks(breakset, series), breaks_dict=_to_dict(breakset),
         sup_f_p=_sup_f(breakset), cusum=_cusum(analysis),
@@ -162,4 +165,6 @@ def gather(analysis, source_name: str | None = None) -> ReportData:
         evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
         reference=_get(evaluation, "reference"), recommended=rec,
         forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),
-        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions)
+        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions,
+        regime_trend=_fitted(_get(growth_obj, "trend"), series.n),
+        global_trend=_fitted(_get(analysis, "global_trend"), series.n))

@@ -49,6 +49,7 @@ td.t, th.t { text-align: left; }
 td.ci { color: #333; font-size: .95em; }
 tr.rec td { font-weight: 600; background: #eef5fb; }
 p.note { font-size: .85em; color: var(--muted); }
+details summary { cursor: pointer; color: var(--accent); font-size: .9em; margin: 4px 0; }
 ul.cautions li { margin-bottom: 6px; }
 dl.methods dt { font-weight: 600; margin-top: 10px; }
 dl.methods dd { margin: 2px 0 0 0; }
@@ -98,27 +99,37 @@ def _value_span(c, row) -> str:
 
 def _table_html(table: Table) -> str:
     groups = _groups(table.columns)
-    head = "".join(f'<th class="{"t" if g[0].kind == "text" else "n"}" scope="col">'
+    head = "".join(f'<th class="{"t" if g[0].kind in ("text", "date") else "n"}" scope="col">'
                    f'{esc("95% interval" if len(g) == 2 else g[0].heading)}</th>'
                    for g in groups)
-    body = []
-    for row in table.rows:
-        cls = ' class="rec"' if row.get("recommended") == "yes" else ""
-        cells = []
-        for g in groups:
-            kind = "t" if g[0].kind == "text" else "n"
-            if len(g) == 2:
-                inner = (_value_span(g[0], row) + " to " + _value_span(g[1], row)
-                         if row.get(g[0].key) is not None or row.get(g[1].key) is not None
-                         else esc(fmt(None, g[0].kind)))
-                cells.append(f'<td class="{kind} ci">{inner}</td>')
-            else:
-                cells.append(f'<td class="{kind}">{_value_span(g[0], row)}</td>')
-        body.append(f"<tr{cls}>{''.join(cells)}</tr>")
+    shown = table.rows if table.fold_after is None else table.rows[:table.fold_after]
+    rest = table.rows[len(shown):]
+
+    def grid(rows) -> str:
+        return (f'<div class="scroll"><table><thead><tr>{head}</tr></thead>'
+                f'<tbody>{"".join(_row_html(groups, r) for r in rows)}</tbody></table></div>')
+
+    folded = (f'<details><summary>The other {len(rest)} candidates</summary>{grid(rest)}'
+              f'</details>' if rest else "")
     note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
     return (f'<section class="table" id="table-{esc(table.name)}"><h3>{esc(table.title)}</h3>'
-            f'<div class="scroll"><table><thead><tr>{head}</tr></thead>'
-            f'<tbody>{"".join(body)}</tbody></table></div>{note}</section>')
+            f'{grid(shown)}{folded}{note}</section>')
+
+
+def _row_html(groups, row) -> str:
+    """One table row; a ``*_low``/``*_high`` pair shows as one interval cell."""
+    cls = ' class="rec"' if row.get("recommended") == "yes" else ""
+    cells = []
+    for g in groups:
+        kind = "t" if g[0].kind in ("text", "date") else "n"
+        if len(g) == 2:
+            inner = (_value_span(g[0], row) + " to " + _value_span(g[1], row)
+                     if row.get(g[0].key) is not None or row.get(g[1].key) is not None
+                     else esc(fmt(None, g[0].kind)))
+            cells.append(f'<td class="{kind} ci">{inner}</td>')
+        else:
+            cells.append(f'<td class="{kind}">{_value_span(g[0], row)}</td>')
+    return f"<tr{cls}>{''.join(cells)}</tr>"
 
 
 def _chart_html(chart: Chart) -> str:

@@ -83,3 +83,40 @@ def forecast_shape(candidate: dict | None) -> str | None:
     if not candidate:
         return None
     return candidate.get("last_shape") or candidate.get("shape")
+
+
+ORDINAL = {2: "second", 3: "third", 4: "fourth", 5: "fifth"}
+
+
+def candidate_name(candidate: dict | None, break_labels=()) -> str | None:
+    """A candidate's short name a manager can read, e.g. "linear trend from the third-latest
+    break (1987)" for "truncated linear from break 3 before the end". ``break_labels`` are the
+    full-sample break dates in time order, to date a start given as a break."""
+    if not candidate:
+        return None
+    kind = candidate.get("strategy")
+    shape = candidate.get("shape") or "trend"
+    last = candidate.get("last_shape")
+    if kind == "global":
+        return f"one {shape} trend, all history"
+    if kind == "separate":
+        if last and last != shape:
+            return f"{shape} trends per regime, {last} in the latest"
+        return f"{shape} trend per regime"
+    if kind == "continuous":
+        return f"{shape} trend joined at the breaks"
+    if kind == "window-average":
+        return f"average of {shape} trends from several start dates"
+    if kind == "truncated":
+        start = str(candidate.get("start") or "last break")
+        k = candidate.get("from_break")
+        if start.startswith("break ") and " before the end" in start:
+            k = int(start.split()[1])
+        elif start == "last break":
+            k = 1
+        if isinstance(k, int) and start[:1].isalpha() and not start.startswith("event"):
+            which = "latest break" if k == 1 else f"{ORDINAL.get(k, f'{k}th')}-latest break"
+            when = f" ({break_labels[-k]})" if 0 < k <= len(break_labels) else ""
+            return f"{shape} trend from the {which}{when}"
+        return f"{shape} trend from {start}"
+    return candidate.get("name")

@@ -8,12 +8,14 @@ JSON cannot disagree.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
-# how a column reads: text, int, pct (percent, 2 decimals), num (4 significant digits),
-# pvalue, points (percentage points)
-KINDS = ("text", "int", "pct", "num", "pvalue", "points")
+from .. import numformat
+
+# how a column reads (rounded by ``regimetrend.numformat``): text, int, pct (percent), num (plain
+# number), pvalue, points (percentage points), stat (a test statistic), date (ISO text; a date
+# in the workbook)
+KINDS = ("text", "int", "pct", "num", "pvalue", "points", "stat", "date")
 
 
 @dataclass(frozen=True)
@@ -32,6 +34,7 @@ class Table:
     columns: tuple[Column, ...]
     rows: tuple[dict, ...]
     note: str = ""
+    fold_after: int | None = None  # the page shows this many rows, the rest folded away
 
     def matrix(self) -> list[list]:
         """Header row then raw values, in column order."""
@@ -56,27 +59,35 @@ def _ci(growth: dict, name: str, i: int):
     return ci[i]
 
 
+def _interval_columns(key: str, heading: str, kind: str) -> list[Column]:
+    """A figure and its 95% interval ends, each with a heading of its own (unique in a CSV
+    header; the HTML page shows the pair as one "95% interval" cell)."""
+    return [Column(key, heading, kind), Column(f"{key}_low", f"{heading}, 95% low", kind),
+            Column(f"{key}_high", f"{heading}, 95% high", kind)]
+
+
 def growth_rows(growth: dict) -> Table:
-    """Growth by regime (``GrowthTable.to_dict()``), with the change from the regime before."""
+    """Growth by regime (``GrowthTable.to_dict()``), with the change from the regime before.
+
+    Every "%" in the table has one base, the one the growth table's headline states; an annual
+    series shows no per-period columns (a period is a year)."""
     shape = growth.get("shape", "linear")
     segments = growth.get("segments", [])
     changes = {c["break"] + 1: c for c in growth.get("changes", [])}
+    annual = float(growth.get("periods_per_year") or 0) == 1.0
     cols = [Column("regime", "Regime", "int"), Column("from", "From", "text"),
             Column("to", "To", "text"), Column("periods", "Periods", "int")]
-    figures = [("per_period_pct", "Growth per period, %", "pct"),
-               ("annualised_pct", "Annualised growth, %", "pct"),
-               ("annualised_units", "Yearly increase, units", "num")]
+    figures = [] if annual else [("per_period_pct", "Growth per period, %", "pct")]
+    figures += [("annualised_pct", "Growth a year, %", "pct"),
+                ("annualised_units", "Increase a year, units", "num")]
     if shape == "exponential":
         figures.append(("doubling_time_years", "Doubling time, years", "num"))
-    elif shape == "linear":
-        figures.append(("annualised_pct_of_start", "Yearly increase, % of start level", "pct"))
-    else:
-        figures.append(("average_annualised_pct", "Average annual growth over regime, %", "pct"))
     for key, heading, kind in figures:
-        cols += [Column(key, heading, kind), Column(f"{key}_low", "95% low", kind),
-                 Column(f"{key}_high", "95% high", kind)]
-    cols += [Column("change_points", "Change from the regime before, points", "points"),
-             Column("change_p_value", "p-value, same growth (Wald)", "pvalue")]
+        cols += _interval_columns(key, heading, kind)
+    cols += [Column("change_points", "Change of growth a year from the regime before, points",
+                    "points"),
+             Column("change_p_value", "p-value, same growth before and after (Wald)",
+                    "pvalue")]
     rows = []
     for seg in segments:
         g = seg.get("growth", {})
@@ -90,21 +101,29 @@ def growth_rows(growth: dict) -> Table:
         row["change_points"] = change.get("annualised_pct_change") if change else None
         row["change_p_value"] = change.get("p_value") if change else None
         rows.append(row)
-    note = f"Headline annualised growth: {growth.get('headline', '')}. " \
-           f"Intervals: {growth.get('intervals', '')}; covariance: {growth.get('covariance', '')}."
+    note = (f"Every % here: {growth.get('headline', 'annualised growth')}. "
+            f"Intervals: {growth.get('intervals', '')}; covariance: "
+            f"{growth.get('covariance', '')}.")
     return Table("growth_by_regime", "Growth by regime", tuple(cols), tuple(rows), note)
 
 
-def ranking_rows(evaluation: dict) -> Table:
-    """The candidate ranking (``Evaluation.to_dict()['candidates']``)."""
+LEADING = 5  # candidates shown before the rest of the ranking is folded away
+
+
+def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
+    """The candidate ranking (``Evaluation.to_dict()['candidates']``); ``names`` maps each
+    candidate's key to the words a manager reads. The page shows the leading candidates and
+    folds the rest; the CSV and the workbook keep every row."""
     recommended = dig(evaluation, "recommended", "name")
+    names = names or {}
     cols = (Column("rank", "Rank", "int"), Column("candidate", "Candidate", "text"),
             Column("recommended", "Recommended", "text"), Column("rmse", "RMSE", "num"),
             Column("mae", "MAE", "num"), Column("mape", "MAPE, %", "pct"),
-            Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage", "pct"),
-            Column("gain_pct", "RMSE gain over global, %", "pct"),
+            Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage, %", "pct"),
+            Column("gain_pct", "RMSE below the global trend's, %", "pct"),
             Column("dm_p_value", "p-value, beats global (Diebold-Mariano, one-sided)",
-                   "pvalue"))
+                   "pvalue"),
+            Column("key", "Name in report.json", "text"))
     rows = []
     for c in evaluation.get("candidates", []):
         m = c.get("metrics", {})
@@ -112,21 +131,23 @@ def ranking_rows(evaluation: dict) -> Table:
         cov = m.get("coverage95")
         vs = c.get("vs_global") or {}
         p = vs.get("p_value_better", vs.get("p_value"))
-        rows.append({"rank": c.get("rank"), "candidate": c.get("name"),
+        rows.append({"rank": c.get("rank"), "candidate": names.get(c.get("name"), c.get("name")),
                      "recommended": "yes" if c.get("name") == recommended else "",
                      "rmse": m.get("rmse"), "mae": m.get("mae"), "mape": m.get("mape"),
                      "mase": m.get("mase"), "coverage95": None if cov is None else 100.0 * cov,
-                     "gain_pct": None if gain is None else 100.0 * gain, "dm_p_value": p})
+                     "gain_pct": None if gain is None else 100.0 * gain, "dm_p_value": p,
+                     "key": c.get("name")})
     note = "Rolling-origin forecasts, errors in original units; lower is better for RMSE, MAE, " \
            "MAPE and MASE."
     if evaluation.get("optimistic_note"):
         note += " " + str(evaluation["optimistic_note"]).capitalize() + "."
-    return Table("candidate_ranking", "Candidate ranking", cols, tuple(rows), note)
+    return Table("candidate_ranking", "Candidate ranking", cols, tuple(rows), note,
+                 fold_after=LEADING)
 
 
 def forecast_rows(forecast: dict, title: str = "Forecast with intervals") -> Table:
     """The forecast (``Forecast.to_dict()``) with 80% and 95% intervals."""
-    cols = (Column("label", "Period", "text"), Column("date", "Period start", "text"),
+    cols = (Column("label", "Period", "text"), Column("date", "Period start", "date"),
             Column("mean", "Forecast (mean)", "num"), Column("median", "Median", "num"),
             Column("lower80", "80% low", "num"), Column("upper80", "80% high", "num"),
             Column("lower95", "95% low", "num"), Column("upper95", "95% high", "num"))
@@ -136,46 +157,63 @@ def forecast_rows(forecast: dict, title: str = "Forecast with intervals") -> Tab
 
 
 def break_rows(breaks: dict, series_labels: dict | None = None) -> Table:
-    """The breaks found (``BreakSet.to_dict()``): date and its 95% interval."""
+    """The breaks found (``BreakSet.to_dict()``): date, its 95% interval, and one F statistic
+    per break: the partial F of that break given the others (the sup-F tests that decide how
+    many breaks there are are reported with the summary)."""
     cols = (Column("break", "Break", "int"), Column("label", "First period of new regime", "text"),
+            Column("date", "Start date of new regime", "date"),
             Column("low", "95% interval, from", "text"),
-            Column("high", "95% interval, to", "text"))
+            Column("high", "95% interval, to", "text"),
+            Column("f_statistic", "F, this break given the others", "stat"))
     rows = []
     for i, b in enumerate(breaks.get("breaks", []) if isinstance(breaks, dict) else []):
         ci = b.get("ci95_labels") or b.get("ci95") or [None, None]
         rows.append({"break": i + 1, "label": b.get("label") or b.get("date"),
-                     "low": ci[0], "high": ci[1]})
-    return Table("breaks", "Breaks found", cols, tuple(rows))
+                     "date": b.get("date"), "low": ci[0], "high": ci[1],
+                     "f_statistic": b.get("f_statistic")})
+    return Table("breaks", "Breaks found", cols, tuple(rows),
+                 "F: the partial F statistic of the break given the other breaks, scaled to "
+                 "allow for autocorrelated errors when the analysis does.")
+
+
+# Excel number formats by column kind (the workbook keeps full precision; these set how a cell
+# shows it)
+EXCEL_FORMATS = {"int": "#,##0", "num": "#,##0.00", "pct": "0.00", "points": "+0.00;-0.00;0",
+                 "pvalue": "0.000", "stat": "0.00", "date": "yyyy-mm-dd"}
+
+
+def excel_value(value, kind: str):
+    """A cell value for the workbook: dates (ISO text) as dates, others as they are."""
+    if kind == "date" and isinstance(value, str):
+        from datetime import date
+
+        try:
+            return date.fromisoformat(value[:10])
+        except ValueError:
+            return value
+    return value
 
 
 def fmt(value, kind: str) -> str:
-    """A value rounded for reading (the HTML page); empty for missing values."""
+    """A value rounded for reading (the HTML page) by the rule of ``regimetrend.numformat``;
+    an en dash for missing values."""
     if value is None:
-        return "\u2013"
-    if kind in ("text",):
+        return numformat.MISSING
+    if kind in ("text", "date") or isinstance(value, str):
         return str(value)
-    if isinstance(value, str):
-        return value
-    v = float(value)
-    if not math.isfinite(v):
-        return "\u2013"
     if kind == "int":
-        return f"{int(round(v)):d}"
-    if kind in ("pct", "points"):
-        return f"{v:+.2f}" if kind == "points" else f"{v:.2f}"
+        return numformat.count(value)
+    if kind == "pct":
+        return numformat.percent(value, symbol=False)
+    if kind == "points":
+        return numformat.points(value)
     if kind == "pvalue":
-        return "<0.0001" if v < 1e-4 else f"{v:.4f}"
-    return num(v)
+        return numformat.pvalue(value)
+    if kind == "stat":
+        return numformat.statistic(value)
+    return numformat.number(value)
 
 
 def num(v: float) -> str:
-    """Four significant digits, without exponent for ordinary business magnitudes."""
-    if v == 0:
-        return "0"
-    a = abs(v)
-    if a >= 1e9 or a < 1e-3:
-        return f"{v:.3e}"
-    digits = max(0, 3 - int(math.floor(math.log10(a))))
-    if digits and abs(round(v, digits)) >= 10 ** (4 - digits):  # 999.96 rounds up to 1,000
-        digits -= 1
-    return f"{v:,.{digits}f}"
+    """A plain number by the report's one rounding rule (``regimetrend.numformat.number``)."""
+    return numformat.number(v)

@@ -22,6 +22,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+from datetime import date
 from pathlib import Path
 
 from ..errors import InputError
@@ -30,7 +31,7 @@ from . import html
 from .content import Content, build
 from .extract import gather
 from .safety import cell, inert_text
-from .tables import Table
+from .tables import EXCEL_FORMATS, Table, excel_value
 
 
 def table_csv(table: Table) -> str:
@@ -71,12 +72,17 @@ def workbook_bytes(content: Content) -> bytes:
             c.alignment = Alignment(wrap_text=True, vertical="top")
     for table in content.tables:
         ws = wb.create_sheet(table.name[:31])
+        kinds = [c.kind for c in table.columns]
         for r, row in enumerate(table.matrix(), start=1):
             for col, v in enumerate(row, start=1):
                 target = ws.cell(row=r, column=col)
-                target.value = cell(v)
+                kind = kinds[col - 1]
+                value = v if r == 1 else excel_value(v, kind)
+                target.value = value if isinstance(value, date) else cell(value)
                 if isinstance(target.value, str):
                     target.data_type = "s"  # never a formula
+                elif r > 1 and kind in EXCEL_FORMATS:
+                    target.number_format = EXCEL_FORMATS[kind]
                 if r == 1:
                     target.font = Font(bold=True)
         for col in range(1, len(table.columns) + 1):
@@ -164,13 +170,16 @@ def build_outputs(data, content: Content) -> dict[str, tuple[Path, bytes | str]]
     return out
 
 
-def write_report(analysis, folder, *, source_name: str | None = None) -> dict:
+def write_report(analysis, folder, *, source_name: str | None = None, units: str | None = None,
+                 log_scale: bool = False, progress=None) -> dict:
     """Write the HTML report, charts, CSV tables, workbook and JSON for ``analysis`` into
     ``folder``; returns {output name: path}. Nothing is written when building any output
-    fails."""
+    fails. ``units`` names the values' units on every axis and in the sentences (the series
+    name by default); ``log_scale`` draws value axes on a log scale; ``progress(done, total)``
+    is called as the parts are drawn."""
     folder = Path(folder)
-    data = gather(analysis, source_name)
-    outputs = build_outputs(data, build(data))
+    data = gather(analysis, source_name, units)
+    outputs = build_outputs(data, build(data, log_scale=log_scale, progress=progress))
     if folder.exists() and not folder.is_dir():
         raise InputError(f"--output: {folder} is a file, not a folder")
     check_targets([folder / rel for rel, _ in outputs.values()], "--output")

@@ -259,3 +259,27 @@ def test_wide_table_on_the_command_line_exits_2_with_one_line(tmp_path, capsys):
     assert main(["scan", str(path)]) == 2
     err = capsys.readouterr().err.strip()
     assert "portfolio" in err and "--value-column" in err and "\n" not in err
+
+
+@pytest.mark.parametrize("texts, fmt, unit", [
+    (["201911", "201912", "202001", "202002"], "%Y%m", "month"),
+    (["20191230", "20191231", "20200101", "20200102"], "%Y%m%d", "day"),
+])
+def test_digits_run_together(tmp_path, texts, fmt, unit):
+    # outside check: pandas.to_datetime with the format those digits are written in
+    text = "date,sales\n" + "".join(f"{t},{k + 1}\n" for k, t in enumerate(texts))
+    series = load_series(write(tmp_path, text))
+    by_pandas = pd.to_datetime(texts, format=fmt).values.astype("datetime64[D]")
+    np.testing.assert_array_equal(series.starts, by_pandas)
+    assert series.frequency.unit == unit
+    assert any(f"read as {fmt.replace('%', '')} dates" in note for note in series.notes)
+
+
+@pytest.mark.parametrize("cells", [["3000", "3001", "3002"], ["201913", "201914", "201915"]])
+def test_numbers_in_no_date_form_are_refused(tmp_path, cells):
+    # four-digit numbers past 2999 are neither years nor (five-digit) Excel day numbers, and
+    # 201913 has no month 13: none is read as some day of 1908 or 2452
+    text = "date,sales\n" + "".join(f"{c},{k + 1}\n" for k, c in enumerate(cells))
+    with pytest.raises(InputError, match=rf"row 2, column 'date': {cells[0]} is not a date.*"
+                                         r"--date-format"):
+        load_series(write(tmp_path, text))

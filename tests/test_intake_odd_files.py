@@ -284,3 +284,17 @@ def test_importing_intake_loads_no_plotting_modelling_or_excel_library():
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           timeout=120, check=True)
     assert done.stdout.strip() == "[]"
+
+
+def test_complex_values_are_refused_not_cut_to_their_real_part():
+    frame = pd.DataFrame({"date": pd.date_range("2020-01-01", periods=3, freq="MS"),
+                          "sales": np.array([1 + 0j, 2 + 1j, 3 + 0j])})
+    with pytest.raises(InputError, match=r"row 2, column 'sales': cannot read '\(1\+0j\)'"):
+        load_series(frame)
+
+
+def test_dates_past_year_9999_are_refused_naming_the_row():
+    index = pd.DatetimeIndex(np.array(["9998-01-01", "9999-01-01", "10000-01-01"],
+                                      dtype="datetime64[s]"))
+    with pytest.raises(InputError, match=r"row 4, column 'date': 10000-01-01 is outside"):
+        load_series(pd.Series([1.0, 2.0, 3.0], index=index))

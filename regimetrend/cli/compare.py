@@ -7,6 +7,7 @@ from pathlib import Path
 
 from .. import numformat
 from ..errors import InputError
+from ..strategy_table import strategy_kinds
 from . import options
 from .progress import StageBar
 from .text import fmt, table
@@ -97,8 +98,11 @@ def render(series, ev, outputs) -> str:
     if ev.same_as:
         lines.append("not ranked (same forecasts as another candidate): " + "; ".join(
             f"{a} = {b}" for a, b in ev.same_as.items()))
+    used = dict.fromkeys(c.strategy.name for c in ev.candidates)
     lines += ["", "gain vs global: 1 - RMSE / RMSE of the reference; DM p: one-sided "
-                  "Diebold-Mariano (HLN) p-value that the candidate is more accurate", "",
+                  "Diebold-Mariano (HLN) p-value that the candidate is more accurate",
+              "strategies: " + " ".join(f"{k.name}: {k.summary}" for k in strategy_kinds()
+                                        if k.name in used), "",
               f"recommendation: {ev.recommended.reason}",
               f"rule: {ev.recommended.rule}", ""]
     rec = ev.candidate(ev.recommended.name)

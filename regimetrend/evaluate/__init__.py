@@ -164,7 +164,7 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     spacing = window_spacing(plan.first, w_min, window_count)
     grid = window_rule_grid(spacing, plan.origins[-1], w_min)
     ranked = [dataclasses.replace(st, minimum_window=w_min, window_spacing=spacing)
-              if st.name == "window-average" else st
+              if st.kind.uses_windows else st
               for st in standard_strategies(shapes, earlier_breaks=max(m_top - 1, 0),
                                             main_shape=spec.shape)]
     for p, label in _event_positions(full, events):
@@ -174,7 +174,8 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
     blist = breakinfo.break_list(full)
     # full-sample break dates: supporting evidence only, labelled wherever they are shown
     sweep += [Strategy("truncated", spec.shape, start=b["position"],
-                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})")
+                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})",
+                       in_sample_start=True)
               for b in blist]
     ranked_keys = {st.key for st in ranked}
     sweep = [st for st in sweep if st.key not in ranked_keys]

@@ -37,7 +37,8 @@ class CandidateResult:
                 "last_shape": self.strategy.last_shape,
                 "start": (self.strategy.start_label if self.strategy.start is not None
                           else (_break_word(self.strategy.from_break)
-                                if self.strategy.name == "truncated" else None)),
+                                if self.strategy.kind.from_breaks else None)),
+                "description": self.strategy.describe(),
                 "seasonality": self.seasonality, "rank": self.rank,
                 "metrics": dict(self.metrics), "per_horizon": [dict(m) for m in self.per_horizon],
                 "gain_over_global": self.gain, "vs_global": dict(self.vs_global)}

@@ -238,23 +238,29 @@ def decimal_year_unit(nums):
 
 
 # Excel counts days from 1899-12-30 (it treats 1900 as a leap year, so serial 60 is the missing
-# 1900-02-29); day numbers from 3000 (1908-03-18) to 2958465 (9999-12-31) are read as dates.
+# 1900-02-29). Five-digit day numbers, 10000 (1927-05-18) to 99999 (2173-10-14), are read as
+# dates; six and eight digits are read as 201907 (year, month) and 20190701 (year, month, day).
 EXCEL_EPOCH = np.datetime64("1899-12-30", "D")
-_EXCEL_DAYS = (3000, 2958465)
+_EXCEL_DAYS = (10000, 100000)
 
 
 def dates_from_numbers(nums, rows, column) -> DateColumn:
-    """Integer or R-style decimal years (1949.0833 = February 1949), or Excel day numbers."""
-    if np.all((nums >= _EXCEL_DAYS[0]) & (nums < _EXCEL_DAYS[1] + 1)):
+    """Integer or R-style decimal years (1949.0833 = February 1949), Excel day numbers, or
+    digits run together (201907, 20190701)."""
+    if np.all((nums >= _EXCEL_DAYS[0]) & (nums < _EXCEL_DAYS[1])):
         starts = EXCEL_EPOCH + np.floor(nums).astype(np.int64).astype("timedelta64[D]")
         first = int(np.floor(nums[0]))
         note = (f"column {column!r} holds numbers, read as Excel day numbers ({first} is "
                 f"{starts[0]}); give --date-format if they mean something else")
         return DateColumn(starts, None, note)
+    joined = _joined_digits(nums, column)
+    if joined is not None:
+        return joined
     bad = np.flatnonzero((nums < 1000) | (nums >= 3000))
     if bad.size:
         raise InputError(f"row {rows[bad[0]]}, column {column!r}: {nums[bad[0]]:g} is not a date, "
-                         f"a year or an Excel day number (accepted forms: {DATE_FORMS_HELP})")
+                         f"a year or an Excel day number; write the dates in an accepted form or "
+                         f"give --date-format (accepted forms: {DATE_FORMS_HELP})")
     unit = decimal_year_unit(nums)
     if unit is None:
         raise InputError(f"column {column!r} holds decimal years whose fractions are neither "
@@ -266,3 +272,22 @@ def dates_from_numbers(nums, rows, column) -> DateColumn:
     months = 1 + k * (12 // per_year)
     starts = (years - 1970) * 12 + (months - 1)
     return DateColumn(starts.astype("datetime64[M]").astype("datetime64[D]"), unit, None)
+
+
+def _joined_digits(nums, column) -> DateColumn | None:
+    """Whole numbers of six digits read as year+month, of eight as year+month+day; else None."""
+    if not np.all(nums == np.floor(nums)):
+        return None
+    for low, high, form, unit in ((100001, 299913, "%Y%m", "month"),
+                                  (10000101, 29991232, "%Y%m%d", None)):
+        if np.all((nums >= low) & (nums < high)):
+            try:
+                days = [_dt.datetime.strptime(str(int(x)), form).date() for x in nums]
+            except ValueError:
+                return None
+            starts = np.array(days, dtype="datetime64[D]")
+            note = (f"column {column!r} holds numbers, read as {form.replace('%', '')} dates "
+                    f"({int(nums[0])} is {starts[0]}); give --date-format if they mean "
+                    f"something else")
+            return DateColumn(starts, unit, note)
+    return None

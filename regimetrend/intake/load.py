@@ -29,6 +29,7 @@ from .values import parse_values
 from .wording import listing
 
 MIN_POINTS = 3  # fewer points cannot show a trend at all
+_FIRST_DAY, _LAST_DAY = np.datetime64("0001-01-01", "D"), np.datetime64("9999-12-31", "D")
 _GENERIC_VALUE_NAMES = {"value", "values", "y", "v", "amount"}
 
 
@@ -66,6 +67,10 @@ def load_series(source, *, date_column=None, value_column=None, frequency=None, 
         raise InputError(f"{hint} (the first sheet: {exc})") from None
     rows = table.rows
     starts = dates.starts
+    outside = np.flatnonzero((starts < _FIRST_DAY) | (starts > _LAST_DAY))
+    if outside.size:
+        raise InputError(f"row {rows[outside[0]]}, column {dcol!r}: {starts[outside[0]]} is "
+                         f"outside the calendar dates can use (years 1 to 9999)")
     if len(rows) < MIN_POINTS:
         raise InputError(f"{table.label} has {len(rows)} data rows; at least {MIN_POINTS} "
                          f"dated values are needed to see a trend")

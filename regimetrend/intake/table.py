@@ -121,8 +121,8 @@ def column_cells(column: pd.Series):
         if getattr(column.dt, "tz", None) is not None:
             column = column.dt.tz_localize(None)
         return column.to_numpy()  # keeps the unit: years outside 1677-2262 need [us] or [s]
-    if pd.api.types.is_bool_dtype(column.dtype):
-        return column.tolist()
+    if pd.api.types.is_bool_dtype(column.dtype) or pd.api.types.is_complex_dtype(column.dtype):
+        return column.tolist()  # cell by cell, so the parser names the row (no silent casts)
     if pd.api.types.is_numeric_dtype(column.dtype):
         return column.to_numpy(dtype=float, na_value=np.nan)
     return column.tolist()

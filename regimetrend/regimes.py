@@ -50,7 +50,7 @@ from .design import (
     to_model_scale,
     trend_columns,
 )
-from .errors import InputError
+from .errors import InputError, about
 from .ols import t_quantile
 from .regime_design import ModelResponse, RegimeDesign, model_response
 from .strategy_table import StrategyKind, strategy_kind, strategy_kinds
@@ -83,7 +83,7 @@ class Strategy:
         kind = strategy_kind(self.name)
         for s in (self.shape, self.last_shape):
             if s is not None and s not in SHAPES:
-                raise InputError(f"option --shape: {s!r} is not one of {', '.join(SHAPES)}")
+                raise InputError(f"{about('shape')}: {s!r} is not one of {', '.join(SHAPES)}")
         if self.last_shape == self.shape:
             object.__setattr__(self, "last_shape", None)
         if self.last_shape is not None and not kind.mixed_shapes:

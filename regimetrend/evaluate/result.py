@@ -109,6 +109,13 @@ class Evaluation:
                 return c
         raise KeyError(name)
 
+    def summary(self, series=None) -> str:
+        """Plain text: the ranking, the recommendation and its rule, accuracy by horizon, the
+        history decision, the diagnosis and the cautions (``series`` gives period labels)."""
+        from ..plaintext import evaluation_text
+
+        return evaluation_text(self, series)
+
     def to_dict(self) -> dict:
         return json_clean({"series": self.series, "model": self.model, "rolling_origin": self.plan,
                 "optimistic": self.optimistic,

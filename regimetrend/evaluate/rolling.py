@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, about, option
 from ..design import seasonal_columns
 from ..metrics import naive_scale
 from ..regimes import OriginFits, Strategy
@@ -52,17 +52,17 @@ def plan_origins(n: int, horizon: int, minimum: int, first_origin: int | None = 
                  step: int = 1) -> OriginPlan:
     """Origins ``first, first + step, ... <= n - horizon`` (see the module docstring)."""
     if horizon < 1:
-        raise InputError("option --horizon: must be at least 1 period")
+        raise InputError(f"{about('horizon')}: must be at least 1 period")
     if step < 1:
-        raise InputError("option --step: must be at least 1 period")
+        raise InputError(f"{about('step')}: must be at least 1 period")
     last = n - horizon
     if first_origin is None:
         first_origin = max(int(math.ceil(n / 2)), last - (MAX_DEFAULT_ORIGINS - 1) * step, minimum)
     if first_origin < minimum:
-        raise InputError(f"option --first-origin: {first_origin} periods are too few to fit every "
+        raise InputError(f"{about('first_origin')}: {first_origin} periods are too few to fit every "
                          f"candidate; use at least {minimum}")
     if first_origin > last:
-        raise InputError(f"option --horizon/--first-origin: a first origin of {first_origin} "
+        raise InputError(f"{about('horizon')} and {option('first_origin')}: a first origin of {first_origin} "
                          f"periods with a horizon of {horizon} needs at least "
                          f"{first_origin + horizon} periods; the series has {n}")
     return OriginPlan(first_origin, step, horizon, tuple(range(first_origin, last + 1, step)))

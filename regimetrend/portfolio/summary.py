@@ -92,8 +92,8 @@ def xlsx_bytes(recs, columns) -> bytes:
     from openpyxl.styles import Font
 
     wb = Workbook()
-    ws = wb.create_sheet("summary", 0)
-    wb.remove(wb.worksheets[1])
+    ws = wb.worksheets[0]
+    ws.title = "summary"
     ws.append(columns)
     for cell in ws[1]:
         cell.font = Font(bold=True)

@@ -103,16 +103,11 @@ def analyse(job: Job, series):
     """(row, detail dict, chart dict, analysis or None) for one series."""
     settings = job.settings
     if job.level == "scan":
-        from ..breaks import detect_breaks
+        from ..breaks.detect import find_breaks
         from ..growth import growth_table
 
         spec = settings.spec_for(series)
-        breaks = detect_breaks(series, shape=spec.shape, seasonality=spec.seasonality,
-                               kind=settings.kind, max_breaks=settings.max_breaks,
-                               trim=settings.trim, criterion=settings.criterion,
-                               events=tuple(settings.events), season_length=spec.season_length,
-                               seasonal_by_regime=settings.seasonal_by_regime,
-                               serial_correlation=settings.serial_correlation)
+        breaks = find_breaks(series, spec, settings.breaks)
         growth = growth_table(series, spec, breaks)
         detail = {"series": series.to_dict(), "settings": settings.to_dict(),
                   "breaks": breaks.to_dict(), "growth": growth.to_dict()}

@@ -145,11 +145,17 @@ def test_analysis_uses_the_given_dates_at_every_origin_with_room(nile):
         expected = tuple(p for p in (28, 89) if h <= p <= origin - h)
         assert known == expected
     assert "given in advance" in a.evaluation.plan["breaks"]
-    assert a.growth.to_dict()["segments"][0]["end"] == "1898-01-01"
-    assert "analyst" in a.evaluation.recommended.rule
-    text = a.summary()
-    assert "re-detected" not in text and "1899 to 1899" not in text
-    assert any("given by the analyst" in c for c in a.cautions)
+    from regimetrend.evaluate import history_breaks
+    from regimetrend.growth import growth_table
+
+    g = growth_table(nile, a.breaks.spec, a.breaks).to_dict()
+    assert [s["end"] for s in g["segments"]] == ["1898-01-01", "1959-01-01", "1970-01-01"]
+    # a shortened history keeps the dates inside it with room, and searches nothing
+    head = history_breaks(nile.head(60), a.breaks.spec, a.settings.breaks)
+    assert head.given and head.positions == (28,)
+    assert a.breaks.given and a.breaks.positions == (28, 89)
+    assert "given by the analyst" in a.breaks.summary(nile)
+    assert a.to_dict()["breaks"]["dates_given"] is True
 
 
 @pytest.fixture

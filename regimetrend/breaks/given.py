@@ -73,20 +73,47 @@ def given_positions(series, dates, h: int) -> tuple[int, ...]:
     return tuple(positions)
 
 
+def positions_within(series, dates, h: int) -> tuple[int, ...]:
+    """The analyst's dates that fall inside ``series`` (a history up to an origin) with at
+    least ``h`` periods on each side, as positions; the others are not known there yet."""
+    n = series.n
+    out = []
+    for item in dates:
+        if isinstance(item, (int, np.integer)) and not isinstance(item, bool):
+            p = int(item)
+        else:
+            from ..intake import parse_date
+
+            d = parse_date(str(item))
+            if d is None or d < series.starts[0] or d >= series.start_of(n):
+                continue
+            p = int(np.searchsorted(series.starts, d, side="right")) - 1
+        if h <= p <= n - h:
+            out.append(p)
+    kept: list[int] = []
+    for p in sorted(set(out)):  # neighbours closer than h: the later waits for more history
+        if not kept or p - kept[-1] >= h:
+            kept.append(p)
+    return tuple(kept)
+
+
 def _bic(problem: BreakProblem, kind: str, fit, m: int) -> float:
     k = problem.base_count + m * problem.changing(kind)
     return select.bic(max(fit.ssr, select.exact_fit_floor(problem.y)), problem.n, k)
 
 
-def given_breaks(series, spec, options: BreakSettings) -> BreakSet:
-    """The ``BreakSet`` with breaks at ``options.break_dates`` (see the module docstring)."""
+def given_breaks(series, spec, options: BreakSettings, within: bool = False) -> BreakSet:
+    """The ``BreakSet`` with breaks at ``options.break_dates`` (see the module docstring);
+    ``within``: keep only the dates inside ``series`` with room (a history up to an origin,
+    ``positions_within``) instead of refusing the others."""
     robust = options.serial_correlation == "allow"
     problem = build_problem(series, spec, options.seasonal_by_regime, options.trim)
     n, h = problem.n, problem.h
     if n < max(2 * h, spec.minimum_points()):
         raise InputError(f"{about(NAME)}: the series has {n} periods; regimes of a "
                          f"{spec.describe()} need at least {max(2 * h, spec.minimum_points())}")
-    positions = given_positions(series, options.break_dates, h)
+    positions = (positions_within(series, options.break_dates, h) if within
+                 else given_positions(series, options.break_dates, h))
     m = len(positions)
     kinds = KINDS if options.kind == "auto" else (options.kind,)
     fits = {k: problem.fit(k, positions) for k in kinds}

@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # annotations only: the report computes nothing
     from ..design import TrendSpec
     from ..evaluate.rolling import ErrorTable
     from ..forecast import Forecast
+    from ..verdict import Verdict
 
 
 @dataclass(frozen=True)
@@ -56,6 +57,7 @@ class ReportData:
     global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
     break_test: str = "sup-F test"  # the test behind ``sup_f_p`` (``breakinfo.test_name``)
     breaks_given: bool = False  # the break dates were given by the analyst, not searched for
+    verdict: Verdict | None = None  # the chosen model and its sentences
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -110,4 +112,5 @@ def gather(analysis: Analysis, source_name: str | None = None,
         regime_trend=_fitted(growth.trend if growth is not None else None, series.n),
         global_trend=_fitted(analysis.global_trend, series.n),
         break_test=breakinfo.test_name(breakset),
-        breaks_given=bool(breakset is not None and breakset.given))
+        breaks_given=bool(breakset is not None and breakset.given),
+        verdict=getattr(analysis, "verdict", None))

@@ -102,6 +102,11 @@ def render(series, b, growth: dict | None = None) -> str:
         lines.append(f"  CUSUM ({c.method}) of the global trend: {where}, {pvalue(c.p_value)}")
     if b.drift is not None:
         lines.append(f"  the global trend started to drift at {b.drift.label} ({b.drift.method})")
+    if b.is_wandering:
+        w = b.wandering
+        lines.append(f"  wandering: the series moves around its trend like a random walk "
+                     f"(KPSS {fmt(w.kpss)}, 5% value {w.kpss_critical:g}; AR(1) {fmt(w.ar1)}); "
+                     f"the breaks above are descriptive only")
     lines += ["", "regimes (growth with 95% intervals from Newey-West errors):"]
     rows = []
     per_regime = (growth or {}).get("segments") or [{} for _ in b.segments]

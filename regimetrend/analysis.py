@@ -8,7 +8,7 @@ many series in other processes.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -39,6 +39,13 @@ class Analysis:
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
     global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
 
+    def summary(self) -> str:
+        """Plain text of the whole analysis: breaks and growth by regime, the recommendation,
+        history and diagnosis, the forecast with intervals, the cautions."""
+        from .plaintext import analysis_text
+
+        return analysis_text(self)
+
     def to_dict(self) -> dict:
         from .output import json_safe
 
@@ -58,43 +65,28 @@ class Analysis:
         })
 
 
-def _settings(settings: Settings | None, choices: dict) -> Settings:
-    base = settings or Settings()
-    if "events" in choices and choices["events"] is not None:
-        choices = dict(choices, events=tuple(choices["events"]))
-    return replace(base, **choices) if choices else base
-
-
-def analyze(series: Series, settings: Settings | None = None, *, progress=None,
+def analyze(series, settings: Settings | None = None, *, progress=None,
             **choices) -> Analysis:
-    """Run the whole analysis of ``series``.
+    """Run the whole analysis of ``series`` (a ``Series``, or a pandas Series or date/value
+    DataFrame, read by intake).
 
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
     fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
     total)``, when given, is called after each rolling origin (it does not change the result).
     """
     from .breaks import cusum as cusum_paths
-    from .evaluate import break_detector, compare
+    from .breaks.detect import find_breaks
+    from .evaluate import evaluate
     from .growth import growth_table
+    from .intake import as_series
     from .regimes import strategy_forecast
 
-    settings = _settings(settings, choices)
-    spec = settings.spec_for(series)
+    settings = Settings.coerce(settings, choices, caller="analyze")
+    series = as_series(series)
+    spec = settings.spec_for(series)  # resolved once; every stage below reads this one
     horizon = settings.horizon_for(series)
-    detect = break_detector(spec.shape, spec.seasonality, settings.kind, settings.max_breaks,
-                            settings.trim, settings.criterion, settings.events,
-                            spec.season_length, settings.seasonal_by_regime,
-                            settings.serial_correlation)
-    breaks = detect(series, True)
-    evaluation = compare(series, shape=spec.shape, seasonality=spec.seasonality,
-                         season_length=spec.season_length, kind=settings.kind,
-                         max_breaks=settings.max_breaks, trim=settings.trim,
-                         criterion=settings.criterion, events=settings.events,
-                         seasonal_by_regime=settings.seasonal_by_regime,
-                         serial_correlation=settings.serial_correlation, horizon=horizon,
-                         first_origin=settings.first_origin, step=settings.step,
-                         reuse_breaks=settings.reuse_breaks, full_breaks=breaks,
-                         progress=progress)
+    breaks = find_breaks(series, spec, settings.breaks)
+    evaluation = evaluate(series, spec, settings, breaks, progress=progress)
     chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
     forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
     global_forecast = trend_forecast(series, spec, horizon)

@@ -2,11 +2,14 @@
 
 Forecasts and growth rates from regimetrend can drive costly decisions (budgets, capacity,
 targets), so every result says what the numbers assume and where they are weakest. The standing
-cautions are written once here; ``for_analysis`` adds the ones a particular analysis calls for.
+cautions are written once here; ``for_analysis`` adds the ones a particular analysis calls for
+(the near-end caution's words and rule live in ``words.near_end``).
 The report and the CLI show these texts; they do not write their own.
 """
 
 from __future__ import annotations
+
+from .words import near_end
 
 EXTRAPOLATION = ("Extrapolation assumes the last regime holds: the forecast continues the trend "
                  "of the most recent regime, and a new change of regime after the end of the "
@@ -26,22 +29,6 @@ def sentence(text: str) -> str:
     if text and text[0].islower():
         text = text[0].upper() + text[1:]
     return text if not text or text.endswith(".") else text + "."
-
-
-def near_end(series, position: int | None, ci_high: int | None) -> str | None:
-    """A caution when the last regime is short (under two seasonal cycles, or under 15% of the
-    series) or its break's 95% interval reaches the last periods of the data."""
-    if position is None:
-        return None
-    n = series.n
-    tail = n - int(position)
-    short = tail < max(2 * series.frequency.season_length, 4, int(0.15 * n))
-    reaches = ci_high is not None and ci_high >= n - max(2, int(0.05 * n))
-    if short or reaches:
-        return (f"The last break ({series.label(int(position))}) leaves only {tail} "
-                f"{series.frequency.name} periods in the last regime; its growth figures and the "
-                f"forecast from it are less certain than the intervals alone suggest.")
-    return None
 
 
 def assemble(*groups) -> tuple[str, ...]:

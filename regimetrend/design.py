@@ -25,7 +25,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputError
+from .errors import InputError, about
 
 SHAPES = ("linear", "exponential", "quadratic")
 SEASONALITIES = ("none", "dummies", "adjust")
@@ -41,12 +41,12 @@ class TrendSpec:
 
     def __post_init__(self):
         if self.shape not in SHAPES:
-            raise InputError(f"option --shape: {self.shape!r} is not one of {', '.join(SHAPES)}")
+            raise InputError(f"{about('shape')}: {self.shape!r} is not one of {', '.join(SHAPES)}")
         if self.seasonality not in SEASONALITIES:
-            raise InputError(f"option --seasonality: {self.seasonality!r} is not one of "
+            raise InputError(f"{about('seasonality')}: {self.seasonality!r} is not one of "
                              f"{', '.join(SEASONALITIES)}")
         if int(self.season_length) < 1:
-            raise InputError("option --season-length: must be a whole number of at least 1")
+            raise InputError(f"{about('season_length')}: must be a whole number of at least 1")
         if self.seasonality != "none" and self.season_length < 2:
             # No seasons to model (annual data, or the user said season length 1).
             object.__setattr__(self, "seasonality", "none")

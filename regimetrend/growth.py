@@ -45,7 +45,7 @@ from scipy import stats
 
 from . import ols
 from .design import TrendSpec
-from .errors import InputError
+from .errors import InputError, about
 from .regime_design import RegimeDesign, model_response
 from .series import Series
 
@@ -211,6 +211,12 @@ class GrowthTable:
     @property
     def last(self) -> RegimeGrowth:
         return self.regimes[-1]
+
+    def summary(self) -> str:
+        """Plain text: growth a year by regime with 95% intervals and each change's Wald test."""
+        from .plaintext import growth_text
+
+        return growth_text(self)
 
     def to_dict(self) -> dict:
         return {"series": self.series_name, "shape": self.spec.shape, "kind": self.kind,
@@ -544,7 +550,7 @@ def regime_growth(series: Series, spec: TrendSpec, breaks: Sequence[int] = (), *
     (``floor(4 (n/100)^(2/9))`` by default).
     """
     if kind not in KINDS:
-        raise InputError(f"option --kind: {kind!r} is not one of {', '.join(KINDS)}")
+        raise InputError(f"{about('kind')}: {kind!r} is not one of {', '.join(KINDS)}")
     if not 0 < level < 1:
         raise InputError("growth interval level must be between 0 and 1")
     positions = _check_breaks(series.n, breaks, spec, kind)

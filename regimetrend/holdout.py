@@ -11,7 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .design import TrendSpec
-from .errors import InputError
+from .errors import InputError, about
 from .forecast import Forecast, dated, fit_history
 from .metrics import accuracy, naive_scale
 from .series import Series
@@ -36,14 +36,14 @@ class Holdout:
 def holdout_check(series: Series, spec: TrendSpec, k: int) -> Holdout:
     """Fit ``spec`` on positions 0..n-k-1 and score its forecasts of the last k periods."""
     if k < 1:
-        raise InputError("option --holdout: must be at least 1 period")
+        raise InputError(f"{about('holdout')}: must be at least 1 period")
     train = series.n - k
     need = spec.minimum_points()
     if train <= 0:
-        raise InputError(f"option --holdout: the series has {series.n} periods, so holding out "
+        raise InputError(f"{about('holdout')}: the series has {series.n} periods, so holding out "
                          f"{k} leaves none to fit")
     if train < need:
-        raise InputError(f"option --holdout: {k} periods held out leaves {train} to fit; a "
+        raise InputError(f"{about('holdout')}: {k} periods held out leaves {train} to fit; a "
                          f"{spec.describe()} needs at least {need}")
     fit = fit_history(series, spec, 0, train, what="the history before the holdout")
     fc = dated(series, fit, np.arange(train, series.n), "global " + spec.describe())

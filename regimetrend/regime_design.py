@@ -46,7 +46,7 @@ from .design import (
     to_model_scale,
     trend_columns,
 )
-from .errors import InputError
+from .errors import InputError, about
 
 KINDS = ("level", "slope", "both")
 
@@ -90,7 +90,7 @@ def break_powers(kind: str, degree: int) -> tuple[int, ...]:
         return tuple(range(1, max(degree, 1) + 1))
     if kind == "both":
         return tuple(range(degree + 1))
-    raise InputError(f"option --kind: {kind!r} is not one of {', '.join(KINDS)}")
+    raise InputError(f"{about('kind')}: {kind!r} is not one of {', '.join(KINDS)}")
 
 
 def _terms(shape: str) -> int:

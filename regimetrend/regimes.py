@@ -26,6 +26,11 @@ They go through the least-squares core, and their forecasts use the core's ``pre
 design's rows after the history (the last regime's), then the same back-transform as a single
 trend (lognormal mean for the exponential shape).
 
+Each strategy is an entry of the strategy table (``strategy_table``, where the five above are
+registered): its forecaster, its words and how the comparison offers it. ``OriginFits.forecast``
+and ``strategy_forecast`` look strategies up there, so a registered one is scored and forecast
+like these; ``OriginFits`` offers the cached fits the forecasters build on.
+
 Breaks that leave a regime too short for its own trend are ignored (the regime joins the one
 before it), so a strategy never fails because a break was found close to an origin.
 """
@@ -45,12 +50,12 @@ from .design import (
     to_model_scale,
     trend_columns,
 )
-from .errors import InputError
+from .errors import InputError, about
 from .ols import t_quantile
 from .regime_design import ModelResponse, RegimeDesign, model_response
+from .strategy_table import StrategyKind, strategy_kind, strategy_kinds
 from .trendfit import PointForecasts, TrendFit, fit_trend
 
-STRATEGIES = ("global", "separate", "truncated", "continuous", "window-average")
 LAYOUTS = {"separate": "both", "continuous": "slope"}  # joint strategy -> regime design kind
 TERMS = {"linear": 2, "exponential": 2, "quadratic": 3}
 
@@ -66,20 +71,22 @@ class Strategy:
     start: int | None = None
     start_label: str | None = None  # how a fixed start is named (a date, or "event ...")
     from_break: int = 1  # truncated without a fixed start: the k-th last usable break
+    # the fixed start is a break date found on the full sample: the fit knows where a break
+    # is that an origin's own history may not show yet (optimistic, labelled so everywhere)
+    in_sample_start: bool = False
     # window-average: the evaluation's window rule (see ``window_rule``), carried so that the
     # final forecast averages the same windows the rolling origin scored; None = the default
     minimum_window: int | None = field(default=None, compare=False)
     window_spacing: int | None = field(default=None, compare=False)
 
     def __post_init__(self):
-        if self.name not in STRATEGIES:
-            raise InputError(f"strategy {self.name!r} is not one of {', '.join(STRATEGIES)}")
+        kind = strategy_kind(self.name)
         for s in (self.shape, self.last_shape):
             if s is not None and s not in SHAPES:
-                raise InputError(f"option --shape: {s!r} is not one of {', '.join(SHAPES)}")
+                raise InputError(f"{about('shape')}: {s!r} is not one of {', '.join(SHAPES)}")
         if self.last_shape == self.shape:
             object.__setattr__(self, "last_shape", None)
-        if self.last_shape is not None and self.name != "separate":
+        if self.last_shape is not None and not kind.mixed_shapes:
             raise InputError(f"a last-regime shape applies to the separate strategy, not to "
                              f"{self.name}")
         if self.last_shape is not None and ((self.shape == "exponential")
@@ -95,37 +102,54 @@ class Strategy:
             name += f" then {self.last_shape}"
         if self.start is not None:
             name += f" from {self.start_label or self.start}"
-        elif self.name == "truncated" and self.from_break > 1:
+        elif self.kind.from_breaks and self.from_break > 1:
             name += f" from break {self.from_break} before the end"
         return name
 
     @property
     def regime_aware(self) -> bool:
-        return self.name != "global"
+        return self.kind.regime_aware
+
+    @property
+    def kind(self) -> StrategyKind:
+        """This strategy's entry in the strategy table."""
+        return strategy_kind(self.name)
+
+    def describe(self) -> str:
+        """This candidate in plain words (from the strategy table)."""
+        return self.kind.words(self)
 
     def to_dict(self) -> dict:
         return {"strategy": self.name, "shape": self.shape, "last_shape": self.last_shape,
                 "start": self.start_label if self.start is not None else None,
-                "from_break": self.from_break if self.name == "truncated" else None,
-                "name": self.key}
+                "from_break": self.from_break if self.kind.from_breaks else None,
+                "name": self.key, "description": self.describe()}
 
 
 def standard_strategies(shapes=SHAPES, mixed=True, earlier_breaks: int = 0,
                         main_shape: str | None = None) -> list[Strategy]:
-    """Each strategy with each shape, plus separate fits whose last regime changes shape
-    between linear and quadratic (when both are in ``shapes``), plus truncated fits of
+    """Every standard strategy of the strategy table with each shape (once, with
+    ``main_shape``, for those not tried with every shape), plus fits whose last regime changes
+    shape between linear and quadratic (when both are in ``shapes``), plus fits of
     ``main_shape`` from the 2nd .. (earlier_breaks + 1)-th last break."""
+    main = main_shape or shapes[0]
+    kinds = [k for k in strategy_kinds() if k.standard]
     out = []
-    for name in STRATEGIES:
-        for shape in shapes:
-            out.append(Strategy(name, shape))
-    for k in range(2, earlier_breaks + 2):
-        out.append(Strategy("truncated", main_shape or shapes[0], from_break=k))
+    for kind in kinds:
+        for shape in (shapes if kind.every_shape else (main,)):
+            out.append(Strategy(kind.name, shape))
+    for kind in kinds:
+        if kind.from_breaks:
+            for k in range(2, earlier_breaks + 2):
+                out.append(Strategy(kind.name, main, from_break=k))
     if mixed:
-        for a in shapes:
-            for b in shapes:
-                if a != b and "exponential" not in (a, b):
-                    out.append(Strategy("separate", a, last_shape=b))
+        for kind in kinds:
+            if not kind.mixed_shapes:
+                continue
+            for a in shapes:
+                for b in shapes:
+                    if a != b and "exponential" not in (a, b):
+                        out.append(Strategy(kind.name, a, last_shape=b))
     return out
 
 
@@ -314,41 +338,42 @@ class OriginFits:
 
     # -- strategies -----------------------------------------------------------------------
     def forecast(self, strategy: Strategy, horizon: int) -> PointForecasts:
-        """Forecasts of ``strategy`` for the ``horizon`` periods after the origin."""
-        positions = np.arange(self.origin, self.origin + horizon)
-        name = strategy.name
-        if name == "global":
-            return self.trend_forecast(strategy.shape, 0, positions)
-        if name == "truncated":
-            # a fixed start too recent for this origin falls back to all history
-            (start,) = self.single_starts(strategy)
-            return self.trend_forecast(strategy.shape, start, positions)
-        if name in ("separate", "continuous"):
-            key = (name, strategy.shape, strategy.last_shape or strategy.shape, "fc", horizon)
-            if key not in self._forecasts:
-                fit = self.piecewise(name, strategy.shape, strategy.last_shape)
-                X_new = None
-                if isinstance(fit, PiecewiseFit):
-                    X_new = self._joint_design(fit, positions, self.origin, self.origin + horizon)
-                elif fit.spec.seasonality != "adjust":
-                    X_new = self._design(fit.spec, fit.scale, self.origin, self.origin + horizon)
-                self._forecasts[key] = forecast_points(fit, positions, X_new)
-            return self._forecasts[key]
-        return self.window_average(strategy.shape, positions)
+        """Forecasts of ``strategy`` for the ``horizon`` periods after the origin (its
+        forecaster in the strategy table)."""
+        return strategy.kind.forecast(self, strategy, horizon)
+
+    def positions_after(self, horizon: int) -> np.ndarray:
+        """The ``horizon`` positions after the origin."""
+        return np.arange(self.origin, self.origin + horizon)
+
+    def joint_forecast(self, layout: str, shape: str, last_shape: str | None,
+                       horizon: int) -> PointForecasts:
+        """Forecasts of the joint fit ``piecewise(layout, shape, last_shape)``, cached."""
+        positions = self.positions_after(horizon)
+        key = (layout, shape, last_shape or shape, "fc", horizon)
+        if key not in self._forecasts:
+            fit = self.piecewise(layout, shape, last_shape)
+            X_new = None
+            if isinstance(fit, PiecewiseFit):
+                X_new = self._joint_design(fit, positions, self.origin, self.origin + horizon)
+            elif fit.spec.seasonality != "adjust":
+                X_new = self._design(fit.spec, fit.scale, self.origin, self.origin + horizon)
+            self._forecasts[key] = forecast_points(fit, positions, X_new)
+        return self._forecasts[key]
+
+    def truncated_start(self, strategy: Strategy) -> int:
+        """First period of a trend fitted from a start: a fixed start (all history when it is
+        too recent for this origin) or the ``from_break``-th last usable break."""
+        if strategy.start is None:
+            return self.latest_start(strategy.shape, strategy.from_break)
+        if self.origin - strategy.start < self.spec_for(strategy.shape).minimum_points():
+            return 0
+        return strategy.start
 
     def single_starts(self, strategy: Strategy) -> tuple[int, ...]:
         """Starts of the single trends a strategy forecasts from (empty for joint fits)."""
-        if strategy.name == "global":
-            return (0,)
-        if strategy.name == "truncated":
-            if strategy.start is None:
-                return (self.latest_start(strategy.shape, strategy.from_break),)
-            if self.origin - strategy.start < self.spec_for(strategy.shape).minimum_points():
-                return (0,)
-            return (strategy.start,)
-        if strategy.name == "window-average":
-            return self.window_starts_for(strategy.shape)
-        return ()
+        starts = strategy.kind.single_starts
+        return tuple(starts(self, strategy)) if starts is not None else ()
 
     def prefit(self, strategies, horizon: int) -> None:
         """Fit every single trend the strategies need, one batched QR per design: shapes with
@@ -581,10 +606,8 @@ def strategy_forecast(series, strategy: Strategy, breaks, horizon: int, spec: Tr
     points = fits.forecast(strategy, horizon)
     starts = series.frequency.future(series.starts[-1], horizon)
     labels = tuple(series.frequency.label(s) for s in starts)
-    start = 0  # joint fits and the window average use history from the first period
-    if strategy.name == "truncated":
-        start = (strategy.start if strategy.start is not None
-                 else fits.latest_start(strategy.shape, strategy.from_break))
+    singles = fits.single_starts(strategy)
+    start = singles[0] if len(singles) == 1 else 0  # joint fits and averages use all history
     used = TrendSpec(strategy.last_shape or strategy.shape, spec.seasonality, spec.season_length)
     return Forecast(strategy.key + " (" + used.describe() + ")", used, starts, labels, points,
                     int(start))

@@ -144,19 +144,19 @@ def test_events_are_tested_by_chow_at_their_period():
 def test_event_outside_or_in_the_trimmed_edge_is_an_input_error():
     y = 50 + 0.3 * np.arange(60) + np.random.default_rng(0).normal(0, 1, 60)
     s = _monthly(y)
-    with pytest.raises(InputError, match="--event"):
+    with pytest.raises(InputError, match="parameter events"):
         detect_breaks(s, events=["2030-01"])
-    with pytest.raises(InputError, match="--event"):
+    with pytest.raises(InputError, match="parameter events"):
         detect_breaks(s, events=["2011-12"])
-    with pytest.raises(InputError, match="--event.*trimmed"):
+    with pytest.raises(InputError, match="parameter events.*trimmed"):
         detect_breaks(s, events=["2016-10"])  # 2 periods before the end
-    with pytest.raises(InputError, match="--event"):
+    with pytest.raises(InputError, match="parameter events"):
         detect_breaks(s, events=["not a date"])
 
 
 def test_too_short_for_the_breaks_asked_names_max_breaks():
     s = _annual(np.arange(20, dtype=float) + np.random.default_rng(1).normal(0, 1, 20))
-    with pytest.raises(InputError, match="--max-breaks.*at least 24"):
+    with pytest.raises(InputError, match="parameter max_breaks.*at least 24"):
         detect_breaks(s, max_breaks=3)
     assert detect_breaks(s, max_breaks=2).n_breaks <= 2
 
@@ -167,15 +167,15 @@ def test_trim_as_share_or_periods_and_bad_options():
     r = detect_breaks(nile, trim=10)
     assert r.trim_periods == 10 and r.trim_share == pytest.approx(0.10)
     assert r.tests.supf.trim_share == pytest.approx(0.10)
-    with pytest.raises(InputError, match="--trim"):
+    with pytest.raises(InputError, match="parameter trim"):
         detect_breaks(nile, trim=1.5)
-    with pytest.raises(InputError, match="--trim"):
+    with pytest.raises(InputError, match="parameter trim"):
         detect_breaks(nile, trim=2)
-    with pytest.raises(InputError, match="--kind"):
+    with pytest.raises(InputError, match="parameter kind"):
         detect_breaks(nile, kind="jump")
-    with pytest.raises(InputError, match="--criterion"):
+    with pytest.raises(InputError, match="parameter criterion"):
         detect_breaks(nile, criterion="aic")
-    with pytest.raises(InputError, match="--max-breaks"):
+    with pytest.raises(InputError, match="parameter max_breaks"):
         detect_breaks(nile, max_breaks=-1)
 
 
@@ -454,13 +454,13 @@ def test_default_max_breaks_caps_at_what_the_series_holds():
     r = detect_breaks(short)
     assert len(r.criterion_path) == 3
     assert any("holds at most 2" in n for n in r.notes)
-    with pytest.raises(InputError, match="--max-breaks"):
+    with pytest.raises(InputError, match="parameter max_breaks"):
         detect_breaks(short, max_breaks=3)
     nile = rseries("Nile", "year")
     full = detect_breaks(nile, max_breaks=None)
     assert len(full.criterion_path) == 4 and not any("holds at most" in n for n in full.notes)
     assert full.to_dict() == detect_breaks(nile, max_breaks=3).to_dict()
-    with pytest.raises(InputError, match="--max-breaks"):
+    with pytest.raises(InputError, match="parameter max_breaks"):
         detect_breaks(nile, max_breaks="many")
 
 

@@ -52,6 +52,11 @@ def test_compare_json_and_errors_file_reproduce_the_metrics(nile_csv, tmp_path, 
                     "interval_score80", "interval_score95"):
             assert cand["metrics"][key] == pytest.approx(again[key], rel=1e-12, abs=1e-12)
     assert result["history"]["keep_from"] is None or result["history"]["keep_from"][4] == "-"
+    # every row fitted from a full-sample break date (its name says optimistic) is flagged;
+    # the leak-free candidates are not (the breaks were searched again at each origin)
+    flagged = {r["candidate"] for r in rows if r["optimistic"] == "yes"}
+    named = {r["candidate"] for r in rows if "optimistic" in r["candidate"]}
+    assert named and flagged == named
 
 
 def test_compare_text_shows_ranking_recommendation_history_and_diagnosis(nile_csv, capsys):

@@ -94,9 +94,9 @@ def test_default_origins_are_the_last_24_and_every_horizon_is_scored():
     assert plan.origins == tuple(range(85, 109)) and plan.origins[-1] + 12 == 120
     short = plan_origins(40, 4, minimum=10)
     assert short.first == 20 and short.origins[-1] == 36
-    with pytest.raises(InputError, match="--first-origin"):
+    with pytest.raises(InputError, match="parameter first_origin"):
         plan_origins(120, 12, minimum=24, first_origin=10)
-    with pytest.raises(InputError, match="--horizon"):
+    with pytest.raises(InputError, match="parameter horizon"):
         plan_origins(30, 20, minimum=24)
 
 
@@ -427,10 +427,12 @@ def test_own_break_test_uses_the_sequential_step_or_the_partial_f():
     # placed, which is then read by its partial F on the sup-F(l+1|l) law (Bai and Perron, 1998)
     # of breaks.critical.
     from regimetrend.breaks import critical
-    from regimetrend.evaluate import break_detector, breakinfo
+    from regimetrend.breaks import detect_breaks
+    from regimetrend.evaluate import breakinfo
 
     series = rseries("UKDriverDeaths", "month")
-    bs = break_detector("linear", "dummies", "level", 3, criterion="bic", season_length=12)(series)
+    bs = detect_breaks(series, seasonality="dummies", kind="level", max_breaks=3, criterion="bic",
+                       season_length=12)
     steps = {st.position: st for st in bs.tests.sequential}
     kinds = set()
     for b in bs.breaks:

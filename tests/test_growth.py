@@ -261,7 +261,7 @@ def test_bad_breaks_are_input_errors():
     s = _rseries("Nile", "year", "1871-01-01")
     with pytest.raises(InputError, match="regime 2"):
         regime_growth(s, TrendSpec("linear"), [98])
-    with pytest.raises(InputError, match="--kind"):
+    with pytest.raises(InputError, match="parameter kind"):
         regime_growth(s, TrendSpec("linear"), [50], kind="jump")
     with pytest.raises(InputError, match="twice"):
         regime_growth(s, TrendSpec("linear"), [50, 50])

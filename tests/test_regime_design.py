@@ -198,3 +198,24 @@ def test_bad_designs_are_input_errors():
         RegimeDesign(spec, "slope", (0,), 20)
     with pytest.raises(InputError, match="modelling scales"):
         RegimeDesign(TrendSpec("linear"), "both", (10,), 20, last_shape="exponential")
+
+
+def test_shortest_regime_rule_is_the_one_the_readme_states():
+    # The default shortest regime (common practice: one seasonal cycle, or enough points for
+    # a trend with a few residual degrees of freedom), and the README sentence that states it.
+    from pathlib import Path
+
+    from regimetrend.breaks.problem import default_min_length
+
+    assert default_min_length(TrendSpec("linear"), False) == 6
+    assert default_min_length(TrendSpec("exponential"), False) == 6
+    assert default_min_length(TrendSpec("quadratic"), False) == 8
+    assert default_min_length(TrendSpec("linear", "dummies", 4), False) == 4
+    assert default_min_length(TrendSpec("quadratic", "dummies", 4), False) == 5
+    assert default_min_length(TrendSpec("linear", "dummies", 12), False) == 12
+    assert default_min_length(TrendSpec("linear", "dummies", 12), True) == 14
+    readme = " ".join((Path(__file__).parents[1] / "README.md").read_text().split())
+    assert ("the shortest regime is one seasonal cycle but at least the trend terms plus two "
+            "(five quarters for the quadratic shape), a cycle plus the trend terms when "
+            "seasonal terms change with the regime, and without seasons six periods, eight "
+            "for the quadratic shape") in readme

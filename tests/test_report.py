@@ -69,7 +69,7 @@ def plain_analysis():
     cusum = recursive_cusum(fit.fit.X @ fit.fit.beta + fit.fit.residuals, fit.fit.X).to_dict()
     return SimpleNamespace(series=series, spec=spec, breaks=None, evaluation=None,
                            growth=growth, forecast=forecast, global_forecast=forecast,
-                           global_fitted=fit.fitted(), cusum=cusum,
+                           global_fitted=fit.fitted(), global_trend=fit.trend(), cusum=cusum,
                            cautions=("the series is short",),
                            to_dict=lambda: {"growth": growth.to_dict(),
                                             "forecast": forecast.to_dict()})

@@ -110,7 +110,7 @@ def test_too_few_points_and_non_positive_values_are_named():
         fit_trend(np.arange(1.0, 10.0), np.arange(9), TrendSpec("quadratic", "dummies", 12), 0)
     with pytest.raises(InputError, match="position 3"):
         fit_trend(np.array([1.0, 2.0, 0.0, 4.0, 5.0]), np.arange(5), TrendSpec("exponential"), 0)
-    with pytest.raises(InputError, match="--shape"):
+    with pytest.raises(InputError, match="parameter shape"):
         TrendSpec("cubic")
 
 

@@ -41,7 +41,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, about
 
 TABLE_PATH = os.path.join(os.path.dirname(os.path.abspath(__file__)), "critical_values.json")
 TREND_TERMS = ("linear", "quadratic")
@@ -86,7 +86,7 @@ def changing_coefficients(model: str) -> int:
 def _check_trim(trim: float) -> float:
     trim = float(trim)
     if not (0.0 < trim < 0.5) or not math.isfinite(trim):
-        raise InputError(f"option --trim: the trimming share must lie between 0 and 0.5, got {trim}")
+        raise InputError(f"{about('trim')}: the trimming share must lie between 0 and 0.5, got {trim}")
     return trim
 
 

@@ -36,16 +36,14 @@ from scipy.stats import f as f_dist
 
 from .. import ols
 from ..design import TrendSpec
-from ..errors import InputError
+from ..errors import InputError, about, option, setting
+from ..settings import DEFAULT_MAX_BREAKS, BreakSettings, Settings
 from . import calibrate, critical, cusum, chow, exact, intervals, kinks, select, wandering
 from .problem import KINDS, BreakProblem, build_problem
 from .result import (Break, BreakSet, BreakTests, CusumSummary, Drift, EventTest, Segment,
                      SequentialStep, SupFTest)
 from .search import KindPath, best_added_break, search_both, search_tied
 
-METHODS = ("auto", "exact", "pelt")
-SERIAL_CORRELATION = ("allow", "ignore")
-DEFAULT_MAX_BREAKS = 3  # ``max_breaks=None``: up to this many, as many as the series holds
 CAUTION_TESTS = ("The tests assume serially uncorrelated errors; with autocorrelated "
                  "residuals they find breaks too often, so read p-values as indicative.")
 NOTE_ROBUST = ("The tests allow for serially correlated errors: each F statistic is scaled by "
@@ -62,31 +60,14 @@ NOTE_CALIBRATED = ("Whether there is any break was tested against {r} simulated 
                    "the asymptotic table.")
 
 
-def _check_options(kind, criterion, method, max_breaks) -> tuple[str, str, str, int | None]:
-    kind = str(kind).strip().lower()
-    if kind not in ("auto",) + KINDS:
-        raise InputError(f"option --kind: {kind!r} is not one of auto, {', '.join(KINDS)}")
-    criterion = select.check_criterion(criterion)
-    method = str(method).strip().lower()
-    if method not in METHODS:
-        raise InputError(f"option --method: {method!r} is not one of {', '.join(METHODS)}")
-    if max_breaks is None:
-        return kind, criterion, method, None
-    try:
-        m = int(max_breaks)
-    except (TypeError, ValueError):
-        raise InputError(f"option --max-breaks: {max_breaks!r} is not a whole number") from None
-    if m != max_breaks or m < 0:
-        raise InputError(f"option --max-breaks: must be a whole number of 0 or more, "
-                         f"got {max_breaks!r}")
-    return kind, criterion, method, m
-
-
-def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind: str = "auto",
-                  max_breaks: int | None = None, trim=None, criterion: str = "sequential",
-                  events=(), season_length: int | None = None, seasonal_by_regime: bool = False,
-                  method: str = "auto", serial_correlation: str = "allow") -> BreakSet:
+def detect_breaks(series, settings: Settings | None = None, **choices) -> BreakSet:
     """Breaks in the trend of ``series``; see the module docstring for the flow.
+
+    ``series``: a ``Series``, or a pandas Series or date/value DataFrame (read by intake).
+    ``settings``: a ``Settings`` whose model and break parts are used; keyword ``choices`` set
+    single fields, e.g. ``detect_breaks(s, kind="level", max_breaks=2)`` (see
+    ``settings.ModelSettings`` and ``settings.BreakSettings`` for the fields and defaults,
+    the same as the command line's).
 
     ``serial_correlation``: ``allow`` (default) makes the sup-F, sequential, per-break F and
     Chow tests, and the break-date intervals, robust to autocorrelated errors (see
@@ -96,9 +77,20 @@ def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind
     at what the series holds given the trimming. ``criterion``: ``sequential`` (default; count by
     the sequential tests within each kind, kind by BIC at those counts), ``bic`` or ``lwz``.
 
-    ``trim``: shortest regime, a share of the series (below 1) or a number of periods; the
+    ``trim``: shortest regime, a share of the series (below 0.5) or a number of periods; the
     default lets the last regime be one seasonal cycle (``problem.default_min_length``).
     ``events``: dates (any form intake reads, or positions) tested by the Chow test.
+    """
+    from ..intake import as_series
+
+    settings = Settings.coerce(settings, choices, ("model", "breaks"), "detect_breaks")
+    series = as_series(series)
+    return find_breaks(series, settings.spec_for(series), settings.breaks)
+
+
+def find_breaks(series, spec: TrendSpec, options: BreakSettings) -> BreakSet:
+    """``detect_breaks`` for a spec already resolved against ``series`` (one resolution per
+    run: ``analyze`` and ``compare`` call this).
 
     The linear algebra here is many small tall-and-thin problems, which a multi-threaded BLAS
     only slows down (measured: a 3000 x 17 QR took 165 ms with threads on a busy two-core
@@ -106,14 +98,15 @@ def detect_breaks(series, shape: str = "linear", seasonality: str = "none", kind
     ``threadpoolctl`` is installed.
     """
     with _one_blas_thread():
-        scale = _response_scale(series.values) if shape != "exponential" else 1.0
+        scale = _response_scale(series.values) if not spec.log_scale else 1.0
         if scale == 1.0:
-            return _detect(series, shape, seasonality, kind, max_breaks, trim, criterion,
-                           events, season_length, seasonal_by_regime, method,
-                           serial_correlation)
+            return _detect(series, spec, options.kind, options.max_breaks, options.trim,
+                           options.criterion, options.events, options.seasonal_by_regime,
+                           options.method, options.serial_correlation)
         scaled = dataclasses.replace(series, values=series.values / scale)
-        found = _detect(scaled, shape, seasonality, kind, max_breaks, trim, criterion, events,
-                        season_length, seasonal_by_regime, method, serial_correlation)
+        found = _detect(scaled, spec, options.kind, options.max_breaks, options.trim,
+                        options.criterion, options.events, options.seasonal_by_regime,
+                        options.method, options.serial_correlation)
         return _rescaled(found, scale)
 
 
@@ -185,30 +178,29 @@ def robust_factor(residuals, enabled: bool = True) -> float:
     return min(1.0, g0 / lrv) if lrv > 0 and g0 > 0 else 1.0
 
 
-def _detect(series, shape, seasonality, kind, max_breaks, trim, criterion, events,
-            season_length, seasonal_by_regime, method, serial_correlation) -> BreakSet:
-    if serial_correlation not in SERIAL_CORRELATION:
-        raise InputError(f"option --serial-correlation: {serial_correlation!r} is not one of "
-                         f"{', '.join(SERIAL_CORRELATION)}")
+def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, method,
+            serial_correlation) -> BreakSet:
     robust = serial_correlation == "allow"
-    kind, criterion, method, M = _check_options(kind, criterion, method, max_breaks)
-    s = series.frequency.season_length if season_length is None else int(season_length)
-    spec = TrendSpec(shape, seasonality, s if seasonality != "none" else max(s, 1))
     problem = build_problem(series, spec, seasonal_by_regime, trim)
     n, h = problem.n, problem.h
     capped = None
     if M is None:  # default: up to DEFAULT_MAX_BREAKS, as many as the series can hold
         M = min(DEFAULT_MAX_BREAKS, exact.max_feasible_breaks(n, h))
         capped = M if M < DEFAULT_MAX_BREAKS else None
-    need = (M + 1) * h
-    if n < need:
-        most = max(n // h - 1, 0)
-        raise InputError(f"option --max-breaks: {M} breaks with regimes of at least {h} periods "
-                         f"need at least {need} periods; the series has {n} (use --max-breaks "
-                         f"{most} or a smaller --trim)")
     if n < max(2 * h, spec.minimum_points()):
+        if trim is not None and n < 2 * h:
+            raise InputError(f"{about('trim')}: regimes of at least {h} periods need a series of "
+                             f"at least {2 * h}; the series has {n} (use a smaller "
+                             f"{option('trim')})")
         raise InputError(f"the series has {n} periods; a break search on a {spec.describe()} "
                          f"needs at least {max(2 * h, spec.minimum_points())}")
+    need = (M + 1) * h
+    if n < need:  # here M >= 2 and n >= 2 h, so fewer breaks always fit
+        most = max(n // h - 1, 0)
+        smaller_trim = f" or a smaller {option('trim')}" if trim is not None else ""
+        raise InputError(f"{about('max_breaks')}: {M} breaks with regimes of at least {h} "
+                         f"periods need at least {need} periods; the series has {n} (use "
+                         f"{setting('max_breaks', most)}{smaller_trim})")
     event_positions = [_event_position(series, e, h) for e in events]
     long_series = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
     kinds = KINDS if kind == "auto" else (kind,)
@@ -751,18 +743,18 @@ def _event_position(series, event, h: int) -> tuple[str, int]:
     if isinstance(event, (int, np.integer)) and not isinstance(event, bool):
         p = int(event)
         if not 0 <= p < n:
-            raise InputError(f"option --event: position {p} is outside the series (0..{n - 1})")
+            raise InputError(f"{about('events')}: position {p} is outside the series (0..{n - 1})")
     else:
         d = _parse_date(text)
         if d is None:
-            raise InputError(f"option --event: {text!r} is not a date")
+            raise InputError(f"{about('events')}: {text!r} is not a date")
         end = series.start_of(n)  # start of the period after the last
         if d < series.starts[0] or d >= end:
-            raise InputError(f"option --event: {text} is outside the series "
+            raise InputError(f"{about('events')}: {text} is outside the series "
                              f"({series.label(0)} to {series.label(n - 1)})")
         p = int(np.searchsorted(series.starts, d, side="right")) - 1
     if p < h or p > n - h:
-        raise InputError(f"option --event: {text} ({series.label(p)}) is inside the trimmed "
+        raise InputError(f"{about('events')}: {text} ({series.label(p)}) is inside the trimmed "
                          f"edge; a tested break needs at least {h} periods on each side "
                          f"({series.label(h)} to {series.label(n - h)})")
     return text, p

@@ -24,7 +24,7 @@ import numpy as np
 
 from .. import ols
 from ..design import TimeScale, TrendSpec, seasonal_columns, trend_columns
-from ..errors import InputError
+from ..errors import InputError, about, option, setting
 from ..regime_design import KINDS, RegimeDesign, model_response  # noqa: F401 (KINDS re-exported)
 from . import kinks
 
@@ -86,8 +86,20 @@ class BreakProblem:
             return ols.fit(X, self.y)
         except ols.RankDeficient as exc:
             raise InputError(f"the break model with regimes starting at "
-                             f"{', '.join(str(p) for p in positions)} cannot be fitted: {exc}"
-                             ) from None
+                             f"{', '.join(str(p) for p in positions)} cannot be fitted: {exc}; "
+                             f"{self.remedy(len(positions))}") from None
+
+    def remedy(self, m: int) -> str:
+        """Which settings to change when a break model's columns are dependent: regimes too
+        short to tell a trend from the seasonal pattern, or too many breaks."""
+        ways = [f"longer regimes ({setting('trim', 2 * self.h)})"] if 4 * self.h <= self.n else []
+        ways.append(f"fewer breaks ({setting('max_breaks', max(m - 1, 0))})")
+        if self.spec.seasonality == "none":
+            return "use " + " or ".join(ways)
+        ways += [setting("seasonality", "none"), f"another {option('season_length')}"]
+        return (f"regimes of {self.h} periods are too short to tell the trend from the "
+                f"{self.spec.season_length}-period seasonal pattern: use {', '.join(ways[:-1])} "
+                f"or {ways[-1]}")
 
     def seasonal_part(self, fit: ols.LeastSquaresFit) -> np.ndarray:
         """The shared seasonal component of a joint fit (zero when there is none): the regime
@@ -135,20 +147,20 @@ def resolve_trim(trim, n: int, spec: TrendSpec, seasonal_by_regime: bool) -> int
     try:
         value = float(trim)
     except (TypeError, ValueError):
-        raise InputError(f"option --trim: {trim!r} is not a number") from None
+        raise InputError(f"{about('trim')}: {trim!r} is not a number") from None
     if not math.isfinite(value) or value <= 0:
-        raise InputError(f"option --trim: must be a share between 0 and 0.5 or a number of "
+        raise InputError(f"{about('trim')}: must be a share between 0 and 0.5 or a number of "
                          f"periods, got {trim!r}")
     if value < 1:
         if value >= 0.5:
-            raise InputError(f"option --trim: a share must be below 0.5, got {trim!r}")
+            raise InputError(f"{about('trim')}: a share must be below 0.5, got {trim!r}")
         h = int(math.ceil(value * n))
     else:
         if value != int(value):
-            raise InputError(f"option --trim: a number of periods must be whole, got {trim!r}")
+            raise InputError(f"{about('trim')}: a number of periods must be whole, got {trim!r}")
         h = int(value)
     if h < need:
-        raise InputError(f"option --trim: regimes of {h} periods are too short for a "
+        raise InputError(f"{about('trim')}: regimes of {h} periods are too short for a "
                          f"{spec.describe()}; use at least {need}")
     return h
 

@@ -220,6 +220,13 @@ class BreakSet:
         cuts = (0, *self.positions, self.n)
         return tuple(zip(cuts[:-1], cuts[1:]))
 
+    def summary(self, series=None, growth=None) -> str:
+        """Plain text: breaks with intervals, tests, regimes (with ``growth``, a GrowthTable,
+        when given), notes; ``series`` gives labels in its own notation (see ``plaintext``)."""
+        from ..plaintext import breaks_text
+
+        return breaks_text(self, series, growth)
+
     def to_dict(self) -> dict:
         return {"spec": self.spec.to_dict(), "n": int(self.n), "kind": self.kind,
                 "kind_requested": self.kind_requested, "criterion": self.criterion,

@@ -35,7 +35,7 @@ import math
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, about
 
 CRITERIA = ("bic", "lwz", "sequential")
 DEFAULT_CRITERION = "sequential"
@@ -46,7 +46,7 @@ SEQUENTIAL_LEVEL = 0.05
 def check_criterion(name: str) -> str:
     name = str(name).strip().lower()
     if name not in CRITERIA:
-        raise InputError(f"option --criterion: {name!r} is not one of {', '.join(CRITERIA)}")
+        raise InputError(f"{about('criterion')}: {name!r} is not one of {', '.join(CRITERIA)}")
     return name
 
 

@@ -12,7 +12,8 @@ import importlib
 import os
 import sys
 
-from ..errors import InputError
+from ..errors import InputError, named_by
+from .names import FLAGS
 
 # Command modules, in the order they appear in --help.
 COMMANDS = ("forecast", "scan", "compare", "report", "portfolio", "demo")
@@ -53,8 +54,8 @@ def main(argv=None) -> int:
             return 2
         from ..output import protecting
 
-        with protecting(getattr(args, "file", None)):  # outputs never replace the input
-            return int(args.run(args) or 0)
+        with protecting(getattr(args, "file", None)), named_by(FLAGS):
+            return int(args.run(args) or 0)  # outputs never replace the input
     except InputError as exc:
         print(f"regimetrend: error: {exc}", file=sys.stderr)
         return 2

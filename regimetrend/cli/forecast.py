@@ -18,8 +18,9 @@ def register(sub) -> None:
     options.add_model_options(p)
     p.add_argument("--holdout", type=options._positive_int, default=None, metavar="K",
                    help="periods held out for scoring (default: one seasonal cycle, at least 4)")
-    p.add_argument("--horizon", type=options._positive_int, default=None, metavar="H",
-                   help="periods to forecast (default: one seasonal cycle, at least 4)")
+    p.add_argument("--horizon", default=None, metavar="H",
+                   help="periods to forecast (default: one seasonal cycle, at least 4; at most "
+                        "the length of the series)")
     options.add_chart_options(p)
     options.add_output_options(p, "folder for forecast.csv and forecast.png")
     p.set_defaults(run=run)
@@ -31,6 +32,9 @@ def default_steps(series) -> int:
 
 
 def run(args) -> int:
+    from ..settings import RULES, EvaluationSettings
+
+    horizon = EvaluationSettings(horizon=RULES["horizon"].from_text("horizon", args.horizon))
     series = options.load_from_args(args)
     spec = options.model_from_args(args, series)
     options.check_log_scale(args, series)
@@ -38,7 +42,7 @@ def run(args) -> int:
     from ..holdout import holdout_check
 
     k = args.holdout or default_steps(series)
-    h = args.horizon or default_steps(series)
+    h = horizon.horizon_for(series)
     if args.output:
         options.check_output_folder(args.output)
     held = holdout_check(series, spec, k)

@@ -4,8 +4,13 @@ from __future__ import annotations
 
 import argparse
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from ..errors import InputError
+from .names import FLAGS, dest
+
+if TYPE_CHECKING:
+    from ..settings import Settings
 
 
 # The output helpers, loaded when first called (numpy is not needed for --help or --version).
@@ -50,49 +55,78 @@ def add_input_options(p) -> None:
     p.add_argument("--name", help="name of the series in outputs (the value column by default)")
 
 
+def _setting(p, name: str, help: str, metavar: str | None = None) -> None:
+    """Declare the flag of setting ``name`` (``names.FLAGS``); its values are checked by the
+    settings' table (``settings.RULES``), the choices listed from it."""
+    from ..settings import RULES
+
+    rule = RULES[name]
+    flag = FLAGS[name]
+    if rule.form == "flag":
+        p.add_argument(flag, action="store_true", help=help)
+    elif rule.form == "dates":
+        p.add_argument(flag, action="append", default=[], metavar=metavar or "DATE", help=help)
+    elif rule.form == "choice":
+        p.add_argument(flag, default=None, choices=rule.choices, help=help)
+    else:  # numbers: read as text here, parsed and checked by the settings
+        p.add_argument(flag, default=None, metavar=metavar, help=help)
+
+
 def add_model_options(p) -> None:
-    p.add_argument("--shape", default="linear", choices=("linear", "exponential", "quadratic"),
-                   help="trend shape (default linear)")
-    p.add_argument("--seasonality", default="auto", choices=("auto", "none", "dummies", "adjust"),
-                   help="seasonal terms; auto = dummies for seasonal calendars, none otherwise")
-    p.add_argument("--season-length", type=_positive_int, default=None,
-                   help="periods in a seasonal cycle (12 monthly, 4 quarterly, 52 weekly, 7 daily)")
+    from ..settings import MAX_SEASON_LENGTH
+
+    _setting(p, "shape", "trend shape (default linear)")
+    _setting(p, "seasonality", "seasonal terms; auto = dummies for seasonal calendars, none "
+                               "otherwise")
+    _setting(p, "season_length", f"periods in a seasonal cycle (12 monthly, 4 quarterly, 52 "
+                                 f"weekly, 7 daily; at most {MAX_SEASON_LENGTH})")
 
 
 def add_break_options(p) -> None:
-    p.add_argument("--kind", default="auto", choices=("auto", "level", "slope", "both"),
-                   help="what may change at a break: level (jump), slope (kink), both; "
-                        "auto lets the criterion choose")
-    p.add_argument("--max-breaks", type=_nonnegative_int, default=None,
-                   help="largest number of breaks considered (default 3, fewer when the series "
-                        "is too short to hold them)")
-    p.add_argument("--event", action="append", default=[], metavar="DATE",
-                   help="a known event date to test as a break (repeatable)")
-    p.add_argument("--trim", type=_trim, default=None,
-                   help="shortest regime: a share of the series (below 1) or a number of periods")
-    p.add_argument("--criterion", default="sequential", choices=("sequential", "bic", "lwz"),
-                   help="how the number of breaks is chosen: sequential sup-F tests at 5%% "
-                        "(default), or the BIC or LWZ information criterion")
-    p.add_argument("--seasonal-by-regime", action="store_true",
-                   help="let the seasonal pattern change at each break too")
-    p.add_argument("--serial-correlation", default="allow", choices=("allow", "ignore"),
-                   help="allow (default): break tests robust to autocorrelated errors; "
-                        "ignore: classical tests, exact only for uncorrelated errors")
+    from ..settings import DEFAULT_MAX_BREAKS
+
+    _setting(p, "kind", "what may change at a break: level (jump), slope (kink), both; auto lets "
+                        "the criterion choose")
+    _setting(p, "max_breaks", f"largest number of breaks considered (default {DEFAULT_MAX_BREAKS}, "
+                              f"fewer when the series is too short to hold them)")
+    _setting(p, "events", "a known event date to test as a break (repeatable)")
+    _setting(p, "trim", "shortest regime: a share of the series (below 0.5) or a number of "
+                        "periods")
+    _setting(p, "criterion", "how the number of breaks is chosen: sequential sup-F tests at 5%% "
+                             "(default), or the BIC or LWZ information criterion")
+    _setting(p, "seasonal_by_regime", "let the seasonal pattern change at each break too")
+    _setting(p, "serial_correlation", "allow (default): break tests robust to autocorrelated "
+                                      "errors; ignore: classical tests, exact only for "
+                                      "uncorrelated errors")
+    _setting(p, "method", "search: auto (default; exact dynamic programming, PELT for very long "
+                          "series), exact or pelt")
 
 
 def add_evaluation_options(p) -> None:
     """The rolling-origin options of ``compare`` and ``report``."""
-    p.add_argument("--horizon", type=_positive_int, default=None, metavar="H",
-                   help="forecast horizons 1..H scored at every origin (default: one seasonal "
-                        "cycle, at least 4)")
-    p.add_argument("--first-origin", type=_positive_int, default=None, metavar="N",
-                   help="periods known at the first origin (default: the later of half the "
-                        "series and the start of the last 24 origins)")
-    p.add_argument("--step", type=_positive_int, default=1, metavar="K",
-                   help="periods between origins (default 1)")
-    p.add_argument("--reuse-breaks", action="store_true",
-                   help="reuse the full-sample breaks at every origin instead of finding them "
-                        "again (faster; results are labelled optimistic)")
+    _setting(p, "horizon", "forecast horizons 1..H scored at every origin (default: one seasonal "
+                           "cycle, at least 4; at most the length of the series)", "H")
+    _setting(p, "first_origin", "periods known at the first origin (default: the later of half "
+                                "the series and the start of the last 24 origins)", "N")
+    _setting(p, "step", "periods between origins (default 1)", "K")
+    _setting(p, "reuse_breaks", "reuse the full-sample breaks at every origin instead of finding "
+                                "them again (faster; results are labelled optimistic)")
+
+
+def settings_from_args(args) -> Settings:
+    """The ``Settings`` the command line asks for: every setting flag the command has, parsed
+    and checked by the settings' table; flags left out keep the settings' defaults."""
+    from ..settings import RULES, Settings
+
+    given = {}
+    for name in Settings.FIELDS:
+        if not hasattr(args, dest(name)):
+            continue
+        raw = getattr(args, dest(name))
+        if raw is None or (name == "events" and not raw):
+            continue
+        given[name] = RULES[name].from_text(name, raw)
+    return Settings(**given)
 
 
 def add_chart_options(p) -> None:
@@ -140,21 +174,6 @@ def _positive_int(text):
     return _whole(text, 1)
 
 
-def _nonnegative_int(text):
-    return _whole(text, 0)
-
-
-def _trim(text):
-    try:
-        v = float(text)
-    except ValueError:
-        v = -1.0
-    if not (0 < v < 1 or (v >= 1 and v == int(v))):
-        raise argparse.ArgumentTypeError("expected a share between 0 and 1 or a whole number of "
-                                         f"periods, got {text!r}")
-    return v if v < 1 else int(v)
-
-
 def load_from_args(args):
     """Read the series named on the command line with the input options."""
     from ..intake import load_series
@@ -167,10 +186,7 @@ def load_from_args(args):
 
 def model_from_args(args, series):
     """The TrendSpec the options ask for, with season length and 'auto' resolved."""
-    from ..settings import resolve_spec
-
-    return resolve_spec(series, shape=args.shape, seasonality=args.seasonality,
-                        season_length=args.season_length)
+    return settings_from_args(args).spec_for(series)
 
 
 def check_output_folder(folder) -> Path:

@@ -58,15 +58,7 @@ def register(sub) -> None:
 
 
 def settings_from_args(args):
-    from ..settings import Settings
-
-    return Settings(shape=args.shape, seasonality=args.seasonality,
-                    season_length=args.season_length, kind=args.kind,
-                    max_breaks=args.max_breaks, trim=args.trim, criterion=args.criterion,
-                    events=tuple(args.event), seasonal_by_regime=args.seasonal_by_regime,
-                    serial_correlation=args.serial_correlation, horizon=args.horizon,
-                    first_origin=args.first_origin, step=args.step,
-                    reuse_breaks=args.reuse_breaks)
+    return options.settings_from_args(args)
 
 
 def _formats(text: str) -> tuple[str, ...]:

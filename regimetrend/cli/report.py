@@ -29,39 +29,30 @@ def register(sub) -> None:
     p.set_defaults(run=run)
 
 
-def _settings(args) -> dict:
-    return {"kind": args.kind, "max_breaks": args.max_breaks, "trim": args.trim,
-            "criterion": args.criterion, "events": tuple(args.event),
-            "seasonal_by_regime": args.seasonal_by_regime,
-            "serial_correlation": args.serial_correlation, "horizon": args.horizon,
-            "first_origin": args.first_origin, "step": args.step,
-            "reuse_breaks": args.reuse_breaks}
-
-
-def produce_report(series, folder, *, source_name: str | None = None, units: str | None = None,
-                   log_scale: bool = False, quiet: bool = True, **settings) -> dict:
-    """Run ``analyze`` on ``series`` with ``settings`` and write the report into ``folder``;
-    returns {output name: path}. A progress bar shows on a terminal unless ``quiet``."""
+def produce_report(series, folder, settings=None, *, source_name: str | None = None,
+                   units: str | None = None, log_scale: bool = False, quiet: bool = True,
+                   **choices) -> dict:
+    """Run ``analyze`` on ``series`` with ``settings`` (and flat ``choices``) and write the
+    report into ``folder``; returns {output name: path}. A progress bar shows on a terminal
+    unless ``quiet``."""
     from ..analysis import analyze
     from ..report import write_report
     from .progress import StageBar
 
     folder = options.check_output_folder(folder)
-    analysis = analyze(series, progress=StageBar("rolling origin", "origins", quiet=quiet),
-                       **settings)
+    analysis = analyze(series, settings,
+                       progress=StageBar("rolling origin", "origins", quiet=quiet), **choices)
     return write_report(analysis, folder, source_name=source_name, units=units,
                         log_scale=log_scale, progress=StageBar("report", "parts", quiet=quiet))
 
 
 def run(args) -> int:
     folder = options.check_output_folder(args.output)
+    settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
-    spec = options.model_from_args(args, series)
     options.check_log_scale(args, series)
-    written = produce_report(series, folder, source_name=Path(args.file).name,
-                             units=args.units, log_scale=args.log_scale, quiet=args.quiet,
-                             shape=spec.shape, seasonality=spec.seasonality,
-                             season_length=spec.season_length, **_settings(args))
+    written = produce_report(series, folder, settings, source_name=Path(args.file).name,
+                             units=args.units, log_scale=args.log_scale, quiet=args.quiet)
     if args.json:
         result = json.loads(Path(written["json"]).read_text(encoding="utf-8"))
         result["outputs"] = written

@@ -14,11 +14,11 @@ import numpy as np
 
 from ..cautions import JUDGEMENT
 from ..design import SHAPES, TrendSpec
-from ..errors import InputError
+from ..errors import InputError, about
 from ..forecast import fit_history
 from ..regimes import (Strategy, minimum_window, standard_strategies, window_rule_grid,
                        window_spacing)
-from ..settings import resolve_spec
+from ..settings import DEFAULT_MAX_BREAKS, BreakSettings, Settings
 from . import breakinfo, redetect
 from .accuracy_tests import compare_errors
 from .diagnosis import default_window, diagnose
@@ -28,37 +28,21 @@ from .result import (OPTIMISTIC_NOTE, CandidateResult, Evaluation, json_clean)
 from .rolling import plan_origins, run_rolling
 from .scores import candidate_scores
 
-__all__ = ["compare", "Evaluation", "break_detector"]
-
-DEFAULT_MAX_BREAKS = 3  # ``max_breaks=None``: the number of earlier-break candidates offered
+__all__ = ["Evaluation", "compare", "evaluate"]
 
 
-def break_detector(shape="linear", seasonality="none", kind="auto", max_breaks=3, trim=None,
-                   criterion="sequential", events=(), season_length=None, seasonal_by_regime=False,
-                   serial_correlation="allow"):
-    """A callable series -> BreakSet running the break search with these settings.
-
-    The analyst's events are only Chow-tested by the search (they do not move the breaks), so
-    they are passed on for the full series only (``series.n == full_n``); on a shortened
-    history the number of breaks considered is capped at what its length can hold."""
-    from ..breaks import detect_breaks
+def history_breaks(history, spec: TrendSpec, options: BreakSettings):
+    """The break search on the history known at an origin: the analyst's events are left out
+    (they are Chow-tested on the full series only and do not move the breaks) and the number of
+    breaks is capped at what this shorter history can hold."""
+    from ..breaks.detect import find_breaks
     from ..breaks.problem import resolve_trim
 
-    def detect(series, with_events=True):
-        m = max_breaks if max_breaks is None else int(max_breaks)
-        if not with_events:
-            m = DEFAULT_MAX_BREAKS if m is None else m
-            spec = TrendSpec(shape, seasonality, season_length or 1)
-            by_regime = seasonal_by_regime and spec.seasonality == "dummies"
-            h = resolve_trim(trim, series.n, spec, by_regime)
-            m = max(0, min(m, series.n // max(h, 1) - 1))
-        return detect_breaks(series, shape=shape, seasonality=seasonality, kind=kind,
-                             max_breaks=m, trim=trim, criterion=criterion,
-                             events=tuple(events) if with_events else (),
-                             season_length=season_length,
-                             seasonal_by_regime=seasonal_by_regime,
-                             serial_correlation=serial_correlation)
-    return detect
+    m = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
+    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
+    h = resolve_trim(options.trim, history.n, spec, by_regime)
+    m = max(0, min(m, history.n // max(h, 1) - 1))
+    return find_breaks(history, spec, dataclasses.replace(options, events=(), max_breaks=m))
 
 
 def duplicates(table, count: int) -> dict:
@@ -84,17 +68,17 @@ def _event_positions(full, events) -> list[tuple[int, str]]:
     return [(int(c.position), c.label) for c in full.tests.chow]
 
 
-def _origin_breaks(series, plan, full, detector, own_search, reuse_breaks, spec, kind,
-                   max_breaks, trim, criterion, seasonal_by_regime):
+def _origin_breaks(series, plan, full, spec: TrendSpec, options: BreakSettings,
+                   reuse_breaks: bool, m_top: int):
     """``breaks_at(o)`` for every origin, and the list of origins whose search failed."""
     failed: list[int] = []
     if reuse_breaks:
         full_positions = breakinfo.positions(full)
         return (lambda o: tuple(b for b in full_positions if b < o)), failed
-    if own_search and redetect.shared_table_applies(kind, spec, seasonal_by_regime, criterion,
-                                                    series.n):
-        table = redetect.origin_breaks(series, plan.origins, spec, max_breaks, trim, criterion,
-                                       seasonal_by_regime)
+    if redetect.shared_table_applies(options.kind, spec, options.seasonal_by_regime,
+                                     options.criterion, series.n):
+        table = redetect.origin_breaks(series, plan.origins, spec, m_top, options.trim,
+                                       options.criterion, options.seasonal_by_regime)
 
         def from_table(o):
             if table[o] is None:
@@ -105,34 +89,43 @@ def _origin_breaks(series, plan, full, detector, own_search, reuse_breaks, spec,
 
     def search(o):
         try:
-            return breakinfo.positions(detector(series.head(o), False))
+            return breakinfo.positions(history_breaks(series.head(o), spec, options))
         except InputError:
             failed.append(o)  # too little history for a search here: no breaks known
             return ()
     return search, failed
 
 
-def compare(series, shape: str = "linear", seasonality: str = "auto",
-            season_length: int | None = None, kind: str = "auto", max_breaks: int | None = 3,
-            trim=None, criterion: str = "sequential", events=(), seasonal_by_regime: bool = False,
-            serial_correlation: str = "allow",
-            horizon: int | None = None, first_origin: int | None = None, step: int = 1,
-            reuse_breaks: bool = False, shapes=None, window_count: int = 10,
-            detector=None, progress=None, full_breaks=None) -> Evaluation:
-    """Rolling-origin comparison of every candidate against the global ``shape`` trend.
+def compare(series, settings: Settings | None = None, *, shapes=None, window_count: int = 10,
+            progress=None, **choices) -> Evaluation:
+    """Rolling-origin comparison of every candidate against the global trend of the analyst's
+    shape.
 
-    ``shape`` is the analyst's shape: it sets the reference (global) trend, the break search
-    and the history sweep; ``shapes`` (default all three, exponential only for positive
-    series) are the shapes every strategy is tried with. ``horizon`` defaults to one seasonal
-    cycle (at least 4). ``first_origin`` counts periods known at the first origin (see
-    ``rolling.plan_origins`` for the default), ``step`` the periods between origins.
-    ``reuse_breaks`` reuses the full-sample breaks at every origin: the results are then
-    labelled optimistic. ``detector(series, with_events)`` -> BreakSet replaces the default
-    break search (``with_events`` is False on the shortened histories of the origins);
-    ``progress(done, total)`` is called after each origin. ``full_breaks`` is the break search
-    already run on the whole series with these settings (``analyze`` passes it to avoid running
-    it twice); the origins are still searched afresh."""
-    spec = resolve_spec(series, shape=shape, seasonality=seasonality, season_length=season_length)
+    ``series``: a ``Series``, or a pandas Series or date/value DataFrame (read by intake).
+    ``settings`` (a ``Settings``) and keyword ``choices`` (its flat fields, e.g.
+    ``compare(s, shape="exponential", horizon=6)``) hold the model, break and evaluation
+    choices, with the same defaults as ``analyze`` and the command line. ``shape`` sets the
+    reference (global) trend, the break search and the history sweep; ``shapes`` (default all
+    three, exponential only for positive series) are the shapes every strategy is tried with.
+    ``window_count`` is the number of window lengths the window average tries;
+    ``progress(done, total)`` is called after each origin."""
+    from ..breaks.detect import find_breaks
+    from ..intake import as_series
+
+    settings = Settings.coerce(settings, choices, caller="compare")
+    series = as_series(series)
+    spec = settings.spec_for(series)
+    full = find_breaks(series, spec, settings.breaks)
+    return evaluate(series, spec, settings, full, shapes=shapes, window_count=window_count,
+                    progress=progress)
+
+
+def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
+             window_count: int = 10, progress=None) -> Evaluation:
+    """``compare`` with the spec already resolved and the full-sample break search ``full``
+    already run with these settings (``analyze`` calls this, so each runs once per analysis);
+    the origins are still searched afresh."""
+    options, ev = settings.breaks, settings.evaluation
     s = spec.season_length
     cautions = []
     if shapes is None:
@@ -143,38 +136,31 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                             "zero or below")
     shapes = tuple(dict.fromkeys((spec.shape,) + tuple(shapes)))
     if spec.shape == "exponential" and np.any(series.values <= 0):
-        raise InputError("option --shape: the exponential shape needs positive values")
-    H = int(horizon) if horizon is not None else max(s, 4)
-    own_search = detector is None
-    if own_search:
-        detector = break_detector(spec.shape, spec.seasonality, kind, max_breaks, trim,
-                                  criterion, tuple(events), s, seasonal_by_regime,
-                                  serial_correlation)
+        raise InputError(f"{about('shape')}: the exponential shape needs positive values")
+    H = ev.horizon_for(series)
     specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
     w_min = minimum_window(specs)
-    plan = plan_origins(series.n, H, w_min, first_origin, step)
-    m_top = DEFAULT_MAX_BREAKS if max_breaks is None else int(max_breaks)
-
-    full = full_breaks if full_breaks is not None else detector(series, True)
-    breaks_at, failed = _origin_breaks(series, plan, full, detector, own_search, reuse_breaks,
-                                       spec, kind, m_top, trim, criterion,
-                                       seasonal_by_regime)
+    plan = plan_origins(series.n, H, w_min, ev.first_origin, ev.step)
+    m_top = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
+    reuse_breaks = ev.reuse_breaks
+    breaks_at, failed = _origin_breaks(series, plan, full, spec, options, reuse_breaks, m_top)
 
     # one window rule for the rolling origin and the final forecast (regimes.window_rule)
     spacing = window_spacing(plan.first, w_min, window_count)
     grid = window_rule_grid(spacing, plan.origins[-1], w_min)
     ranked = [dataclasses.replace(st, minimum_window=w_min, window_spacing=spacing)
-              if st.name == "window-average" else st
+              if st.kind.uses_windows else st
               for st in standard_strategies(shapes, earlier_breaks=max(m_top - 1, 0),
                                             main_shape=spec.shape)]
-    for p, label in _event_positions(full, events):
+    for p, label in _event_positions(full, options.events):
         ranked.append(Strategy("truncated", spec.shape, start=p, start_label=f"event {label}"))
     sweep = [Strategy("truncated", spec.shape, start=g, start_label=series.label(g))
              for g in grid if 0 < g <= plan.first - w_min]
     blist = breakinfo.break_list(full)
     # full-sample break dates: supporting evidence only, labelled wherever they are shown
     sweep += [Strategy("truncated", spec.shape, start=b["position"],
-                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})")
+                       start_label=f"break {series.label(b['position'])} ({IN_SAMPLE})",
+                       in_sample_start=True)
               for b in blist]
     ranked_keys = {st.key for st in ranked}
     sweep = [st for st in sweep if st.key not in ranked_keys]
@@ -240,9 +226,10 @@ def compare(series, shape: str = "linear", seasonality: str = "auto",
                            f"those origins used no breaks")
     if reuse_breaks:
         cautions.insert(0, OPTIMISTIC_NOTE)
-    model = dict(spec.to_dict(), shapes=list(shapes), kind=kind, max_breaks=max_breaks,
-                 criterion=criterion, trim=trim, events=[str(e) for e in events],
-                 seasonal_by_regime=seasonal_by_regime, point_forecast="mean",
+    model = dict(spec.to_dict(), shapes=list(shapes), kind=options.kind,
+                 max_breaks=options.max_breaks, criterion=options.criterion, trim=options.trim,
+                 events=[str(e) for e in options.events],
+                 seasonal_by_regime=options.seasonal_by_regime, point_forecast="mean",
                  minimum_window=w_min, window_spacing=spacing,
                  window_starts=[series.iso(g) for g in grid])
     return Evaluation(series=json_clean(series.to_dict()), model=json_clean(model),

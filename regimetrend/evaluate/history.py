@@ -23,6 +23,7 @@ date interval, and the overall sup-F p-value (whether there is any break at all)
 from __future__ import annotations
 
 from ..regimes import usable_breaks
+from ..words import history_sentence
 from .recommend import ALPHA, _p
 from .result import HistoryDecision
 
@@ -115,7 +116,8 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
                 "note": (f"the decision rests on the leak-free fits; rmse_from_break ({IN_SAMPLE})"
                          " knows the full-sample break date in advance")}
     if not rows:
-        return HistoryDecision(None, None, "keep all history: the break search found no break.",
+        return HistoryDecision(None, None,
+                               history_sentence(None, "the break search found no break"),
                                evidence)
 
     def interval(r):
@@ -142,10 +144,10 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     candidates = [r for r in judged if r["significant"]]
     if not candidates:
         r = (judged or rows)[-1]
-        return HistoryDecision(None, None,
-                               f"keep all history: the break at {r['label']}{interval(r)} is not "
+        return HistoryDecision(None, None, history_sentence(
+                               None, f"the break at {r['label']}{interval(r)} is not "
                                f"significant on its own ({own_words(r)}; any break: sup-F "
-                               f"{_p(break_p)}){recent_note}{tail}.", evidence)
+                               f"{_p(break_p)}){recent_note}{tail}"), evidence)
     chosen = candidates[-1]
     k = 1 + sum(1 for r in judged if r["position"] > chosen["position"])
     fit = leak.get(k)
@@ -170,14 +172,14 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
         got = ("was not run" if fit is None else
                f"did not forecast better than all history (RMSE {fit.metrics['rmse']:.4g} "
                f"against {rmse_all:.4g})")
-        return HistoryDecision(None, None,
-                               f"keep all history: at {chosen['label']} {significant}, but on "
+        return HistoryDecision(None, None, history_sentence(
+                               None, f"at {chosen['label']} {significant}, but on "
                                f"the rolling origin the trend refitted from {which} {how} "
                                f"{got}{supporting(chosen)}"
-                               f"{recent_note}{tail}.", evidence)
-    sentence = (f"keep the history from {chosen['label']}: {significant}, and on the rolling "
-                f"origin the trend refitted from {which} {how} forecast better than all "
-                f"history (RMSE "
-                f"{fit.metrics['rmse']:.4g} against {rmse_all:.4g}){where}"
-                f"{supporting(chosen)}{recent_note}{tail}.")
+                               f"{recent_note}{tail}"), evidence)
+    sentence = history_sentence(chosen["label"], f"{significant}, and on the rolling origin the "
+                                f"trend refitted from {which} {how} forecast better than all "
+                                f"history (RMSE "
+                                f"{fit.metrics['rmse']:.4g} against {rmse_all:.4g}){where}"
+                                f"{supporting(chosen)}{recent_note}{tail}")
     return HistoryDecision(chosen["date"], chosen["label"], sentence, evidence)

@@ -19,9 +19,10 @@ separate the two. The 5% level is common practice; the 10% gain is this tool's o
 
 from __future__ import annotations
 
+from ..words import LEVEL, p_phrase
 from .result import OPTIMISTIC_NOTE, Recommendation
 
-ALPHA = 0.05
+ALPHA = LEVEL  # the one test level (words.LEVEL)
 LARGE_GAIN = 0.10
 
 
@@ -35,11 +36,7 @@ def rule_text(reference: str, alpha: float = ALPHA, large_gain: float = LARGE_GA
             f"global trend is kept.")
 
 
-def _p(x) -> str:
-    """A p-value for a sentence: 'p = 0.012', 'p < 0.001' or 'p not available'."""
-    if x is None:
-        return "p not available"
-    return "p < 0.001" if x < 0.001 else f"p = {x:.3f}"
+_p = p_phrase  # a p-value for a sentence: 'p = 0.012', 'p < 0.001' or 'p not available'
 
 
 def recommend(candidates, reference, break_p: float | None, optimistic: bool = False,

@@ -37,7 +37,8 @@ class CandidateResult:
                 "last_shape": self.strategy.last_shape,
                 "start": (self.strategy.start_label if self.strategy.start is not None
                           else (_break_word(self.strategy.from_break)
-                                if self.strategy.name == "truncated" else None)),
+                                if self.strategy.kind.from_breaks else None)),
+                "description": self.strategy.describe(),
                 "seasonality": self.seasonality, "rank": self.rank,
                 "metrics": dict(self.metrics), "per_horizon": [dict(m) for m in self.per_horizon],
                 "gain_over_global": self.gain, "vs_global": dict(self.vs_global)}
@@ -107,6 +108,13 @@ class Evaluation:
             if c.name == name:
                 return c
         raise KeyError(name)
+
+    def summary(self, series=None) -> str:
+        """Plain text: the ranking, the recommendation and its rule, accuracy by horizon, the
+        history decision, the diagnosis and the cautions (``series`` gives period labels)."""
+        from ..plaintext import evaluation_text
+
+        return evaluation_text(self, series)
 
     def to_dict(self) -> dict:
         return json_clean({"series": self.series, "model": self.model, "rolling_origin": self.plan,

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, about, option
 from ..design import seasonal_columns
 from ..metrics import naive_scale
 from ..regimes import OriginFits, Strategy
@@ -52,17 +52,17 @@ def plan_origins(n: int, horizon: int, minimum: int, first_origin: int | None = 
                  step: int = 1) -> OriginPlan:
     """Origins ``first, first + step, ... <= n - horizon`` (see the module docstring)."""
     if horizon < 1:
-        raise InputError("option --horizon: must be at least 1 period")
+        raise InputError(f"{about('horizon')}: must be at least 1 period")
     if step < 1:
-        raise InputError("option --step: must be at least 1 period")
+        raise InputError(f"{about('step')}: must be at least 1 period")
     last = n - horizon
     if first_origin is None:
         first_origin = max(int(math.ceil(n / 2)), last - (MAX_DEFAULT_ORIGINS - 1) * step, minimum)
     if first_origin < minimum:
-        raise InputError(f"option --first-origin: {first_origin} periods are too few to fit every "
+        raise InputError(f"{about('first_origin')}: {first_origin} periods are too few to fit every "
                          f"candidate; use at least {minimum}")
     if first_origin > last:
-        raise InputError(f"option --horizon/--first-origin: a first origin of {first_origin} "
+        raise InputError(f"{about('horizon')} and {option('first_origin')}: a first origin of {first_origin} "
                          f"periods with a horizon of {horizon} needs at least "
                          f"{first_origin + horizon} periods; the series has {n}")
     return OriginPlan(first_origin, step, horizon, tuple(range(first_origin, last + 1, step)))
@@ -83,6 +83,7 @@ class ErrorTable:
     lower95: np.ndarray
     upper95: np.ndarray
     breaks_used: tuple = ()    # (O,) break positions known at each origin
+    in_sample: tuple = ()      # (C,) the candidate starts at a full-sample break date
 
     def index(self, name: str) -> int:
         return self.names.index(name)
@@ -94,18 +95,20 @@ class ErrorTable:
     def to_csv(self, series, optimistic: bool = False) -> str:
         """One row per forecast: candidate, origin (last period known), horizon, date, actual,
         forecast (mean), interval ends, the naive scale used for MASE, the breaks known at the
-        origin and whether they were reused from the full sample (optimistic); full
+        origin and whether the row is optimistic: the breaks were reused from the full sample
+        (``optimistic``) or the candidate starts at a full-sample break date; full
         precision."""
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")
         w.writerow(["candidate", "origin", "horizon", "date", "actual", "forecast", "lower80",
                     "upper80", "lower95", "upper95", "naive_scale", "breaks_known", "optimistic"])
-        tag = "yes" if optimistic else "no"
         known = [";".join(series.label(b) for b in bs) for bs in self.breaks_used] or \
             [""] * len(self.origins)
         origin_dates = [series.iso(int(o) - 1) for o in self.origins]
         target_dates = {int(p): series.iso(int(p)) for p in np.unique(self.targets)}
         for c, name in enumerate(self.names):
+            flagged = optimistic or (c < len(self.in_sample) and bool(self.in_sample[c]))
+            tag = "yes" if flagged else "no"
             for i in range(len(self.origins)):
                 for j in range(self.targets.shape[1]):
                     w.writerow([name, origin_dates[i], j + 1, target_dates[int(self.targets[i, j])],
@@ -156,5 +159,6 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
     arrays = dict(out, origins=origins, targets=targets, actual=values[targets], scale=scale)
     for a in arrays.values():
         a.setflags(write=False)  # the record of what was forecast is not to be edited
-    table = ErrorTable(tuple(s.key for s in strategies), breaks_used=tuple(used), **arrays)
+    table = ErrorTable(tuple(s.key for s in strategies), breaks_used=tuple(used),
+                       in_sample=tuple(bool(s.in_sample_start) for s in strategies), **arrays)
     return table, tuple(used)

@@ -38,12 +38,13 @@ messages), ``values`` (value cells), ``dates`` (date forms; the public ``parse_d
 ``parse_dates``), ``calendar`` (frequency words, inference, regular calendar), ``validate``
 (checks later stages ask for), ``table`` (the raw table), ``marks`` (the decimal mark of a
 text file), ``text_file``/``excel``/``parquet`` (one reader per format), ``source`` (which
-reader), ``columns`` (choosing the date and value columns), ``load`` (``load_series``).
+reader), ``columns`` (choosing the date and value columns), ``load`` (``load_series``, and
+``as_series`` for the Python API's functions).
 """
 
 from .calendar import FREQUENCY_WORDS, parse_frequency
 from .dates import DATE_FORMS_HELP, parse_date, parse_dates
-from .load import MIN_POINTS, load_series
+from .load import MIN_POINTS, as_series, load_series
 from .table import SUPPORTED_EXTENSIONS
 from .validate import require_points, require_positive
 
@@ -52,6 +53,7 @@ __all__ = [
            "FREQUENCY_WORDS",
            "MIN_POINTS",
            "SUPPORTED_EXTENSIONS",
+           "as_series",
            "load_series",
            "parse_date",
            "parse_dates",

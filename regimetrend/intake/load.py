@@ -160,3 +160,16 @@ def _series_name(name, table: Table, vcol: str) -> str:
     if generic and table.stem:
         return table.stem
     return vcol
+
+
+def as_series(obj) -> Series:
+    """``obj`` as a ``Series``, for the functions of the Python API: a ``Series`` as it is; a
+    pandas Series (dates in its index) or date/value DataFrame read by ``load_series`` with its
+    defaults; anything else (a dict, a list, a file path) an InputError saying what to give."""
+    if isinstance(obj, Series):
+        return obj
+    if isinstance(obj, (pd.Series, pd.DataFrame)):
+        return load_series(obj)
+    raise InputError(f"expected a series: a regimetrend Series, a pandas Series with dates in its "
+                     f"index, or a DataFrame with a date and a value column; got a "
+                     f"{type(obj).__name__} (read files with load_series)")

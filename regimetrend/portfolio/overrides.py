@@ -136,6 +136,7 @@ def read_overrides(path, id_columns: tuple[str, ...], ids) -> dict[str, dict]:
                 continue
             if isinstance(value, float) and math.isnan(value):
                 continue
-            changes[name] = parse_setting(name, value, f"{path.name} row {row}, column {name!r}")
+            changes[str(name)] = parse_setting(str(name), value,
+                                               f"{path.name} row {row}, column {name!r}")
         out[ident] = changes
     return out

@@ -12,6 +12,7 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import cast
 
 from ..errors import InputError
 from ..output import write_atomic
@@ -150,7 +151,7 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
     for idx in reused:
         if rows[idx] is None:
             rows[idx] = store.read_result(jobs[idx].task.id)["row"]
-    order = ranking.rank(rows)
+    order = ranking.rank(cast(list[dict], rows))  # every row is filled by now
     ranks = [0] * len(rows)
     for r, k in enumerate(order, start=1):
         ranks[k] = r

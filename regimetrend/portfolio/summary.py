@@ -34,7 +34,7 @@ def records(rows, tasks, ranks, id_columns) -> list[dict]:
     names = [c for c in id_columns if c != "id"]
     out = []
     for k, (row, task) in enumerate(zip(rows, tasks)):
-        rec = {}
+        rec: dict = {}
         if names:
             rec.update(zip(names, task.parts))
         rec["id"] = task.id
@@ -92,7 +92,7 @@ def xlsx_bytes(recs, columns) -> bytes:
     from openpyxl.styles import Font
 
     wb = Workbook()
-    ws = wb.active
+    ws = wb.worksheets[0]
     ws.title = "summary"
     ws.append(columns)
     for cell in ws[1]:

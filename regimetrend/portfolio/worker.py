@@ -23,11 +23,12 @@ import numpy as np
 
 from ..errors import InputError
 from ..output import json_safe
+from ..settings import Settings
 from .inputs import SeriesTask, file_rows_message
 from .row import failed_row, row_from_analysis, row_from_scan
 
 LEVELS = ("full", "scan")
-_BLAS_HELD = []
+_BLAS_HELD: list = []
 
 
 def hold_blas() -> None:
@@ -44,7 +45,7 @@ class Job:
 
     index: int  # position in the portfolio (input order)
     task: SeriesTask
-    settings: object  # regimetrend.settings.Settings
+    settings: Settings
     key: str  # content hash of data and settings (resume key)
     load: dict  # load_series options shared by the portfolio
     level: str = "full"  # full (analyze) or scan (break search and growth only)
@@ -97,16 +98,11 @@ def analyse(job: Job, series):
     """(row, detail dict, chart dict, analysis or None) for one series."""
     settings = job.settings
     if job.level == "scan":
-        from ..breaks import detect_breaks
+        from ..breaks.detect import find_breaks
         from ..growth import growth_table
 
         spec = settings.spec_for(series)
-        breaks = detect_breaks(series, shape=spec.shape, seasonality=spec.seasonality,
-                               kind=settings.kind, max_breaks=settings.max_breaks,
-                               trim=settings.trim, criterion=settings.criterion,
-                               events=tuple(settings.events), season_length=spec.season_length,
-                               seasonal_by_regime=settings.seasonal_by_regime,
-                               serial_correlation=settings.serial_correlation)
+        breaks = find_breaks(series, spec, settings.breaks)
         growth = growth_table(series, spec, breaks)
         detail = {"series": series.to_dict(), "settings": settings.to_dict(),
                   "breaks": breaks.to_dict(), "growth": growth.to_dict()}
@@ -181,7 +177,7 @@ def report_files(analysis) -> dict:
 def report_chunk(jobs: list[Job]) -> list[tuple[int, str, dict | None, str | None]]:
     """Reports for series whose results already exist: (index, id, files, failure)."""
     hold_blas()
-    out = []
+    out: list[tuple[int, str, dict | None, str | None]] = []
     for job in jobs:
         try:
             from ..analysis import analyze

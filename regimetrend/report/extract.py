@@ -7,7 +7,6 @@ that need it, and the page says so, instead of failing.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
@@ -16,10 +15,11 @@ import numpy as np
 from ..series import Series
 
 if TYPE_CHECKING:  # annotations only: the report computes nothing
+    from ..analysis import Analysis
+    from ..breaks.result import BreakSet
     from ..design import TrendSpec
     from ..evaluate.rolling import ErrorTable
     from ..forecast import Forecast
-    from ..growth import GrowthTable
 
 
 @dataclass(frozen=True)
@@ -37,15 +37,13 @@ class ReportData:
     spec: TrendSpec | None
     source_name: str
     units: str
-    result: dict
-    growth: dict | None
-    growth_obj: GrowthTable | None
+    result: dict  # Analysis.to_dict(), the JSON of the report
+    growth: dict | None  # GrowthTable.to_dict(), what the tables and sentences read
     breaks: tuple[BreakInfo, ...]
     breaks_dict: dict | None
     sup_f_p: float | None
     cusum: dict | None
-    evaluation: dict | None
-    evaluation_obj: object
+    evaluation: dict | None  # Evaluation.to_dict()
     errors: ErrorTable | None
     reference: str | None
     recommended: str | None
@@ -64,72 +62,12 @@ class ReportData:
         return None if position is None else self.series.iso(int(position))
 
 
-def _get(obj, name, default=None):
-    if obj is None:
-        return default
-    if isinstance(obj, dict):
-        return obj.get(name, default)
-    return getattr(obj, name, default)
-
-
-def _to_dict(obj):
-    if obj is None:
-        return None
-    if isinstance(obj, dict):
-        return obj
-    fn = getattr(obj, "to_dict", None)
-    return fn() if callable(fn) else None
-
-
-def _position(value, series: Series) -> int | None:
-    """A break position from an int or a date string."""
-    if value is None:
-        return None
-    if isinstance(value, (int, np.integer)):
-        return int(value)
-    if isinstance(value, float) and math.isfinite(value):
-        return int(round(value))
-    try:
-        d = np.datetime64(str(value), "D")
-    except ValueError:
-        return None
-    return int(np.searchsorted(series.starts, d))
-
-
-def _breaks(breakset, series: Series) -> tuple[BreakInfo, ...]:
-    items = _get(breakset, "breaks") or ()
-    out = []
-    for b in items:
-        pos = _position(_get(b, "position"), series)
-        if pos is None:
-            pos = _position(_get(b, "date"), series)
-        if pos is None:
-            continue
-        ci = _get(b, "ci95")
-        lo = hi = None
-        if ci is not None and len(ci) == 2:
-            lo, hi = _position(ci[0], series), _position(ci[1], series)
-            if lo is not None:
-                lo = max(0, min(lo, series.n - 1))
-            if hi is not None:
-                hi = max(0, min(hi, series.n - 1))
-        out.append(BreakInfo(pos, series.label(pos), series.iso(pos), lo, hi))
-    if not out:
-        for p in _get(breakset, "positions") or ():
-            out.append(BreakInfo(int(p), series.label(int(p)), series.iso(int(p)), None, None))
+def _breaks(breakset: BreakSet | None, series: Series) -> tuple[BreakInfo, ...]:
+    if breakset is None:
+        return ()
+    out = [BreakInfo(b.position, b.label, b.date, int(b.ci95[0]), int(b.ci95[1]))
+           for b in breakset.breaks]
     return tuple(sorted(out, key=lambda b: b.position))
-
-
-def _sup_f(breakset) -> float | None:
-    from ..evaluate import breakinfo  # the one reader of a BreakSet's sup-F p-value
-
-    return breakinfo.supf_pvalue(breakset)
-
-
-def _cusum(analysis) -> dict | None:
-    """The CUSUM path of the global trend with its band, as the analysis computed it."""
-    d = _to_dict(_get(analysis, "cusum"))
-    return d if isinstance(d, dict) and "path" in d else None
 
 
 def _fitted(line, n: int):
@@ -139,32 +77,32 @@ def _fitted(line, n: int):
     return arr if arr.shape == (n,) else None
 
 
-def gather(analysis, source_name: str | None = None, units: str | None = None) -> ReportData:
-    """Read everything the report shows from ``analysis``; ``units`` of the values, when the
-    analyst names them (the series name otherwise)."""
-    series = _get(analysis, "series")
+def gather(analysis: Analysis, source_name: str | None = None,
+           units: str | None = None) -> ReportData:
+    """Read everything the report shows from ``analysis`` (its typed fields; a stage that is
+    None, as in a hand-made stand-in, drops the parts that need it); ``units`` of the values,
+    when the analyst names them (the series name otherwise)."""
+    from ..evaluate import breakinfo  # the one reader of a BreakSet's sup-F p-value
+
+    series = getattr(analysis, "series", None)
     if not isinstance(series, Series):
         raise TypeError("write_report needs an Analysis (with its series)")
-    spec = _get(analysis, "spec")
-    growth_obj = _get(analysis, "growth")
-    breakset = _get(analysis, "breaks")
-    evaluation = _get(analysis, "evaluation")
-    ev_dict = _to_dict(evaluation)
-    rec = _get(_get(evaluation, "recommended"), "name")
-    global_fitted = _fitted(_get(analysis, "global_fitted"), series.n)
-    regime_fitted = _fitted(_get(growth_obj, "fitted"), series.n)
-    cautions = tuple(str(c) for c in (_get(analysis, "cautions") or ()))
+    breakset, evaluation, growth = analysis.breaks, analysis.evaluation, analysis.growth
+    cusum = analysis.cusum if analysis.cusum and "path" in analysis.cusum else None
     return ReportData(
-        series=series, spec=spec,
-        source_name=source_name or _get(analysis, "source") or "",
-        units=units or _get(analysis, "units") or series.name,
-        result=_to_dict(analysis) or {}, growth=_to_dict(growth_obj), growth_obj=growth_obj,
-        breaks=_breaks(breakset, series), breaks_dict=_to_dict(breakset),
-        sup_f_p=_sup_f(breakset), cusum=_cusum(analysis),
-        evaluation=ev_dict,
-        evaluation_obj=evaluation, errors=_get(evaluation, "errors"),
-        reference=_get(evaluation, "reference"), recommended=rec,
-        forecast=_get(analysis, "forecast"), global_forecast=_get(analysis, "global_forecast"),
-        regime_fitted=regime_fitted, global_fitted=global_fitted, cautions=cautions,
-        regime_trend=_fitted(_get(growth_obj, "trend"), series.n),
-        global_trend=_fitted(_get(analysis, "global_trend"), series.n))
+        series=series, spec=analysis.spec, source_name=source_name or "",
+        units=units or series.name,
+        result=analysis.to_dict(), growth=growth.to_dict() if growth is not None else None,
+        breaks=_breaks(breakset, series),
+        breaks_dict=breakset.to_dict() if breakset is not None else None,
+        sup_f_p=breakinfo.supf_pvalue(breakset) if breakset is not None else None,
+        cusum=cusum, evaluation=evaluation.to_dict() if evaluation is not None else None,
+        errors=evaluation.errors if evaluation is not None else None,
+        reference=evaluation.reference if evaluation is not None else None,
+        recommended=evaluation.recommended.name if evaluation is not None else None,
+        forecast=analysis.forecast, global_forecast=analysis.global_forecast,
+        regime_fitted=_fitted(growth.fitted if growth is not None else None, series.n),
+        global_fitted=_fitted(analysis.global_fitted, series.n),
+        cautions=tuple(str(c) for c in analysis.cautions),
+        regime_trend=_fitted(growth.trend if growth is not None else None, series.n),
+        global_trend=_fitted(analysis.global_trend, series.n))

@@ -10,7 +10,7 @@ from __future__ import annotations
 import base64
 from dataclasses import dataclass
 
-from .methods import METHODS
+from .methods import methods
 from .safety import esc
 from .tables import Table, fmt
 
@@ -151,7 +151,7 @@ def page(*, title: str, subtitle: str, facts: list[Fact], summary: list[str],
     missing_html = "".join(f'<p class="note">{esc(m)}</p>' for m in missing)
     methods_html = "".join(f"<dt>{esc(h)}</dt><dd>{esc(text)} "
                            f'<span class="src">Source: {esc(src)}</span></dd>'
-                           for h, text, src in METHODS)
+                           for h, text, src in methods())
     caution_html = "".join(f"<li>{esc(c)}</li>" for c in cautions)
     return f"""<!DOCTYPE html>
 <html lang="en">

@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
-METHODS = (
+from ..strategy_table import strategy_kinds
+
+_SECTIONS = (
     ("Trend and growth",
      "Each trend is fitted by least squares: linear (y = a + b t), exponential (ln y = a + b t, "
      "growth per period e^b - 1, compounded to a year as (1 + g)^p - 1) or quadratic. Seasonal "
@@ -46,11 +48,7 @@ METHODS = (
      "J. M. (1975), Journal of the Royal Statistical Society B 37(2), 149-192; Ploberger, W. "
      "and Kramer, W. (1992), Econometrica 60(2), 271-285."),
     ("Strategies",
-     "global: one trend over all history. separate: one trend per regime, fitted jointly with "
-     "shared seasonal terms, forecast from the last regime. truncated: the trend fitted only on "
-     "the history from a chosen start. continuous: a piecewise trend joined at the breaks. "
-     "window-average: the average of forecasts from several estimation windows, a hedge when "
-     "the break date is uncertain.",
+     "{strategies}",
      "Pesaran, M. H. and Pick, A. (2011), Journal of Business & Economic Statistics 29(2), "
      "307-318."),
     ("Evaluation",
@@ -71,3 +69,10 @@ METHODS = (
      "Okabe, M. and Ito, K. (2008), Color Universal Design (CUD): how to make figures and "
      "presentations that are friendly to colorblind people."),
 )
+
+
+def methods() -> tuple[tuple[str, str, str], ...]:
+    """(heading, text, sources) of each section; the strategies are read from the strategy
+    table, so a registered strategy is described with the others."""
+    words = " ".join(f"{k.name}: {k.summary}" for k in strategy_kinds())
+    return tuple((h, text.replace("{strategies}", words), src) for h, text, src in _SECTIONS)

@@ -47,35 +47,39 @@ def recommended_candidate(evaluation: dict | None) -> dict | None:
     return rec
 
 
-def _start_words(start) -> str:
-    if not start:
-        return "the last break"
-    start = str(start)
-    return start if start[:1].isdigit() else f"the {start}"
-
-
 def strategy_words(candidate: dict | None) -> str | None:
     """A strategy in plain words, e.g. "separate exponential trends per regime, forecast from
-    the last regime"."""
+    the last regime": the candidate's description, written by its entry in the strategy
+    table (``regimetrend.strategy_table``)."""
     if not candidate or not candidate.get("strategy"):
         return None
-    kind, shape = candidate["strategy"], candidate.get("shape") or "trend"
+    return candidate.get("description") or _table_words(candidate) or candidate.get("name")
+
+
+def _table_words(candidate: dict) -> str | None:
+    """The strategy table's words for a candidate given as a plain dict without them."""
+    from types import SimpleNamespace
+
+    from ..errors import InputError
+    from ..strategy_table import strategy_kind
+
+    start = str(candidate.get("start") or "last break")
+    k, label = 1, None
+    words = start.split()
+    if start.startswith("break ") and start.endswith(" before the end") and words[1].isdigit():
+        k = int(words[1])
+    elif start != "last break":
+        label = start
+    try:
+        kind = strategy_kind(candidate["strategy"])
+    except InputError:
+        return None
+    shape = candidate.get("shape") or "linear"
     last = candidate.get("last_shape")
-    if kind == "separate":
-        if last and last != shape:
-            return (f"separate trends per regime, {shape} before the last break and {last} "
-                    f"after it, forecast from the last regime")
-        return f"separate {shape} trends per regime, forecast from the last regime"
-    if kind == "global":
-        return f"one {shape} trend over all history"
-    if kind == "truncated":
-        return (f"one {shape} trend fitted only on the history from "
-                f"{_start_words(candidate.get('start'))}")
-    if kind == "continuous":
-        return f"a {shape} trend joined at the breaks, forecast from its last piece"
-    if kind == "window-average":
-        return f"the average of {shape} trend forecasts from several estimation-window starts"
-    return candidate.get("name")
+    return kind.words(SimpleNamespace(name=kind.name, shape=shape,
+                                      last_shape=last if last != shape else None,
+                                      start=0 if label else None, start_label=label,
+                                      from_break=k))
 
 
 def forecast_shape(candidate: dict | None) -> str | None:

@@ -11,16 +11,14 @@ names its model in plain words, and the forecast sentence says so when the two s
 
 from __future__ import annotations
 
+from .. import words
 from .extract import ReportData
 from .models import (forecast_shape, growth_measure, growth_model, recommended_candidate,
                      strategy_words)
 from .tables import dig, num
 
 
-def _p_text(p) -> str:
-    if p is None:
-        return "not available"
-    return "below 0.001" if p < 0.001 else f"{p:.3f}"
+_p_text = words.p_value
 
 
 def _when(data: ReportData) -> str:
@@ -51,14 +49,14 @@ def _sure(data: ReportData) -> str:
         return "No formal test of the change is available for this series."
     if p is None:
         text = "The break test was not available"
-    elif p < 0.05:
+    elif words.significant(p):
         text = f"A stable single trend is rejected (sup-F test p-value {_p_text(p)})"
     else:
         text = (f"The evidence for a change is weak (sup-F test p-value {_p_text(p)}, above "
-                f"0.05)")
+                f"{words.LEVEL})")
     if wald:
         last = wald[-1]
-        verdict = "differs clearly" if last < 0.05 else "does not differ clearly"
+        verdict = "differs clearly" if words.significant(last) else "does not differ clearly"
         text += f", and growth {verdict} across the last break (Wald p-value {_p_text(last)})"
     return text + "."
 
@@ -102,18 +100,20 @@ def _history(data: ReportData) -> str | None:
     shape = _history_shape(data)
     if keep:
         article = "an" if shape[:1].lower() in "aeiou" else "a"
-        return (f"Keep the history from {keep} for forecasting: on past periods, {article} "
-                f"{shape} trend refitted at each forecast origin from the latest break found in the "
-                f"history known then forecast better than the global {shape} trend on all "
-                f"history.")
+        return words.history_sentence(
+            keep, f"on past periods, {article} {shape} trend refitted at "
+            f"each forecast origin from the latest break found in the history known then "
+            f"forecast better than the global {shape} trend on all history")
     if not dig(hist, "evidence", "breaks"):
-        return "Keep all history for forecasting: no break was found to cut it at."
+        return words.history_sentence(None, "no break was found to cut it at")
     p = dig(hist, "evidence", "sup_f_p_value")
-    if p is None or p >= 0.05:
-        return (f"Keep all history for forecasting with the global {shape} trend: the break "
-                f"test does not support cutting it (sup-F test p-value {_p_text(p)}).")
-    return (f"Keep all history for forecasting: on past periods, no truncated {shape} trend "
-            f"fitted from a break forecast better than the global {shape} trend on all history.")
+    if not words.significant(p):
+        return words.history_sentence(None, f"the break test does not support cutting it for "
+                                            f"the global {shape} trend (sup-F test p-value "
+                                            f"{_p_text(p)})")
+    return words.history_sentence(None, f"on past periods, no truncated {shape} trend fitted "
+                                        f"from a break forecast better than the global {shape} "
+                                        f"trend on all history")
 
 
 def _growth(data: ReportData) -> str | None:

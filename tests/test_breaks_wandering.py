@@ -96,7 +96,7 @@ def test_prewhitened_growth_interval_covers_near_its_level_with_ar_errors():
 
 
 def test_a_constant_series_has_no_drift_and_no_cusum():
-    r = detect_breaks(_monthly(np.full(48, 7.0)))
+    r = detect_breaks(_monthly(np.full(48, 7.0)), seasonality="none")
     assert r.n_breaks == 0 and r.drift is None and r.tests.cusum == ()
     assert any("nothing for the CUSUM to test" in note for note in r.notes)
 
@@ -105,7 +105,7 @@ def test_a_huge_value_gives_no_overflow_warning():
     values = np.r_[np.arange(47.0) + 1, 1e308]
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        r = detect_breaks(_monthly(values))
+        r = detect_breaks(_monthly(values), seasonality="none")
     assert all(np.isfinite(s.level) for s in r.segments)
 
 
@@ -120,7 +120,7 @@ def test_tiny_values_find_the_same_break_as_any_other_scale():
 
 def test_rise_then_flat_and_two_flat_levels_with_an_event_run_without_error():
     rise_flat = _monthly(np.r_[np.arange(30.0) * 2 + 10, np.full(30, 68.0)])
-    assert detect_breaks(rise_flat).positions == (29,)
+    assert detect_breaks(rise_flat, seasonality="none").positions == (29,)
     two_levels = _monthly(np.r_[np.full(24, 5.0), np.full(24, 9.0)])
-    r = detect_breaks(two_levels, shape="exponential", events=["2012-01"])
+    r = detect_breaks(two_levels, shape="exponential", seasonality="none", events=["2012-01"])
     assert r.positions == (24,) and r.tests.chow[0].position == 24

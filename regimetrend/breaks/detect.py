@@ -371,7 +371,8 @@ def _kind_uncertain_intervals(series, problem: BreakProblem, paths, scores, coun
                               m: int, breaks, robust: bool):
     """Break-date intervals that carry the uncertainty about the kind: each break's interval
     is widened to cover the interval of the nearest break of every other kind whose test found
-    breaks and whose score at its own count is within ``UNION_BIC`` of the chosen kind's.
+    breaks, whose score at its own count is within ``UNION_BIC`` of the chosen kind's, and
+    whose date lies outside the chosen interval (kinds that agree on the date add nothing).
 
     Why: with autocorrelated errors a level shift and a kink are hard to tell apart (for a kink
     of 0.1 sigma a period at n = 100 and AR(1) errors with rho 0.3 the BIC preferred a jump,
@@ -391,6 +392,8 @@ def _kind_uncertain_intervals(series, problem: BreakProblem, paths, scores, coun
         fit_k = problem.fit(k, alt)
         for i, brk in enumerate(out):
             j = int(np.argmin([abs(a - brk.position) for a in alt]))
+            if brk.ci95[0] <= alt[j] <= brk.ci95[1]:
+                continue  # the kinds agree on the date: the interval already holds it
             other = _describe_break(series, problem, k, alt, j, fit_k, robust)
             ci90 = (min(brk.ci90[0], other.ci90[0]), max(brk.ci90[1], other.ci90[1]))
             ci95 = (min(brk.ci95[0], other.ci95[0]), max(brk.ci95[1], other.ci95[1]))

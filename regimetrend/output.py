@@ -85,8 +85,11 @@ def write_atomic(path, data, what: str = "output", make_folders: bool = True) ->
             raise InputError(f"{what}: cannot create folder {path.parent}: "
                              f"{exc.strerror or exc}") from None
     mode = "wb" if isinstance(data, (bytes, bytearray)) else "w"
+    from .output_folder import remove_orphans, temp_prefix
+
+    remove_orphans(path.parent, {Path(path.name)})  # left by a run that was killed
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
+        fd, tmp = tempfile.mkstemp(prefix=temp_prefix(path.name), dir=path.parent)
     except OSError as exc:
         raise InputError(f"{what}: cannot write in {path.parent}: {exc.strerror or exc}") from None
     try:

@@ -46,6 +46,10 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv=None) -> int:
+    from .text import VisibleStream, visible
+
+    stdout = sys.stdout
+    sys.stdout = VisibleStream(stdout)  # every line a command prints, control characters shown
     try:
         parser = build_parser()
         args = parser.parse_args(argv)
@@ -57,14 +61,16 @@ def main(argv=None) -> int:
         with protecting(getattr(args, "file", None)), named_by(FLAGS):
             return int(args.run(args) or 0)  # outputs never replace the input
     except InputError as exc:
-        print(f"regimetrend: error: {exc}", file=sys.stderr)
+        print(f"regimetrend: error: {visible(exc)}", file=sys.stderr)  # one line, always
         return 2
     except KeyboardInterrupt:
         print("regimetrend: interrupted", file=sys.stderr)
         return 130
     except BrokenPipeError:  # output piped into a reader that stopped early (head, less)
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        os.dup2(os.open(os.devnull, os.O_WRONLY), stdout.fileno())
         return 1
+    finally:
+        sys.stdout = stdout
 
 
 if __name__ == "__main__":

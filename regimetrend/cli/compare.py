@@ -6,7 +6,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from ..errors import InputError
-from . import options
+from . import budget, options
 from .progress import StageBar
 
 
@@ -31,6 +31,7 @@ def run(args) -> int:
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
+    budget.check_evaluation(series, settings.evaluation)  # refuse hours, announce minutes
     from ..evaluate import compare
 
     ev = compare(series, settings,

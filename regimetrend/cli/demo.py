@@ -9,7 +9,6 @@ everything went.
 from __future__ import annotations
 
 import json
-import shutil
 import textwrap
 from pathlib import Path
 
@@ -30,14 +29,11 @@ def run(args) -> int:
     folder = options.check_output_folder(args.output)
     source = Path(str(demo_path()))
     series = load_series(source, name="Lumen Grid energy sold (MWh)")
-    folder.mkdir(parents=True, exist_ok=True)
     data_copy = folder / source.name
-    if not data_copy.exists():
-        shutil.copyfile(source, data_copy)
     from .report import produce_report
 
     written = produce_report(series, folder, shape="exponential", seasonality="dummies",
-                             horizon=12)
+                             horizon=12, extra={source.name: source.read_bytes()})
     print("Demo: Lumen Grid, a fictional EV charging network; monthly energy sold (MWh), "
           f"{series.label(0)} to {series.label(series.n - 1)} (invented data).")
     report = json.loads(Path(written["json"]).read_text(encoding="utf-8")).get("report", {})
@@ -47,6 +43,7 @@ def run(args) -> int:
     print()
     print(f"input copied to {data_copy}")
     for key, path in written.items():
-        print(f"{key}: {path}")
+        if key != source.name:
+            print(f"{key}: {path}")
     print(f"\nopen {written['html']} in a browser for the full report")
     return 0

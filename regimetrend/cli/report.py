@@ -10,7 +10,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from . import options
+from . import budget, options
 
 
 def register(sub) -> None:
@@ -31,10 +31,10 @@ def register(sub) -> None:
 
 def produce_report(series, folder, settings=None, *, source_name: str | None = None,
                    units: str | None = None, log_scale: bool = False, quiet: bool = True,
-                   **choices) -> dict:
+                   extra: dict[str, bytes] | None = None, **choices) -> dict:
     """Run ``analyze`` on ``series`` with ``settings`` (and flat ``choices``) and write the
-    report into ``folder``; returns {output name: path}. A progress bar shows on a terminal
-    unless ``quiet``."""
+    report into ``folder`` (with the ``extra`` files, kept when already there); returns
+    {output name: path}. A progress bar shows on a terminal unless ``quiet``."""
     from ..analysis import analyze
     from ..report import write_report
     from .progress import StageBar
@@ -43,7 +43,8 @@ def produce_report(series, folder, settings=None, *, source_name: str | None = N
     analysis = analyze(series, settings,
                        progress=StageBar("rolling origin", "origins", quiet=quiet), **choices)
     return write_report(analysis, folder, source_name=source_name, units=units,
-                        log_scale=log_scale, progress=StageBar("report", "parts", quiet=quiet))
+                        log_scale=log_scale, progress=StageBar("report", "parts", quiet=quiet),
+                        extra=extra)
 
 
 def run(args) -> int:
@@ -51,6 +52,7 @@ def run(args) -> int:
     settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
     options.check_log_scale(args, series)
+    budget.check_evaluation(series, settings.evaluation)  # refuse hours, announce minutes
     written = produce_report(series, folder, settings, source_name=Path(args.file).name,
                              units=args.units, log_scale=args.log_scale, quiet=args.quiet)
     if args.json:

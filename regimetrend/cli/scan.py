@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from . import options
+from . import budget, options
 
 
 def register(sub) -> None:
@@ -26,6 +26,7 @@ def run(args) -> int:
     from ..growth import growth_table
 
     series = options.load_from_args(args)
+    budget.check_scan(series)  # refuse hours, announce minutes
     result = scan(series, args)
     table = growth_table(series, result.spec, result)
     if args.json:

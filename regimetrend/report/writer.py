@@ -11,22 +11,28 @@ Files written (names relative to the folder):
 
 Every output's bytes are made in memory before the first file is touched, so a failure while
 building (a chart that cannot be drawn, say) leaves the folder as it was. The targets are then
-checked (none may be a folder or the input file), each file is written through a temporary file
-and a rename, and ``report.json`` goes last. Only then are the files of an earlier report that
-this run did not write again removed, and only those that the earlier ``report.json`` lists as
-its own: a file the analyst put in ``charts/`` or ``tables/`` is never touched.
+checked (none may be a folder or the input file) and ``output_folder.publish_folder`` switches
+the folder as a whole: a complete new folder is written beside it (``report.json`` last) and
+swapped in by rename, so an interrupt, a kill or a full disk leaves either the earlier report or
+this one, never a mix. The earlier report's own files (``report.*`` and the charts and tables
+its ``report.json`` lists) are not carried over; everything else in the folder (a file the
+analyst put in ``charts/``, the input) is. ``report.files`` is the manifest and
+``report.checksums`` holds each other file's SHA-256, so a reader can check the set is whole.
 """
 
 from __future__ import annotations
 
 import csv
+import hashlib
 import io
 import json
+import re
 from datetime import date
 from pathlib import Path
 
 from ..errors import InputError
-from ..output import check_targets, dumps, write_atomic
+from ..output import check_targets, dumps
+from ..output_folder import publish_folder
 from . import html
 from .content import Content, build
 from .extract import gather
@@ -47,6 +53,17 @@ def table_csv(table: Table) -> str:
     return buf.getvalue()
 
 
+_XL_ILLEGAL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")  # what a workbook cannot hold
+
+
+def xl_text(value):
+    """A cell value a workbook can hold: control characters (a name from the data may carry
+    them) shown as ``\\x1b``-style escapes; other values unchanged."""
+    if not isinstance(value, str):
+        return value
+    return _XL_ILLEGAL.sub(lambda m: f"\\x{ord(m.group()):02x}", value)
+
+
 def workbook_bytes(content: Content) -> bytes:
     """All tables in one .xlsx workbook (openpyxl), plus a sheet with summary and cautions."""
     from openpyxl import Workbook
@@ -55,17 +72,17 @@ def workbook_bytes(content: Content) -> bytes:
     wb = Workbook()
     first = wb.worksheets[0]
     first.title = "summary"
-    first.append([inert_text(content.title)])
+    first.append([xl_text(inert_text(content.title))])
     first["A1"].font = Font(bold=True, size=13)
-    first.append([inert_text(content.subtitle)])
+    first.append([xl_text(inert_text(content.subtitle))])
     first.append([])
     for sentence in content.summary:
-        first.append([inert_text(sentence)])
+        first.append([xl_text(inert_text(sentence))])
     first.append([])
     first.append(["Cautions"])
     first.cell(row=first.max_row, column=1).font = Font(bold=True)
     for text in content.cautions:
-        first.append([inert_text(text)])
+        first.append([xl_text(inert_text(text))])
     first.column_dimensions["A"].width = 120
     for row in first.iter_rows():
         for c in row:
@@ -78,7 +95,7 @@ def workbook_bytes(content: Content) -> bytes:
                 target = ws.cell(row=r, column=col)
                 kind = kinds[col - 1]
                 value = v if r == 1 else excel_value(v, kind)
-                target.value = value if isinstance(value, date) else cell(value)
+                target.value = value if isinstance(value, date) else xl_text(cell(value))
                 if isinstance(target.value, str):
                     target.data_type = "s"  # never a formula
                 elif r > 1 and kind in EXCEL_FORMATS:
@@ -88,21 +105,48 @@ def workbook_bytes(content: Content) -> bytes:
         for col in range(1, len(table.columns) + 1):
             ws.column_dimensions[ws.cell(row=1, column=col).column_letter].width = 16
         if table.note:
-            ws.cell(row=ws.max_row + 2, column=1, value=inert_text(table.note))
+            ws.cell(row=ws.max_row + 2, column=1, value=xl_text(inert_text(table.note)))
+    wb.properties.creator = "regimetrend"
     buf = io.BytesIO()
     wb.save(buf)
-    return buf.getvalue()
+    return steady_zip(buf.getvalue())
 
 
-def report_json(data, content: Content, files: list[str]) -> dict:
-    """The full result, with the report's own parts beside it; ``files`` is the manifest."""
+FIXED_ZIP_TIME = (1980, 1, 1, 0, 0, 0)  # the earliest time a zip entry can hold
+_STAMPS = re.compile(rb"(<dcterms:(created|modified)[^>]*>)[^<]*(</dcterms:\2>)")
+
+
+def steady_zip(data: bytes) -> bytes:
+    """A workbook (a zip archive) with every time stamp fixed (the entries' and the document
+    properties' creation and modification times), so identical reports are identical bytes."""
+    import zipfile
+
+    src = zipfile.ZipFile(io.BytesIO(data))
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w", compression=zipfile.ZIP_DEFLATED) as dst:
+        for info in src.infolist():
+            body = src.read(info.filename)
+            if info.filename == "docProps/core.xml":
+                body = _STAMPS.sub(rb"\g<1>1980-01-01T00:00:00Z\g<3>", body)
+            entry = zipfile.ZipInfo(info.filename, date_time=FIXED_ZIP_TIME)
+            entry.compress_type = zipfile.ZIP_DEFLATED
+            entry.external_attr = 0o644 << 16
+            dst.writestr(entry, body)
+    return out.getvalue()
+
+
+def report_json(data, content: Content, files: list[str],
+                checksums: dict[str, str] | None = None) -> dict:
+    """The full result, with the report's own parts beside it; ``files`` is the manifest and
+    ``checksums`` the SHA-256 of every file but ``report.json`` itself."""
     result = dict(data.result)
     if data.growth is not None and "growth" not in result:
         result["growth"] = data.growth
     result["report"] = {"summary": content.summary, "cautions": content.cautions,
                         "charts": [c.name for c in content.charts],
                         "tables": [t.name for t in content.tables],
-                        "not_shown": content.missing, "files": files}
+                        "not_shown": content.missing, "files": files,
+                        "checksums": dict(checksums or {})}
     return result
 
 
@@ -138,17 +182,15 @@ def previous_files(folder: Path) -> set[Path]:
     return {p for p in map(_own_file, files) if p is not None}
 
 
-def _remove_stale(folder: Path, earlier: set[Path], written: set[Path]) -> None:
-    """Remove the earlier run's chart and table files that this run did not write again, so a
-    folder never mixes two analyses. Nothing outside the earlier manifest is removed."""
-    for rel in sorted(earlier - written):
-        path = folder / rel
-        if path.is_file() and not path.is_symlink():
-            path.unlink()
+def _digest(payload: bytes | str) -> str:
+    return hashlib.sha256(payload.encode("utf-8") if isinstance(payload, str)
+                          else payload).hexdigest()
 
 
-def build_outputs(data, content: Content) -> dict[str, tuple[Path, bytes | str]]:
-    """Every output in memory: {output name: (path relative to the folder, bytes or text)}."""
+def build_outputs(data, content: Content,
+                  extra: dict[str, bytes] | None = None) -> dict[str, tuple[Path, bytes | str]]:
+    """Every output in memory: {output name: (path relative to the folder, bytes or text)};
+    ``extra`` adds files by name (the demo's copy of its data)."""
     from .. import __version__
 
     out: dict[str, tuple[Path, bytes | str]] = {}
@@ -165,29 +207,38 @@ def build_outputs(data, content: Content) -> dict[str, tuple[Path, bytes | str]]
                              footer=f"Made with regimetrend {__version__}. The full result is "
                                     f"in report.json; tables as CSV in tables/ and in "
                                     f"report.xlsx; charts as PNG in charts/."))
+    for name, payload in (extra or {}).items():
+        out[name] = (Path(name), payload)
     files = sorted([p.as_posix() for p, _ in out.values()] + [MANIFEST])
-    out["json"] = (Path(MANIFEST), dumps(report_json(data, content, files)))
+    checksums = {p.as_posix(): _digest(payload) for p, payload in out.values()}
+    out["json"] = (Path(MANIFEST), dumps(report_json(data, content, files, checksums)))
     return out
 
 
 def write_report(analysis, folder, *, source_name: str | None = None, units: str | None = None,
-                 log_scale: bool = False, progress=None) -> dict:
+                 log_scale: bool = False, progress=None,
+                 extra: dict[str, bytes] | None = None) -> dict:
     """Write the HTML report, charts, CSV tables, workbook and JSON for ``analysis`` into
-    ``folder``; returns {output name: path}. Nothing is written when building any output
-    fails. ``units`` names the values' units on every axis and in the sentences (the series
-    name by default); ``log_scale`` draws value axes on a log scale; ``progress(done, total)``
-    is called as the parts are drawn."""
+    ``folder``; returns {output name: path}. ``units`` names the values' units on every axis
+    and in the sentences (the series name by default); ``log_scale`` draws value axes on a log
+    scale; ``progress(done, total)`` is called as the parts are drawn. ``extra`` adds files by
+    name, written only where the folder has no file of that name yet. Nothing is written when
+    building any output fails, and the folder switches from the earlier report to this one as
+    a whole."""
     folder = Path(folder)
     data = gather(analysis, source_name, units)
-    outputs = build_outputs(data, build(data, log_scale=log_scale, progress=progress))
+    extra = {k: v for k, v in (extra or {}).items() if not (folder / k).exists()}
+    outputs = build_outputs(data, build(data, log_scale=log_scale, progress=progress), extra)
+    return publish_report(folder, outputs)
+
+
+def publish_report(folder, outputs: dict[str, tuple[Path, bytes | str]]) -> dict:
+    """Switch ``folder`` to the built ``outputs`` (see ``build_outputs``) as a whole; returns
+    {output name: path}."""
+    folder = Path(folder)
     if folder.exists() and not folder.is_dir():
         raise InputError(f"--output: {folder} is a file, not a folder")
     check_targets([folder / rel for rel, _ in outputs.values()], "--output")
-    earlier = previous_files(folder)
-    folder.mkdir(parents=True, exist_ok=True)
-    written: dict[str, Path] = {}
-    for key in [k for k in outputs if k != "json"] + ["json"]:  # the manifest last
-        rel, payload = outputs[key]
-        written[key] = write_atomic(folder / rel, payload, "--output")
-    _remove_stale(folder, earlier, {rel for rel, _ in outputs.values()})
-    return {k: str(written[k]) for k in outputs}
+    publish_folder(folder, {rel: payload for rel, payload in outputs.values()},
+                   earlier_own=previous_files, manifest=MANIFEST, what="--output")
+    return {k: str(folder / rel) for k, (rel, _) in outputs.items()}

@@ -1,0 +1,62 @@
+"""Runs that would take hours are refused at once naming the options that shrink them; runs that
+take minutes say so up front; terminal lines show control characters as escapes."""
+
+import io
+from types import SimpleNamespace
+
+import numpy as np
+import pytest
+
+from regimetrend.cli import budget, main
+from regimetrend.cli.text import VisibleStream, visible
+from regimetrend.errors import InputError
+from regimetrend.settings import EvaluationSettings
+
+
+def fake_series(n):
+    return SimpleNamespace(n=n)
+
+
+def test_a_million_point_scan_is_refused_at_once():
+    with pytest.raises(InputError, match="1,000,000 periods.*hours"):
+        budget.check_scan(fake_series(1_000_000))
+
+
+def test_a_hundred_thousand_point_scan_is_announced():
+    err = io.StringIO()
+    budget.check_scan(fake_series(100_000), stream=err)
+    assert err.getvalue().startswith("regimetrend: note: 100,000 periods") and "minutes" in err.getvalue()
+    quiet = io.StringIO()
+    budget.check_scan(fake_series(2_000), stream=quiet)
+    assert quiet.getvalue() == ""
+
+
+def test_a_large_evaluation_names_the_options_that_shrink_it(monkeypatch):
+    monkeypatch.setattr(budget, "origins", lambda series, evaluation: 24)
+    with pytest.raises(InputError) as info:
+        budget.check_evaluation(fake_series(100_000), EvaluationSettings())
+    assert all(word in str(info.value) for word in ("--step", "--first-origin", "--reuse-breaks"))
+    err = io.StringIO()  # found once: minutes, announced
+    budget.check_evaluation(fake_series(100_000), EvaluationSettings(reuse_breaks=True), stream=err)
+    assert "24 origins" in err.getvalue()
+
+
+def test_compare_of_a_hundred_thousand_points_is_refused_before_any_work(tmp_path, capsys):
+    n = 100_000
+    days = np.datetime64("1900-01-01") + np.arange(n)
+    values = 100 + 0.01 * np.arange(n) + np.sin(np.arange(n))
+    path = tmp_path / "long.csv"
+    path.write_text("date,value\n" + "\n".join(f"{d},{v:.4f}" for d, v in zip(days, values)))
+    assert main(["compare", str(path)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--step" in err[0] and "--reuse-breaks" in err[0]
+
+
+def test_visible_escapes_every_control_character():
+    assert visible("a\x1b[2Jb") == "a\\x1b[2Jb"
+    assert visible("x\u202ey\n") == "x\\u202ey\\x0a"
+    assert visible("line\nnext", keep_newlines=True) == "line\nnext"
+    assert visible("caf\u00e9 \u2013 ok") == "caf\u00e9 \u2013 ok"
+    out = io.StringIO()
+    VisibleStream(out).write("name\x07\x9b31m\n")
+    assert out.getvalue() == "name\\x07\\x9b31m\n"

@@ -42,7 +42,15 @@ def layout(fig) -> dict:
             "legend_clipped": any(b.x0 < 0 or b.y0 < 0 or b.x1 > fig.bbox.x1 or b.y1 > fig.bbox.y1
                                   for b in boxes),
             "ticks": [[t.get_text() for t in a.get_xticklabels() if t.get_text()]
-                      for a in fig.axes]}
+                      for a in fig.axes],
+            "ylabels": [a.get_ylabel() for a in fig.axes],
+            "ticks_overlap": any(_overlapping([t.get_window_extent(r)
+                                               for t in a.get_xticklabels() if t.get_text()])
+                                 for a in fig.axes)}
+
+
+def _overlapping(boxes) -> bool:
+    return any(a.overlaps(b) for i, a in enumerate(boxes) for b in boxes[i + 1:])
 
 
 def assert_clean(fig, unit=None):
@@ -51,6 +59,7 @@ def assert_clean(fig, unit=None):
     assert 1 <= facts["entries"] <= 6, facts
     assert not facts["legend_over_plot"], facts
     assert not facts["legend_clipped"], facts
+    assert not facts["ticks_overlap"], facts
     if unit is not None:
         for ticks in facts["ticks"]:
             assert len(ticks) >= 2, facts

@@ -326,3 +326,31 @@ def test_the_workbook_is_the_same_bytes_on_every_run(analyses):
     assert built["json"][1] == again["json"][1]  # its checksums included
     core = zipfile.ZipFile(io.BytesIO(built["workbook"][1])).read("docProps/core.xml")
     assert b"1980-01-01T00:00:00Z" in core
+
+
+def test_a_folder_that_cannot_be_made_is_one_line(tmp_path, analyses, monkeypatch):
+    """PermissionError while making the folder (root ignores file modes, so it is injected)."""
+    from regimetrend.errors import InputError as Refused
+
+    real = Path.mkdir
+
+    def refuse(self, *args, **kwargs):
+        if "locked" in str(self):
+            raise PermissionError(13, "Permission denied", str(self))
+        return real(self, *args, **kwargs)
+
+    monkeypatch.setattr(Path, "mkdir", refuse)
+    with pytest.raises(Refused, match="--output: cannot create folder .*Permission denied"):
+        write_report(analyses["first analysis"][0], tmp_path / "locked" / "rep")
+
+
+def test_any_other_refusal_by_the_system_is_one_line_and_exit_2(tmp_path, capsys, monkeypatch):
+    from regimetrend.cli import main, scan
+
+    def refuse(args):
+        raise PermissionError(13, "Permission denied", str(tmp_path / "x\x1b.csv"))
+
+    monkeypatch.setattr(scan, "run", refuse)
+    assert main(["scan", str(DEMO)]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "Permission denied" in err and "\x1b" not in err

@@ -266,8 +266,11 @@ def test_forecast_and_ranking_tables_match_the_json(demo_report):
     cands = result["evaluation"]["candidates"]
     ranking = parsed.tables["candidate_ranking"]
     # every candidate appears (the leading five, the rest folded in <details>), in rank order,
-    # with its readable name and its key in report.json
-    assert [r["key"] for r in ranking] == [c["name"] for c in cands]
+    # with its readable name on the page; the CSV adds its key in report.json
+    with open(folder / "tables" / "candidate_ranking.csv") as fh:
+        csv_rows = list(csv.DictReader(fh))
+    assert [r["Name in report.json"] for r in csv_rows] == [c["name"] for c in cands]
+    assert [r["candidate"] for r in ranking] == [r["Candidate"] for r in csv_rows]
     assert len(ranking) > 5
     page = (folder / "report.html").read_text()
     section = page[page.index('id="table-candidate_ranking"'):]

@@ -69,6 +69,11 @@ def main(argv=None) -> int:
     except BrokenPipeError:  # output piped into a reader that stopped early (head, less)
         os.dup2(os.open(os.devnull, os.O_WRONLY), stdout.fileno())
         return 1
+    except OSError as exc:  # the system refused (permissions, a full disk): one line, no trace
+        where = f": {exc.filename}" if exc.filename else ""
+        print(f"regimetrend: error: {visible(exc.strerror or exc)}{visible(where)}",
+              file=sys.stderr)
+        return 2
     finally:
         sys.stdout = stdout
 

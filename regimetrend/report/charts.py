@@ -179,7 +179,7 @@ def calendar_ticks(first, last, frequency, most: int = 7) -> list[np.datetime64]
         return [np.datetime64("1970-01", "M") + np.timedelta64(m, "M") for m in months]
     days = 7 * step if unit == "week" else step
     span = int((last - first).astype(int))
-    if span >= 2 * 365:  # years apart: the first period start of every k-th year
+    if span >= 3.5 * 365:  # years apart: the first period start of every k-th year
         y0, y1 = (int(_years(np.array([x]))[0]) for x in (first, last))
         k = next((k for k in (1, 2, 5, 10, 20, 50, 100) if (y1 - y0) / k + 1 <= most), 100)
         out: list[np.datetime64] = []
@@ -214,6 +214,23 @@ def _date_axis(ax, first, last, frequency, most: int = 7, pad: float = 0.02) -> 
     span = max(hi - lo, 1.0)
     ax.set_xlim(lo - pad * span, hi + pad * span)
     return labels
+
+
+def _log_axis(ax) -> None:
+    """A log-scale value axis with plain numbers at 1-2-5 steps (1-2-3-5 over less than a
+    decade and a half, every digit within half a decade), never powers of ten like 6 x 10^2."""
+    from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
+    from .. import numformat
+
+    ax.set_yscale("log")
+    lo, hi = ax.get_ylim()
+    decades = np.log10(max(hi, 1e-300)) - np.log10(max(lo, 1e-300))
+    subs = ((1.0, 2.0, 5.0) if decades >= 1.5 else (1.0, 2.0, 3.0, 5.0) if decades >= 0.5
+            else tuple(float(k) for k in range(1, 10)))
+    ax.yaxis.set_major_locator(LogLocator(base=10, subs=subs))
+    ax.yaxis.set_major_formatter(FuncFormatter(lambda v, _: numformat.number(v)))
+    ax.yaxis.set_minor_formatter(NullFormatter())
 
 
 def _period_word(frequency) -> str:
@@ -265,6 +282,7 @@ def series_figure(dates, values, *, units: str, frequency, breaks=(), break_span
     values = np.asarray(values, dtype=float)
     zoom = zoom_from is not None and _dates([zoom_from])[0] > d[0]
     fig, axes = _figure(2 if zoom else 1, [3, 2] if zoom else None, HEIGHT + 0.4)
+    fig.set_label("series")
     handles: dict[str, object] = {}
     end = d[-1]
     for fc in (forecast, global_forecast):
@@ -279,6 +297,10 @@ def series_figure(dates, values, *, units: str, frequency, breaks=(), break_span
         (h,) = ax.plot(d[keep], values[keep], color=ACTUAL, lw=1.1 if not zoomed else 1.4,
                        marker="o" if keep.sum() <= 40 else None, ms=2.5)
         handles.setdefault("actual", h)
+        if global_trend is None and global_forecast is not None and (zoomed or not zoom):
+            (h,) = ax.plot(_dates(global_forecast.dates), global_forecast.mean, color=GLOBAL,
+                           lw=1.4, ls="--")
+            handles.setdefault("global", h)
         if global_trend is not None:
             gd = _dates(global_trend.dates)
             gk = gd >= first
@@ -310,10 +332,11 @@ def series_figure(dates, values, *, units: str, frequency, breaks=(), break_span
             handles.setdefault("breaks", Patch(facecolor=BREAK, alpha=0.35, hatch="//",
                                                edgecolor=BREAK))
         if log_scale:
-            ax.set_yscale("log")
+            _log_axis(ax)
         ax.set_ylabel(_wrap(units + (" (log scale)" if log_scale else "")))
-        _date_axis(ax, first, end, frequency, most=6 if zoomed or calendar(frequency).unit in
-                   ("week", "day") else 8)
+        long_labels = calendar(frequency).unit in ("week", "day")  # 2021-03-01, not 2021-03
+        _date_axis(ax, first, end, frequency,
+                   most=(4 if long_labels else 6) if zoomed else (6 if long_labels else 8))
         ax.set_xlabel(f"period start ({_period_word(frequency)})")
         if zoom:
             ax.set_title(_plain(f"from {calendar(frequency).label(first)}: latest regime and "
@@ -336,15 +359,17 @@ def error_figure(dates, lines: dict, *, units: str, frequency, horizon_note: str
     """Forecast errors (actual minus forecast) over time, one line per strategy; the first
     line is the global trend."""
     fig, (ax,) = _figure()
+    fig.set_label("errors")
     ax.axhline(0.0, color="#555555", lw=0.8)
     d = _dates(dates)
     colours = (GLOBAL, FORECAST) + CANDIDATE_COLOURS
+    styles = ("--", "-") + STYLES
     for k, (label, errors) in enumerate(lines.items()):
-        ax.plot(d, errors, color=colours[k % len(colours)], lw=1.4, ls=STYLES[k % len(STYLES)],
-                marker="o", ms=2.5, label=_plain(label))
+        ax.plot(d, errors, color=colours[k % len(colours)], lw=1.4 if k else 1.2,
+                ls=styles[k % len(styles)], marker="o", ms=2.5, label=_plain(label))
     _date_axis(ax, d.min(), d.max(), frequency)
     ax.set_xlabel(f"forecast target period ({_period_word(frequency)}){horizon_note}")
-    ax.set_ylabel(_wrap(f"error, actual minus forecast ({units})"))
+    ax.set_ylabel(_wrap(f"error ({units})", 30))
     ax.set_title(_plain(title), loc="left", fontsize=11)
     _legend(fig, ncol=2)
     return fig
@@ -357,6 +382,7 @@ def error_chart(dates, lines: dict, **kwargs) -> bytes:
 def cusum_figure(dates, path, lower, upper, *, frequency, ylabel: str, title: str = ""):
     """A CUSUM path with its significance band."""
     fig, (ax,) = _figure()
+    fig.set_label("cusum")
     d = _dates(dates)
     ax.fill_between(d, lower, upper, color=BAND, alpha=0.25, lw=0, label="5% significance band")
     ax.plot(d, upper, color=OKABE_ITO["blue"], lw=0.9, ls="--")
@@ -384,6 +410,7 @@ def history_figure(dates, scores, *, metric: str, frequency, chosen=None, points
     ``points`` are extra (date, score, label) marks, e.g. fits that start at a break;
     ``chosen`` the recommended start, drawn as a dashed vertical line."""
     fig, (ax,) = _figure()
+    fig.set_label("history")
     d = _dates(dates)
     ax.plot(d, scores, color=REGIME, lw=1.6, marker="o", ms=3.5, label="fixed start dates")
     markers = ("D", "^", "s", "v")
@@ -424,6 +451,7 @@ def horizon_figure(horizons, lines: dict, *, metric: str, highlight: str | None 
     from matplotlib.ticker import MaxNLocator
 
     fig, (ax,) = _figure()
+    fig.set_label("horizon")
     k = 0
     for label, values in list(lines.items())[:MAX_LEGEND]:
         if label == reference:
@@ -457,7 +485,8 @@ def growth_figure(labels, values, lower, upper, *, quantity: str, title: str = "
     """Growth by regime as bars with 95% interval whiskers; the current regime in blue."""
     from .. import numformat
 
-    fig, (ax,) = _figure()
+    fig, (ax,) = _figure(height=HEIGHT - 0.8)
+    fig.set_label("growth")
     x = np.arange(len(labels))
     vals = np.array([np.nan if v is None else v for v in values], dtype=float)
     lo = np.array([np.nan if v is None else v for v in lower], dtype=float)

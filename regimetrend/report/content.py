@@ -42,6 +42,14 @@ def _band(label, fc) -> charts.Band:
     return charts.Band(label, fc.starts, p.mean, p.lower80, p.upper80, p.lower95, p.upper95)
 
 
+def _same(a, b) -> bool:
+    """Two forecasts with the same dates and means (the global trend recommended, say)."""
+    if a is None or b is None:
+        return a is b
+    return (len(a.starts) == len(b.starts) and bool(np.all(a.starts == b.starts))
+            and bool(np.allclose(a.points.mean, b.points.mean)))
+
+
 def _seasonal(d: ReportData) -> bool:
     return getattr(d.spec, "seasonality", "none") != "none"
 
@@ -70,13 +78,16 @@ def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
     trend = d.regime_trend if d.regime_trend is not None else d.regime_fitted
     regime_bands = _regime_bands(d, trend) if trend is not None else []
     gline = d.global_trend if d.global_trend is not None else d.global_fitted
-    global_trend = charts.Band("global", s.starts, gline) if gline is not None else None
+    # with no break the trend of the one regime is the global trend: drawn once, in blue
+    global_trend = (charts.Band("global", s.starts, gline)
+                    if gline is not None and (d.breaks or not regime_bands) else None)
     seasonal_fit = (charts.Band("seasonal", s.starts, d.regime_fitted)
                     if seasonal and d.regime_fitted is not None and d.regime_trend is not None
                     else None)
     forecast = _band("forecast", d.forecast) if d.forecast is not None else None
     global_forecast = (_band("global", d.global_forecast)
-                       if d.global_forecast is not None and d.global_forecast is not d.forecast
+                       if d.global_forecast is not None and not _same(d.global_forecast,
+                                                                      d.forecast)
                        else None)
     horizon = d.forecast.horizon if d.forecast is not None else 4
     first = zoom_start(s.n, d.breaks[-1].position if d.breaks else None, horizon,
@@ -86,8 +97,10 @@ def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
     at_average = " (seasonal terms at average)" if seasonal else ""
     labels = {"regime": f"{shape} trend of each regime{at_average}" if d.breaks else
               f"{shape} trend{at_average}",
-              "global": "one global trend" + (", its forecast on the right" if first is not None
-                                              and global_forecast is not None else "")}
+              "global": ("one global trend" if global_trend is not None else
+                         "one global trend's forecast")
+              + (", its forecast on the right" if first is not None and global_trend is not None
+                 and global_forecast is not None else "")}
     png = charts.series_chart(
         s.starts, s.values, units=d.units, frequency=s.frequency,
         breaks=[s.starts[b.position] for b in d.breaks],
@@ -106,6 +119,8 @@ def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
     elif d.regime_trend is not None:
         parts.append(f"Solid blue line: the {shape} trend"
                      + (", with the seasonal terms at their average" if seasonal else "") + ".")
+    if global_trend is None and global_forecast is not None:
+        parts.append("Dashed purple: the forecast of one trend over all history.")
     if global_trend is not None:
         parts.append("Dashed purple: one trend over all history"
                      + (" (with its forecast in the right panel)." if first is not None
@@ -133,12 +148,15 @@ def _error_chart(d: ReportData) -> Chart | None:
         lines[f"recommended: {_name(d, d.recommended)}"] = t.errors(d.recommended)[:, 0]
     png = charts.error_chart(s.starts[targets], lines, units=d.units,
                              frequency=s.frequency, horizon_note=", one period ahead",
-                             title="Forecast errors on the rolling origin")
+                             title="Forecast errors on the rolling origin (actual minus "
+                                   "forecast)")
+    which = ("of the global trend (dashed purple) and of the recommended strategy (solid "
+             "vermillion)" if len(lines) == 2 else
+             "of the global trend, which is also the recommended strategy")
     return Chart("forecast_errors", "Forecast errors over time",
-                 "One-period-ahead errors (actual minus forecast) of the global trend and of the "
-                 "recommended strategy, each fitted only on the history before the period it "
-                 "forecasts. Errors drifting away from zero show a trend that no longer holds.",
-                 png)
+                 f"One-period-ahead errors (actual minus forecast) {which}, each fitted only on "
+                 "the history before the period it forecasts. Errors drifting away from zero "
+                 "show a trend that no longer holds.", png)
 
 
 def _candidate(d: ReportData, name: str | None) -> dict | None:
@@ -263,6 +281,7 @@ def _growth_chart(d: ReportData) -> Chart | None:
 
 
 def _facts(d: ReportData) -> list[Fact]:
+    s = d.series
     facts = []
     g = d.growth
     if g and g.get("segments"):
@@ -283,8 +302,9 @@ def _facts(d: ReportData) -> list[Fact]:
     if d.forecast is not None and d.forecast.horizon:
         row = d.forecast.rows()[0]
         which = "recommended forecast" if d.recommended else "forecast"
-        facts.append(Fact(f"{which} {row['label']}", num(row["mean"]),
-                          f"95%: {num(row['lower95'])} to {num(row['upper95'])}"))
+        units = f" {d.units}" if d.units and d.units != s.name else ""
+        facts.append(Fact(f"{which} {row['label']}", num(row["mean"]) + units,
+                          f"95%: {num(row['lower95'])} to {num(row['upper95'])}{units}"))
     rec = d.recommended
     if rec:
         facts.append(Fact("recommended strategy", _name(d, rec) or rec, ""))
@@ -320,7 +340,10 @@ def build(d: ReportData, *, log_scale: bool = False, progress=None) -> Content:
                  for c in d.evaluation.get("candidates") or ()}
         tables.append(ranking_rows(d.evaluation, names))
     if d.forecast is not None:
-        tables.append(forecast_rows(d.forecast.to_dict()))
+        ft = forecast_rows(d.forecast.to_dict())
+        words = strategy_words(recommended_candidate(d.evaluation))
+        tables.append(Table(ft.name, ft.title, ft.columns, ft.rows,
+                            f"Model: {words}." if words else ft.note))
     if d.breaks_dict and d.breaks_dict.get("breaks"):
         bt = break_rows(d.breaks_dict)
         bt = Table(bt.name, bt.title, bt.columns,

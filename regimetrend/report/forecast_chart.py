@@ -20,6 +20,7 @@ def forecast_figure(series, fitted: np.ndarray, fitted_from: int, forecast, unit
                     holdout=None, log_scale: bool = False):
     """Actuals, the in-sample fit, the forecast with 80%/95% bands, and the holdout."""
     fig, (ax,) = charts._figure(height=charts.HEIGHT + 0.3)
+    fig.set_label("forecast")
     d = series.starts
     ax.plot(d, series.values, color=charts.ACTUAL, lw=1.2, label="actual",
             marker="o" if series.n <= 40 else None, ms=2.5)
@@ -44,7 +45,7 @@ def forecast_figure(series, fitted: np.ndarray, fitted_from: int, forecast, unit
         handles[f"holdout from {series.label(series.n - holdout.k)}: forecast fitted "
                 f"before it"] = (vline, hl)
     if log_scale:
-        ax.set_yscale("log")
+        charts._log_axis(ax)
     charts._date_axis(ax, d[0], forecast.starts[-1] if forecast.horizon else d[-1],
                       series.frequency)
     ax.set_title(charts._plain(f"{series.name}: trend forecast"), loc="left", fontsize=11)

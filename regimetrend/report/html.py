@@ -98,7 +98,7 @@ def _value_span(c, row) -> str:
 
 
 def _table_html(table: Table) -> str:
-    groups = _groups(table.columns)
+    groups = _groups(c for c in table.columns if c.page)
     head = "".join(f'<th class="{"t" if g[0].kind in ("text", "date") else "n"}" scope="col">'
                    f'{esc("95% interval" if len(g) == 2 else g[0].heading)}</th>'
                    for g in groups)

@@ -23,6 +23,7 @@ class Column:
     key: str
     heading: str
     kind: str = "num"
+    page: bool = True  # shown on the HTML page (CSV and workbook keep every column)
 
 
 @dataclass(frozen=True)
@@ -120,10 +121,9 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
             Column("recommended", "Recommended", "text"), Column("rmse", "RMSE", "num"),
             Column("mae", "MAE", "num"), Column("mape", "MAPE, %", "pct"),
             Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage, %", "pct"),
-            Column("gain_pct", "RMSE below the global trend's, %", "pct"),
-            Column("dm_p_value", "p-value, beats global (Diebold-Mariano, one-sided)",
-                   "pvalue"),
-            Column("key", "Name in report.json", "text"))
+            Column("gain_pct", "RMSE gain over global, %", "pct"),
+            Column("dm_p_value", "p-value, beats global (DM)", "pvalue"),
+            Column("key", "Name in report.json", "text", page=False))
     rows = []
     for c in evaluation.get("candidates", []):
         m = c.get("metrics", {})
@@ -138,7 +138,10 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
                      "gain_pct": None if gain is None else 100.0 * gain, "dm_p_value": p,
                      "key": c.get("name")})
     note = "Rolling-origin forecasts, errors in original units; lower is better for RMSE, MAE, " \
-           "MAPE and MASE."
+           "MAPE and MASE. RMSE gain: how much lower the RMSE is than the global trend's, as % " \
+           "of the global trend's RMSE. p-value: one-sided Diebold-Mariano test (with the " \
+           "Harvey-Leybourne-Newbold correction) that the candidate forecasts better than the " \
+           "global trend."
     if evaluation.get("optimistic_note"):
         note += " " + str(evaluation["optimistic_note"]).capitalize() + "."
     return Table("candidate_ranking", "Candidate ranking", cols, tuple(rows), note,
@@ -147,7 +150,7 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
 
 def forecast_rows(forecast: dict, title: str = "Forecast with intervals") -> Table:
     """The forecast (``Forecast.to_dict()``) with 80% and 95% intervals."""
-    cols = (Column("label", "Period", "text"), Column("date", "Period start", "date"),
+    cols = (Column("label", "Period", "text"), Column("date", "Period start", "date", page=False),
             Column("mean", "Forecast (mean)", "num"), Column("median", "Median", "num"),
             Column("lower80", "80% low", "num"), Column("upper80", "80% high", "num"),
             Column("lower95", "95% low", "num"), Column("upper95", "95% high", "num"))
@@ -161,7 +164,7 @@ def break_rows(breaks: dict, series_labels: dict | None = None) -> Table:
     per break: the partial F of that break given the others (the sup-F tests that decide how
     many breaks there are are reported with the summary)."""
     cols = (Column("break", "Break", "int"), Column("label", "First period of new regime", "text"),
-            Column("date", "Start date of new regime", "date"),
+            Column("date", "Start date of new regime", "date", page=False),
             Column("low", "95% interval, from", "text"),
             Column("high", "95% interval, to", "text"),
             Column("f_statistic", "F, this break given the others", "stat"))

@@ -65,6 +65,22 @@ class Analysis:
         })
 
 
+def _blas_held(fn):
+    """Run ``fn`` with BLAS held to one thread. The analysis is thousands of tiny least-squares
+    problems, which BLAS threads only slow down (the demo: 3.5 s of CPU with threads free,
+    2.0 s held; ``benchmarks/bench_portfolio.py``)."""
+    import functools
+
+    @functools.wraps(fn)
+    def run(*args, **kwargs):
+        from .breaks.detect import _one_blas_thread
+
+        with _one_blas_thread():
+            return fn(*args, **kwargs)
+    return run
+
+
+@_blas_held
 def analyze(series, settings: Settings | None = None, *, progress=None,
             **choices) -> Analysis:
     """Run the whole analysis of ``series`` (a ``Series``, or a pandas Series or date/value

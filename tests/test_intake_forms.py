@@ -15,11 +15,14 @@ import numpy as np
 import openpyxl
 import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from openpyxl.utils.datetime import from_excel
 
 from regimetrend.cli import main
 from regimetrend.errors import InputError
 from regimetrend.intake import load_series, parse_date
+from regimetrend.intake.values import _plain_floats, number
 from tests.conftest import rseries
 
 
@@ -283,3 +286,17 @@ def test_numbers_in_no_date_form_are_refused(tmp_path, cells):
     with pytest.raises(InputError, match=rf"row 2, column 'date': {cells[0]} is not a date.*"
                                          r"--date-format"):
         load_series(write(tmp_path, text))
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.from_regex(r"[-+]?[0-9]{1,7}([.,][0-9]{3}){0,3}([.,][0-9]{0,4})?([eE][-+]?[0-9]{1,2})?",
+                     fullmatch=True), st.sampled_from([".", ","]))
+def test_fast_number_path_reads_what_the_cell_reader_reads(text, decimal):
+    # a whole column of plain numbers is read in one pass; it must agree with the reader of
+    # single cells (grouping, marks, exponents), which names the row when a cell is wrong
+    fast = _plain_floats([text], decimal)
+    try:
+        slow = number(text, decimal)
+    except ValueError:
+        slow = None
+    assert fast is None or fast[0] == slow

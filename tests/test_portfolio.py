@@ -72,9 +72,11 @@ def test_bad_series_never_stop_the_batch_and_name_the_file_row(tmp_path):
     src = tmp_path / "long.csv"
     frame.to_csv(src, index=False)
     out = tmp_path / "out"
+    calls = []
     result = run_portfolio(src, out, id_columns=["region", "product"], level="scan",
-                           workers=2)
+                           workers=2, progress=lambda done, total: calls.append((done, total)))
     assert (result.total, result.ok, result.failed) == (6, 4, 2)
+    assert calls[-1] == (6, 6) and [d for d, _ in calls] == sorted(d for d, _ in calls)
     rows = read_rows(out).set_index("id")
     bad_date = rows.loc["north / gadgets"]
     assert bad_date["status"] == "failed"
@@ -284,3 +286,36 @@ def test_full_level_local_and_dask_identical_with_reports(tmp_path):
     reports = [k for k in local if k.startswith("reports/") and k.endswith("report.html")]
     assert len(reports) == 1 and top.replace(" / ", "_") in reports[0]
     assert 'href="reports/' in local["portfolio.html"].decode()
+
+
+def test_workers_hold_every_blas_library_to_one_thread():
+    # threadpoolctl (a reference library) lists every BLAS loaded in the process
+    code = ("from regimetrend.portfolio.worker import hold_blas; hold_blas(); "
+            "from threadpoolctl import threadpool_info; "
+            "print(sorted({i['num_threads'] for i in threadpool_info() "
+            "if i['user_api'] == 'blas'}), len(threadpool_info()))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, env=dict(os.environ, PYTHONPATH=str(ROOT)))
+    threads, libraries = out.stdout.split("] ")
+    assert threads == "[1" and int(libraries) >= 1
+
+
+def test_analyze_holds_blas_to_one_thread(monkeypatch):
+    # threadpoolctl (a reference library) reports the BLAS threads while growth is computed
+    import scipy.linalg  # noqa: F401  (scipy's own BLAS loaded, as in any analysis)
+    from threadpoolctl import threadpool_info
+
+    from regimetrend import analysis, growth
+    from tests.conftest import rseries
+
+    seen = []
+    real = growth.growth_table
+
+    def spy(*args, **kwargs):
+        seen.extend(i["num_threads"] for i in threadpool_info() if i["user_api"] == "blas")
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(growth, "growth_table", spy)
+    # base-R datasets: Nile, annual flow of the Nile at Aswan 1871-1970
+    analysis.analyze(rseries("Nile", "year"), step=10)
+    assert seen and set(seen) == {1}

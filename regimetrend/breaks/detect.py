@@ -42,7 +42,7 @@ from . import calibrate, critical, cusum, chow, exact, intervals, kinks, select,
 from .problem import KINDS, BreakProblem, build_problem
 from .result import (Break, BreakSet, BreakTests, CusumSummary, Drift, EventTest, Segment,
                      SequentialStep, SupFTest)
-from .search import KindPath, best_added_break, search_both, search_tied
+from .search import PENALISED, KindPath, best_added_break, search_both, search_tied
 
 CAUTION_TESTS = ("The tests assume serially uncorrelated errors; with autocorrelated "
                  "residuals they find breaks too often, so read p-values as indicative.")
@@ -207,7 +207,9 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
 
     paths: dict[str, KindPath] = {}
     if "both" in kinds or kind == "auto":
-        paths["both"] = search_both(problem, M, criterion, "pelt" if long_series else "exact")
+        paths["both"] = search_both(problem, M, criterion,
+                                    (method if method == "auto" else "pelt") if long_series
+                                    else "exact")
     for k in kinds:
         if k != "both":
             starts = paths["both"].positions if "both" in paths else None
@@ -255,10 +257,13 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
     if problem.seasonal_by_regime:
         notes.append("Seasonal terms change with the regime: the sup-F table covers trend "
                      "changes only, so no p-value is given for it.")
-    if path.method == "pelt":
-        notes.append(f"Series of {exact.PELT_LENGTH} periods or more are searched by PELT with "
+    if path.method in PENALISED:
+        how = ("PELT" if path.method == "pelt" else
+               f"ruptures' bottom-up segmentation polished exactly (from {exact.BOTTOM_UP_LENGTH} "
+               f"periods, where it matched PELT's breaks several times faster)")
+        notes.append(f"Series of {exact.PELT_LENGTH} periods or more are searched by {how} with "
                      f"a BIC-matched penalty; only that break count is evaluated.")
-    if not proven and path.method != "pelt":
+    if not proven and path.method not in PENALISED:
         if chosen_kind == "both":
             notes.append("Seasonal terms shared by the regimes: the breaks are the settled "
                          "point of the seasonal/trend back-and-forth (exact given the seasonal "
@@ -517,7 +522,7 @@ def _sequential_count(problem: BreakProblem, path: KindPath, values, M: int, rob
     Where the tests have no p-values (seasonal terms by regime) the kind's BIC count is used;
     a PELT path knows only m = 0 and PELT's own count, so the BIC chooses between those two."""
     steps = _sequential(problem, path.kind, path, M, robust, first)
-    if path.method == "pelt":
+    if path.method in PENALISED:
         return select.best_count(values), steps, False
     if steps and steps[0].p_value is None:
         return select.best_count(values), steps, True

@@ -24,6 +24,10 @@ from .problem import BreakProblem
 MAX_ITERATIONS = 10
 
 
+BOTTOM_UP = "bottom-up (ruptures), polished exactly"
+PENALISED = ("pelt", BOTTOM_UP)  # searches that give one penalised break count, not a path
+
+
 @dataclass(frozen=True)
 class KindPath:
     """Best break sets of one kind for m = 0..M and the joint model's SSR for each."""
@@ -52,6 +56,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
                 ) -> KindPath:
     n, h = problem.n, problem.h
     use_pelt = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
+    bottom_up = use_pelt and method != "pelt" and n >= exact.BOTTOM_UP_LENGTH
     shared = problem.seasonal is not None and not problem.seasonal_by_regime
     season = _joint_ssr(problem, "both", ())[1] if shared else np.zeros(n)
     chosen = None
@@ -60,7 +65,8 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
         cost = _segment_cost(problem, problem.y - season)
         if use_pelt:
             pen = exact.bic_penalty(problem.y - season, changing)
-            found = exact.pelt_search(cost, pen, h)
+            found = (exact.bottom_up_search(cost, pen, h) if bottom_up
+                     else exact.pelt_search(cost, pen, h))
             sets = [(), found]
             flags = [True, False]
         else:
@@ -95,7 +101,8 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
         full_ssr[0], full_pos[0] = ssr[0], ()
         full_ssr[m_found], full_pos[m_found] = ssr[1], tuple(sets[1])
         return KindPath("both", tuple(full_ssr), tuple(full_pos),
-                        tuple([True] + [False] * m_found), "pelt", it, settled)
+                        tuple([True] + [False] * m_found),
+                        BOTTOM_UP if bottom_up else "pelt", it, settled)
     return KindPath("both", tuple(ssr), tuple(tuple(p) for p in sets), tuple(flags),
                     "exact dynamic programming", it, settled)
 

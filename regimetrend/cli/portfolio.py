@@ -76,6 +76,7 @@ def _formats(text: str) -> tuple[str, ...]:
 def run(args) -> int:
     from ..errors import InputError
     from ..portfolio import run_portfolio
+    from .progress import StageBar
 
     if args.scheduler and args.engine != "dask":
         raise InputError("option --scheduler: only with --engine dask")
@@ -86,8 +87,8 @@ def run(args) -> int:
                       "fill_missing": args.fill_missing},
         settings=settings_from_args(args), settings_file=args.settings_file, level=args.level,
         engine=args.engine, workers=args.workers, scheduler=args.scheduler,
-        reports=args.reports, formats=_formats(args.summary_formats), quiet=args.quiet,
-        stream=sys.stderr)
+        reports=args.reports, formats=_formats(args.summary_formats),
+        progress=StageBar("portfolio", "series", quiet=args.quiet, stream=sys.stderr))
     for name, path in result.files.items():
         print(f"{name}: {path}")
     if result.reports:

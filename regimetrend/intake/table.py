@@ -57,17 +57,19 @@ def table_from_records(records, label, sep_hint=None) -> Table:
     else:
         names = [f"column {k + 1}" for k in range(len(first))]
         body = records
-    cols: dict = {n: [] for n in names}
+    width = len(names)
+    grid = []
     for line, cells in body:
-        if len(cells) > len(names):
-            extra = cells[len(names):]
-            if any(c != "" for c in extra):
+        if len(cells) != width:
+            if any(c != "" for c in cells[width:]):
                 where = f" (separator {sep_hint!r})" if sep_hint else ""
                 head = "the header" if has_header else "the first row"
                 raise InputError(f"row {line} has {len(cells)} fields but {head} has "
-                                 f"{len(names)}{where}; quote values that contain the separator")
-        for k, n in enumerate(names):
-            cols[n].append(cells[k] if k < len(cells) else "")
+                                 f"{width}{where}; quote values that contain the separator")
+            cells = (list(cells) + [""] * width)[:width]
+        grid.append(cells)
+    columns = list(zip(*grid)) if grid else [() for _ in names]
+    cols: dict = {n: list(column) for n, column in zip(names, columns)}
     rows = np.array([line for line, _ in body], dtype=int)
     return Table(label, names, cols, rows, separator=sep_hint)
 

@@ -105,6 +105,10 @@ def numbers(cells, decimal):
         if np.issubdtype(cells.dtype, np.number):
             return cells[~np.isnan(cells)].astype(float)
         return None
+    other = "," if decimal == "." else "."
+    if cells and all(isinstance(c, str) and PLAIN.fullmatch(c) and other not in c
+                     for c in cells):  # fast path: text that is plain numbers throughout
+        return np.array([c.replace(",", ".") for c in cells], dtype=float)
     out = []
     for c in cells:
         if is_missing(c):
@@ -129,7 +133,7 @@ def parse_values(cells, rows, column, decimal) -> np.ndarray:
         raise InputError(f"column {column!r} holds dates, not values; choose the value column "
                          f"with --value-column")
     else:
-        values = _plain_floats(cells) if decimal == "." else None
+        values = _plain_floats(cells, decimal)
     if values is None:
         values = np.empty(len(cells), dtype=float)
         for k, cell in enumerate(cells):
@@ -147,11 +151,23 @@ def parse_values(cells, rows, column, decimal) -> np.ndarray:
     return values
 
 
-def _plain_floats(cells):
-    """Fast path for text cells that are all plain numbers written with a decimal point."""
-    if not all(isinstance(c, str) and PLAIN.fullmatch(c) and "," not in c for c in cells):
+_PLAIN_WITH = {
+    mark: re.compile(rf"[-+]?(?:\d{{1,3}}(?:{re.escape(group)}\d{{3}})+|\d+)"
+                     rf"(?:{re.escape(mark)}\d*)?(?:[eE][-+]?\d+)?")
+    for mark, group in ((".", ","), (",", "."))
+}
+
+
+def _plain_floats(cells, decimal: str):
+    """Fast path for text cells that are all plain numbers (grouped or not) with ``decimal``.
+
+    Reads exactly what ``number`` reads for such cells; None sends the column to ``number``.
+    """
+    pattern = _PLAIN_WITH[decimal]
+    if not all(isinstance(c, str) and pattern.fullmatch(c) for c in cells):
         return None
-    return np.array(cells, dtype=float)
+    group = "," if decimal == "." else "."
+    return np.array([c.replace(group, "").replace(decimal, ".") for c in cells], dtype=float)
 
 
 def _bad_value_message(cell, row, column, decimal, reason) -> str:

@@ -6,7 +6,7 @@ a Dask cluster, resumable, with one summary row per series and a triage page.
 ``store`` (per-series result files and resume keys), ``worker`` (a chunk of series -> records,
 on the worker), ``row`` (an analysis flattened into a summary row), ``ranking`` (the triage
 order and its written rule), ``engines`` (local and Dask), ``summary`` (CSV/Parquet/.xlsx),
-``page`` (the self-contained triage page), ``progress`` (the progress bar), ``determinism``
+``page`` (the self-contained triage page), ``determinism``
 (fixed time stamps in workbooks).
 """
 

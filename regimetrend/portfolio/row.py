@@ -92,10 +92,49 @@ def _interim_cause(diagnosis) -> str:
     return "global trend holds"
 
 
+def _from_verdict(row: dict, analysis, verdict) -> dict:
+    """The verdict's fields (``Verdict.to_dict()``): a portfolio row is a verdict flattened."""
+    v = verdict.to_dict()
+    model = v.get("model") or {}
+    row["model"] = model.get("name") or row["model"]
+    breaks = v.get("breaks") or []
+    row["breaks"] = "; ".join(b["date"] for b in breaks)
+    row["breaks_ci95"] = "; ".join(f"{b['ci95'][0]} to {b['ci95'][1]}" for b in breaks)
+    if breaks:
+        last = breaks[-1]
+        row["last_break"] = last["date"]
+        row["last_break_ci95_low"], row["last_break_ci95_high"] = last["ci95"]
+        same = [b for b in analysis.breaks.breaks if b.date == last["date"]]
+        row["last_break_f"] = _num(same[0].f_statistic) if same else None
+        row["recent_change"] = bool(last["date"] >= row["recent_from"])
+    else:
+        for key in ("last_break", "last_break_ci95_low", "last_break_ci95_high",
+                    "last_break_f"):
+            row[key] = None
+        row["recent_change"] = False
+    row["keep_history_from"] = v.get("keep_history_from")
+    now = v.get("growth_now") or {}
+    ci = now.get("ci95") or [None, None]
+    row["growth_now_pct_a_year"] = _num(now.get("annualised_pct"))
+    row["growth_now_low"], row["growth_now_high"] = _num(ci[0]), _num(ci[1])
+    fm = v.get("forecast_model") or {}
+    row["forecast_model"] = " ".join(x for x in (fm.get("strategy"), fm.get("shape")) if x)
+    diagnosis = v.get("diagnosis") or {}
+    row["diagnosis_cause"], row["diagnosis"] = diagnosis.get("cause"), diagnosis.get("sentence")
+    row["stability"] = (v.get("stability") or {}).get("status")
+    evidence = getattr(verdict, "evidence", None)
+    row["gain_over_global"] = _num(getattr(evidence, "gain", None))
+    return row
+
+
 def row_from_analysis(analysis) -> dict:
-    """The summary row of a full analysis."""
+    """The summary row of a full analysis: the verdict's fields when the analysis has one,
+    else read from the evaluation's recommendation, history and diagnosis."""
     series, ev = analysis.series, analysis.evaluation
     row = _common(series, analysis.spec, analysis.breaks, analysis.growth, "full")
+    verdict = getattr(analysis, "verdict", None)
+    if verdict is not None:
+        return _from_verdict(row, analysis, verdict)
     chosen = ev.candidate(ev.recommended.name)
     row.update({"forecast_model": ev.recommended.name,
                 "keep_history_from": ev.history.keep_from,

@@ -12,7 +12,6 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import cast
 
 from ..errors import InputError
 from ..output import write_atomic
@@ -21,7 +20,6 @@ from . import ranking, summary
 from .engines import make_engine
 from .inputs import read_portfolio
 from .overrides import read_overrides, with_changes
-from .progress import Progress
 from .store import Store, result_key
 from .worker import LEVELS, Job, Record, report_chunk, run_chunk
 
@@ -79,12 +77,13 @@ def parse_reports(text) -> tuple[str, int]:
 def run_portfolio(source, output, *, id_columns=(), date_column=None, value_column=None,
                   sheet=None, load_options=None, settings: Settings | None = None,
                   settings_file=None, level="full", engine="local", workers=None,
-                  scheduler=None, reports="none", formats=summary.FORMATS, quiet=True,
-                  stream=None, engine_object=None) -> RunSummary:
+                  scheduler=None, reports="none", formats=summary.FORMATS, progress=None,
+                  engine_object=None) -> RunSummary:
     """Analyse every series of ``source`` into the folder ``output``; see the module docstring.
 
     ``load_options``: ``load_series`` options shared by every series (frequency, decimal,
     fill_missing). ``settings``: one ``Settings`` for all; ``settings_file`` overrides it per id.
+    ``progress(done, total)``: called as series finish (the command passes its progress bar).
     ``engine_object``: an engine already made (tests pass a Dask cluster of threads)."""
     from .page import write_page
 
@@ -122,7 +121,7 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
         todo_reports = []
 
     rows: list[dict | None] = [None] * len(jobs)
-    progress = Progress(len(todo), stream=stream, quiet=quiet)
+    done = 0
     eng = engine_object or (make_engine(engine, workers, scheduler) if todo or todo_reports
                             else None)
     n_reports = 0
@@ -136,8 +135,9 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
                     if rec.report_files:
                         store.write_report(rec.id, rec.key, rec.report_files)
                         n_reports += 1
-                progress.advance(len(records))
-            progress.close()
+                done += len(records)
+                if progress is not None:
+                    progress(done, len(todo))
             for idx in reused:
                 rows[idx] = store.read_result(jobs[idx].task.id)["row"]
             chosen = _report_jobs(mode, top, jobs, rows, store) + todo_reports
@@ -151,18 +151,19 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
     for idx in reused:
         if rows[idx] is None:
             rows[idx] = store.read_result(jobs[idx].task.id)["row"]
-    order = ranking.rank(cast(list[dict], rows))  # every row is filled by now
+    done_rows: list[dict] = [r if r is not None else {} for r in rows]
+    order = ranking.rank(done_rows)
     ranks = [0] * len(rows)
     for r, k in enumerate(order, start=1):
         ranks[k] = r
     columns = summary.header(portfolio.id_columns)
-    recs = summary.records(rows, tasks, ranks, portfolio.id_columns)
+    recs = summary.records(done_rows, tasks, ranks, portfolio.id_columns)
     files = {}
     for name, data in summary.summary_files(recs, columns, formats).items():
         files[name] = write_atomic(folder / name, data, "--output")
     files["page"] = write_page(folder, recs, order, store, tasks, level)
-    ok = sum(1 for r in rows if r and r.get("status") == "ok")
-    return RunSummary(total=len(rows), ok=ok, failed=len(rows) - ok, reused=len(reused),
+    ok = sum(1 for r in done_rows if r.get("status") == "ok")
+    return RunSummary(total=len(done_rows), ok=ok, failed=len(done_rows) - ok, reused=len(reused),
                       computed=len(todo), seconds=time.perf_counter() - started, files=files,
                       reports=n_reports)
 

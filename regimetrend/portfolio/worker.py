@@ -32,8 +32,13 @@ _BLAS_HELD: list = []
 
 
 def hold_blas() -> None:
-    """One BLAS thread in this process from now on (threadpoolctl; found once per process)."""
+    """One BLAS thread in this process from now on (threadpoolctl; found once per process).
+
+    threadpoolctl limits only the libraries loaded when it is called, and numpy and scipy each
+    bring their own OpenBLAS, so both are imported first (scipy's loads with ``scipy.linalg``)."""
     if not _BLAS_HELD:
+        import numpy  # noqa: F401
+        import scipy.linalg  # noqa: F401
         from threadpoolctl import threadpool_limits
 
         _BLAS_HELD.append(threadpool_limits(limits=1))

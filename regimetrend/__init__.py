@@ -20,7 +20,7 @@ _LAZY = {"TrendSpec": "design", "Forecast": "forecast", "Holdout": "holdout",
          "resolve_spec": "settings", "Settings": "settings", "ModelSettings": "settings",
          "BreakSettings": "settings", "EvaluationSettings": "settings", "analyze": "api",
          "compare": "api", "detect_breaks": "api", "growth_table": "api",
-         "trend_forecast": "api"}
+         "trend_forecast": "api", "Verdict": "verdict"}
 
 if TYPE_CHECKING:
     from .api import analyze, compare, detect_breaks, growth_table, trend_forecast
@@ -30,6 +30,7 @@ if TYPE_CHECKING:
     from .series import Frequency, Series
     from .settings import (BreakSettings, EvaluationSettings, ModelSettings, Settings,
                            resolve_spec)
+    from .verdict import Verdict
 
 
 def __getattr__(name: str):
@@ -60,4 +61,4 @@ def demo_path():
 __all__ = ["BreakSettings", "EvaluationSettings", "Forecast", "Frequency", "Holdout",
            "InputError", "ModelSettings", "Series", "Settings", "TrendSpec", "analyze",
            "compare", "demo_path", "detect_breaks", "growth_table", "holdout_check",
-           "load_series", "resolve_spec", "trend_forecast"]
+           "load_series", "resolve_spec", "trend_forecast", "Verdict"]

@@ -8,7 +8,7 @@ many series in other processes.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -20,6 +20,7 @@ from .forecast import Forecast, fit_history, trend_forecast
 from .growth import GrowthTable
 from .series import Series
 from .settings import Settings
+from .verdict import Verdict
 
 
 @dataclass(frozen=True, eq=False)
@@ -38,6 +39,9 @@ class Analysis:
     cusum: dict  # CUSUM path of the global trend with its 5% band (breaks.cusum)
     cautions: tuple[str, ...]  # standing ones first (see regimetrend.cautions)
     global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
+    verdict: Verdict | None = None  # the one model and what is said about it
+    searches: dict | None = None  # {shape: BreakSet} every full-sample break search run
+    evaluations: dict | None = None  # {shape: Evaluation} every rolling-origin evaluation run
 
     def summary(self) -> str:
         """Plain text of the whole analysis: breaks and growth by regime, the recommendation,
@@ -52,6 +56,7 @@ class Analysis:
         breaks = self.breaks.to_dict()
         growth = self.growth.to_dict()
         return json_safe({
+            "verdict": self.verdict.to_dict() if self.verdict is not None else None,
             "series": self.series.to_dict(),
             "settings": self.settings.to_dict(),
             "model": self.spec.to_dict(),
@@ -89,29 +94,119 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
     ``settings`` holds every choice (see ``Settings``); keyword ``choices`` override single
     fields, e.g. ``analyze(series, shape="exponential", horizon=12)``. ``progress(done,
     total)``, when given, is called after each rolling origin (it does not change the result).
+
+    With ``shape="auto"`` (the default) the break search runs under every shape the series
+    allows and the verdict's rule (``regimetrend.verdict``) chooses the model; every figure of
+    the result (growth, forecast, history advice, diagnosis) comes from that model.
     """
+    from . import verdict as verdicts
     from .breaks import cusum as cusum_paths
     from .breaks.detect import find_breaks
+    from .design import SHAPES
     from .evaluate import evaluate
-    from .growth import growth_table
+    from .growth import growth_from_fits, growth_table
     from .intake import as_series
     from .regimes import strategy_forecast
 
     settings = Settings.coerce(settings, choices, caller="analyze")
     series = as_series(series)
-    spec = settings.spec_for(series)  # resolved once; every stage below reads this one
+    explicit = None if settings.model.shape == "auto" else settings.model.shape
+    base = settings.spec_for(series)  # resolved once; the shapes below share its seasons
     horizon = settings.horizon_for(series)
-    breaks = find_breaks(series, spec, settings.breaks)
-    evaluation = evaluate(series, spec, settings, breaks, progress=progress)
-    chosen = next(c for c in evaluation.candidates if c.name == evaluation.recommended.name)
-    forecast = strategy_forecast(series, chosen.strategy, breaks.positions, horizon, spec)
-    global_forecast = trend_forecast(series, spec, horizon)
-    global_fit = fit_history(series, spec)
+    positive = bool(np.all(series.values > 0))
+    shapes = (explicit,) if explicit else tuple(
+        s for s in SHAPES if s != "exponential" or positive)
+    specs = {s: TrendSpec(s, base.seasonality, base.season_length) for s in shapes}
+    searches = {s: find_breaks(series, specs[s], settings.breaks) for s in shapes}
+    run_shapes = verdicts.search_shapes(searches, explicit)
+    latest = [(b.positions[-1], b.trim_periods) for s in run_shapes
+              for b in [searches[s]] if b.positions]
+    place_after = max(latest) if latest else None
+    runs = [verdicts.Run(s, searches[s], evaluate(series, specs[s], settings, searches[s],
+                                                  progress=progress, place_after=place_after))
+            for s in run_shapes]
+    lag1 = runs[0].evaluation.diagnosis.data.get("residual_lag1")
+    wandering = lag1 is not None and lag1 >= verdicts.WANDERING_LAG1
+    index, chosen, basis = verdicts.choose(runs, explicit, wandering)
+    run = runs[index]
+    spec = TrendSpec(chosen.strategy.shape, base.seasonality, base.season_length)
+    forecast = strategy_forecast(series, chosen.strategy, run.breaks.positions, horizon,
+                                 specs[run.shape])
+    growth = _model_growth(series, spec, chosen.strategy, run.breaks, forecast,
+                           growth_table, growth_from_fits)
+    ref_spec = specs[runs[0].shape]
+    global_forecast = trend_forecast(series, ref_spec, horizon)
+    global_fit = fit_history(series, ref_spec)
     y_model = global_fit.fit.X @ global_fit.fit.beta + global_fit.fit.residuals
     cusum = cusum_paths.recursive_cusum(y_model, global_fit.fit.X).to_dict()
-    growth = growth_table(series, spec, breaks)
-    return Analysis(series=series, settings=settings, spec=spec, breaks=breaks,
-                    evaluation=evaluation, growth=growth, forecast=forecast,
+    stability = _stability(series, runs, explicit, wandering, index, chosen, settings,
+                           verdicts)
+    verdict = verdicts.build(series, runs, index, chosen, basis, growth, forecast, stability,
+                             explicit, lag1, wandering, searches)
+    extra = tuple(c for c in [verdicts.coverage_caution(verdict)] if c)
+    return Analysis(series=series, settings=settings, spec=spec, breaks=run.breaks,
+                    evaluation=_as_decided(run.evaluation, runs[0].evaluation, verdict),
+                    growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
-                    cusum=cusum, cautions=cautions.for_analysis(series, breaks, evaluation.cautions),
-                    global_trend=global_fit.trend())
+                    cusum=cusum,
+                    cautions=cautions.for_analysis(series, run.breaks if verdict.breaks
+                                                   else None,
+                                                   tuple(run.evaluation.cautions) + extra),
+                    global_trend=global_fit.trend(), verdict=verdict, searches=searches,
+                    evaluations={r.shape: r.evaluation for r in runs})
+
+
+def _as_decided(evaluation, reference_evaluation, verdict):
+    """The evaluation with the verdict's decisions in place of its own: the recommended
+    candidate, the history decision and the diagnosis sentence, so that every table and chart
+    that reads the evaluation shows the chosen model (the evidence stays as computed)."""
+    from .evaluate.result import Diagnosis, HistoryDecision, Recommendation
+    from .verdict import HISTORY_RULE, history_sentence
+
+    m = verdict.model
+    rec = Recommendation(m.strategy, m.shape, m.name, verdict.sentences[0], verdict.rule,
+                         verdict.evidence.basis)
+    evidence = dict(evaluation.history.evidence or {}, rule=HISTORY_RULE)
+    hist = HistoryDecision(verdict.history.keep_from, verdict.history.keep_from_label,
+                           history_sentence(verdict), evidence)
+    diag = Diagnosis(verdict.diagnosis.sentence,
+                     dict(reference_evaluation.diagnosis.data, cause=verdict.diagnosis.cause))
+    return replace(evaluation, recommended=rec, history=hist, diagnosis=diag)
+
+
+def _model_growth(series, spec, strategy, breakset, forecast, growth_table, growth_from_fits):
+    """The growth table of the chosen model: one trend (global), the trend of the kept history
+    (truncated), the regime model of the break search (separate) or the trend joined at the
+    breaks (continuous); a window average is described by one trend over all history (its
+    windows all end at the last period; the growth table says which model it shows)."""
+    from .errors import InputError
+
+    if strategy.name in ("global", "window-average") or not breakset.positions:
+        return growth_table(series, spec, ())
+    if strategy.name == "truncated":
+        return growth_from_fits(series, [fit_history(series, spec, int(forecast.fitted_from))])
+    kind = "slope" if strategy.name == "continuous" else None
+    try:
+        return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))
+    except InputError:  # a regime too short for its own trend under this shape
+        return growth_table(series, spec, ())
+
+
+def _stability(series, runs, explicit, wandering, index, chosen, settings, verdicts):
+    """The verdict rerun without the last 1..k periods (``verdict.stability_of``): the break
+    search of each shortened series (as at a rolling origin: no events, breaks capped at what
+    it holds), and the rolling origin rescored on the origins it would have had."""
+    from .errors import InputError
+    from .evaluate import history_breaks
+
+    searches = {}
+    for k in verdicts.stability_periods(series):
+        head = series.head(series.n - k)
+        try:
+            searches[k] = [history_breaks(head, r.breaks.spec, settings.breaks) for r in runs]
+        except InputError:
+            break
+    model = verdicts.model_of(chosen, runs[index])
+    breaks = verdicts.break_dates(series, runs[index].breaks, model)
+    return verdicts.stability_of(series, runs, explicit, wandering,
+                                 (index, chosen.name, breaks), searches)

@@ -21,6 +21,15 @@ JUDGEMENT = ("These results support, and do not replace, business judgement: che
              "dates against what is known about the business (contracts, prices, launches, "
              "definitions) before acting on them.")
 STANDING = (EXTRAPOLATION, LATE_BREAK, JUDGEMENT)
+# the ``forecast`` command fits one trend and searches for no break: its cautions say only what
+# it did
+ONE_TREND = ("Extrapolation assumes the trend holds: this forecast continues one trend fitted "
+             "to all history. No search for a change of regime was run, so a change in the "
+             "trend's growth would go unnoticed here; the report command searches for breaks "
+             "and chooses a model.")
+HOLDOUT = ("The holdout score is one split of the data: a single stretch of periods can flatter "
+           "or penalise the trend by chance.")
+ONE_TREND_CAUTIONS = (ONE_TREND, HOLDOUT, JUDGEMENT)
 
 
 def sentence(text: str) -> str:

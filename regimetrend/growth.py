@@ -24,14 +24,23 @@ Per shape, with p periods a year, g the growth per period, "level" the fitted tr
 without seasonal effects:
 
 - exponential: g = e^b - 1; annualised (1 + g)^p - 1; doubling time ln 2 / b periods (b > 0);
-- linear: the yearly increase b p in units and as % of the fitted level at the regime's end
-  (the headline) and at its start;
+- linear: the yearly increase b p in units first; its headline "% a year" is the compound
+  annual growth of the fitted line over the regime, from its fitted level at the regime's start
+  to its fitted level at the end, ((f1 / f0)^(p / span) - 1) 100 (so a line that rises from 100
+  to 200 over 6 years reads 12.2% a year, what a compounding series would need); the yearly
+  increase as % of the fitted level at the regime's end and at its start are kept as
+  ``annualised_pct_of_end`` and ``annualised_pct_of_start``;
 - quadratic: growth at the regime's end (slope there, per period and a year, as % of the level
   at the end) and the average over the regime (the fitted change per period, and the compound
   annual rate from the fitted start level to the fitted end level).
 
-The change of growth across a break is tested with a Wald test of equal growth coefficients
-(slope per period; slope and curvature for the quadratic shape) using the same HAC covariance.
+The change of growth across a break is the change of the headline annualised % (percentage
+points) with its delta-method interval, and ``p_value`` tests that same change (its Wald
+statistic (change / se)^2 on 1 degree of freedom, the same covariance and gradient), so the
+interval excludes zero exactly when p < 0.05. The Wald test of equal growth coefficients (slope
+per period; slope and curvature for the quadratic shape) is kept as ``slope_wald`` and
+``slope_p_value``. Under level-only breaks all regimes share one growth rate: there is no
+change to estimate or test.
 """
 
 from __future__ import annotations
@@ -163,7 +172,9 @@ class RegimeGrowth:
 
 @dataclass(frozen=True)
 class GrowthChange:
-    """The change of growth from one regime to the next, and the Wald test of no change."""
+    """The change of growth from one regime to the next: the change of the headline annualised
+    % with its interval, and the Wald test of that same change (``wald``, ``p_value``; so the
+    two agree); the Wald test of equal growth coefficients as ``slope_wald``."""
 
     break_index: int
     date: str
@@ -173,6 +184,9 @@ class GrowthChange:
     df: int
     p_value: float | None
     note: str = ""
+    slope_wald: float | None = None
+    slope_df: int = 1
+    slope_p_value: float | None = None
 
     def to_dict(self) -> dict:
         return {"break": self.break_index, "date": self.date, "label": self.label,
@@ -181,6 +195,10 @@ class GrowthChange:
                 "annualised_pct_change_ci95": [_clean(self.annualised_pct_change.lower),
                                                _clean(self.annualised_pct_change.upper)],
                 "wald": _clean(self.wald), "df": self.df, "p_value": _clean(self.p_value),
+                "test": "Wald test of the annualised % change (1 df), the same covariance as "
+                        "its interval",
+                "slope_wald": _clean(self.slope_wald), "slope_df": self.slope_df,
+                "slope_p_value": _clean(self.slope_p_value),
                 "note": self.note}
 
 
@@ -440,6 +458,15 @@ def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z:
         start_pct = _ratio_pct(slope_end * ppy, f0, cov, z)
         if start_pct is not None:
             figures["annualised_pct_of_start"] = start_pct
+        if pct is not None:
+            figures["annualised_pct_of_end"] = figures["annualised_pct"]
+        compound = _line_compound(f0, f1, t1 - t0, ppy, cov, z)
+        if compound is not None:
+            figures["annualised_pct"] = compound
+        elif pct is not None:
+            del figures["annualised_pct"]
+            notes.append("the fitted line is not positive at both ends of the regime, so its "
+                         "compound growth in % is undefined")
         return figures, notes
     # quadratic: growth at the end (above) and the average over the regime
     span = t1 - t0
@@ -454,6 +481,13 @@ def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z:
                      "average growth in % is undefined")
     figures["curvature_per_period"] = _delta(rt.curvature(beta), cov, z)
     return figures, notes
+
+
+def _line_compound(f0: _Dual, f1: _Dual, span: float, ppy: float, cov, z) -> Estimate | None:
+    """Compound annual growth of a fitted line from level f0 to f1 over ``span`` periods, %."""
+    if span <= 0 or f0.value <= 0 or f1.value <= 0:
+        return None
+    return _delta((((f1 / f0).log() * (ppy / span)).exp() - 1.0) * 100.0, cov, z)
 
 
 def _change_test(prev: _RegimeTrend, nxt: _RegimeTrend, beta, cov, spec: TrendSpec):
@@ -479,12 +513,17 @@ def _change_test(prev: _RegimeTrend, nxt: _RegimeTrend, beta, cov, spec: TrendSp
 def _change_estimate(prev_rt, next_rt, beta, cov, spec, ppy, z) -> Estimate:
     """Change of the headline annualised % (percentage points), delta method."""
     def headline(rt):
-        t1 = float(rt.end)
+        t0, t1 = float(rt.start), float(rt.end)
         if spec.log_scale:
             return ((rt.slope(beta, t1) * ppy).exp() - 1.0) * 100.0
         level = rt.level(beta, t1)
         if level.value <= 0:
             return None
+        if spec.shape == "linear":
+            f0 = rt.level(beta, t0)
+            if t1 <= t0 or f0.value <= 0:
+                return None
+            return (((level / f0).log() * (ppy / (t1 - t0))).exp() - 1.0) * 100.0
         return rt.slope(beta, t1) * ppy / level * 100.0
 
     a, b = headline(prev_rt), headline(next_rt)
@@ -493,12 +532,26 @@ def _change_estimate(prev_rt, next_rt, beta, cov, spec, ppy, z) -> Estimate:
     return _delta(b - a, cov, z)
 
 
+def _estimate_test(est: Estimate) -> tuple[float | None, float | None]:
+    """(Wald statistic, p-value) of ``est`` = 0 on 1 degree of freedom: (value / se)^2, the
+    same standard error as the interval, so p < 0.05 exactly when the interval excludes 0."""
+    if est.value is None or est.se is None or not est.se > 0:
+        return None, None
+    w = (est.value / est.se) ** 2
+    return w, float(stats.chi2.sf(w, 1))
+
+
 def _headline_words(spec: TrendSpec) -> str:
     if spec.log_scale:
         return "compound annual growth of the regime's exponential trend"
     if spec.shape == "linear":
-        return "yearly increase as % of the fitted level at the regime's end"
+        return _linear_words()
     return "growth at the regime's end, a year's worth, as % of the fitted level there"
+
+
+def _linear_words() -> str:
+    return ("compound annual growth of the fitted line from its level at the regime's start to "
+            "its level at the end")
 
 
 def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: float,
@@ -514,10 +567,16 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
     changes = []
     for i in range(1, len(model.regimes)):
         prev, nxt = model.regimes[i - 1], model.regimes[i]
-        wald, p, df, note = _change_test(prev, nxt, model.beta, model.cov, spec)
-        est = _change_estimate(prev, nxt, model.beta, model.cov, spec, ppy, z)
+        slope_wald, slope_p, slope_df, note = _change_test(prev, nxt, model.beta, model.cov, spec)
+        if kind == "level":  # one growth rate shared by all regimes: no change to show
+            est, wald, p = Estimate(None, None, None, None), None, None
+            note = ("growth is shared by all regimes under level-only breaks; the break "
+                    "shifts the level only")
+        else:
+            est = _change_estimate(prev, nxt, model.beta, model.cov, spec, ppy, z)
+            wald, p = _estimate_test(est)
         changes.append(GrowthChange(i, series.iso(nxt.start), series.label(nxt.start), est,
-                                    wald, df, p, note))
+                                    wald, 1, p, note, slope_wald, slope_df, slope_p))
     return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
                        tuple(regimes), tuple(changes), _headline_words(spec), model.fitted,
                        _trend_line(model, spec), model.ssr, seasonal_by_regime)

@@ -175,7 +175,7 @@ def _iso(value: Any) -> str:
 
 RULES: dict[str, Rule] = {
     # the trend
-    "shape": Rule("choice", SHAPES),
+    "shape": Rule("choice", ("auto",) + SHAPES),
     "seasonality": Rule("choice", ("auto",) + SEASONALITIES),
     "season_length": Rule("whole", least=1, most=MAX_SEASON_LENGTH, optional=True),
     # the break search
@@ -209,10 +209,12 @@ class _Checked:
 
 @dataclass(frozen=True)
 class ModelSettings(_Checked):
-    """The trend: ``seasonality='auto'`` means dummies when the calendar has seasons;
+    """The trend: ``shape='auto'`` lets the verdict choose the shape per series
+    (``regimetrend.verdict``; commands that fit one shape, ``forecast`` and ``scan``, read it
+    as linear); ``seasonality='auto'`` means dummies when the calendar has seasons;
     ``season_length=None`` the calendar's own (see ``resolve_spec``)."""
 
-    shape: str = "linear"
+    shape: str = "auto"
     seasonality: str = "auto"
     season_length: int | None = None
 
@@ -238,8 +240,10 @@ class BreakSettings(_Checked):
 
 @dataclass(frozen=True)
 class EvaluationSettings(_Checked):
-    """The rolling origin: ``horizon=None`` is one seasonal cycle (at least 4 periods);
-    ``first_origin=None`` the default of ``evaluate.rolling.plan_origins``."""
+    """The rolling origin: ``horizon=None`` is the calendar's default horizon
+    (``evaluate.rolling.default_horizon``: 4 years, 4 quarters, 12 months, 13 weeks, 14 days,
+    shorter on short series); ``first_origin=None`` the default of
+    ``evaluate.rolling.plan_origins``."""
 
     horizon: int | None = None
     first_origin: int | None = None
@@ -249,7 +253,9 @@ class EvaluationSettings(_Checked):
     def horizon_for(self, series) -> int:
         """The horizon for ``series``: at most its length (see the module docstring)."""
         if self.horizon is None:
-            return max(series.frequency.season_length, 4)
+            from .evaluate.rolling import default_horizon
+
+            return default_horizon(series.n, series.frequency.unit, series.frequency.step)
         if self.horizon > series.n:
             raise InputError(f"{about('horizon')}: {self.horizon} periods ahead is more than the "
                              f"{series.n} periods of history; use at most {series.n}")
@@ -337,6 +343,8 @@ def resolve_spec(series, shape: str = "linear", seasonality: str = "auto",
     4 quarterly, 52 weekly, 7 daily, none for annual or multi-unit calendars); ``auto``
     seasonality means dummies when the calendar has seasons and none otherwise."""
     model = ModelSettings(shape, seasonality, season_length)
+    if model.shape == "auto":  # the verdict chooses the shape; the base spec is the linear one
+        model = replace(model, shape="linear")
     s = series.frequency.season_length if model.season_length is None else model.season_length
     seasonality = model.seasonality
     if seasonality == "auto":

@@ -61,3 +61,12 @@ def history_sentence(keep_from_label: str | None, reason: str) -> str:
             else "Keep all history")
     reason = reason.strip().rstrip(".")
     return f"{head}: {reason}." if reason else f"{head}."
+
+
+def significance(p: float | None, level: float = LEVEL) -> str:
+    """The one wording of a test decision: 'significant at the 5% level', 'not significant at
+    the 5% level', or 'not tested' when there is no p-value."""
+    if p is None or p != p:
+        return "not tested"
+    return (f"significant at the {level_text(level)} level" if significant(p, level)
+            else f"not significant at the {level_text(level)} level")

@@ -80,17 +80,22 @@ def test_bad_horizon_is_one_line_and_exit_code_2(nile_csv, capsys):
     assert code == 2 and err.count("\n") == 1 and "--horizon" in err
 
 
-def test_history_sentence_is_leak_free_and_labels_in_sample_breaks(nile_csv, capsys):
-    # Source: base-R Nile. The decision quotes the leak-free fit; fits from the full-sample
-    # break dates are named as optimistic wherever they appear.
+def test_history_sentence_follows_the_verdict_and_labels_in_sample_breaks(nile_csv, capsys):
+    # Source: base-R Nile. The history advice follows from the verdict's model; fits from the
+    # full-sample break dates are named as optimistic wherever they appear.
     code, out, _ = run(capsys, "compare", str(nile_csv), "--kind", "level", "--horizon", "4",
                        "--step", "3", "--json")
     assert code == 0
-    hist = json.loads(out)["history"]
+    result = json.loads(out)
+    hist = result["history"]
     assert set(hist) >= {"keep_from", "keep_from_label", "sentence", "evidence"}
-    assert "leak-free" in hist["sentence"]
-    assert "optimistic: in-sample break" in hist["sentence"]
-    assert "sup-F p" not in hist["sentence"]  # the named break's own test, not the overall one
+    assert hist["keep_from"] == result["verdict"]["keep_history_from"]
+    assert hist["sentence"] in result["verdict"]["sentences"]
+    # the Aswan dam's first phase (1898-1902) lowered the flow from 1899 (from memory; the
+    # classic break of this series): the break search finds it
+    assert any(b["label"] in ("1898", "1899", "1900") for b in result["breaks"]["breaks"])
+    assert "optimistic: in-sample break" in hist["evidence"]["note"]
+    assert "sup-F p" not in hist["sentence"]
     sweep = json.loads(out)["history_sweep"]
     from_breaks = [c["name"] for c in sweep if (c["start"] or "").startswith("break ")]
     assert from_breaks and all("(optimistic: in-sample break)" in n for n in from_breaks)

@@ -70,3 +70,16 @@ def test_bad_file_gives_one_line_and_no_output(tmp_path, capsys):
     code, out, err = run(capsys, "forecast", str(bad), "--output", str(out_dir))
     assert code == 2 and "row 3" in err and len(err.strip().splitlines()) == 1
     assert not out_dir.exists()
+
+
+def test_forecast_cautions_speak_only_of_what_it_computed(capsys):
+    # the forecast command fits one trend and searches for no break: no caution may talk of
+    # regimes or breaks as if they had been found
+    from regimetrend.cautions import ONE_TREND
+
+    code = main(["forecast", str(demo_path()), "--json"])
+    assert code == 0
+    cautions = json.loads(capsys.readouterr().out)["cautions"]
+    assert ONE_TREND in cautions
+    for text in cautions:
+        assert "last regime" not in text and "break near the end" not in text

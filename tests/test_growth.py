@@ -88,8 +88,13 @@ def test_johnsonjohnson_intervals_match_statsmodels_hac_and_hand_delta_method():
     R[0, 1], R[0, 3] = -1.0, 1.0
     ref = res.wald_test(R, use_f=False, scalar=True)
     change = g.changes[0]
-    assert change.wald == pytest.approx(float(ref.statistic), rel=1e-6)
-    assert change.p_value == pytest.approx(float(ref.pvalue), rel=1e-6, abs=1e-300)
+    assert change.slope_wald == pytest.approx(float(ref.statistic), rel=1e-6)
+    assert change.slope_p_value == pytest.approx(float(ref.pvalue), rel=1e-6, abs=1e-300)
+    # the shown change and its test share one standard error: (change / se)^2 on 1 df
+    est = change.annualised_pct_change
+    assert change.wald == pytest.approx((est.value / est.se) ** 2, rel=1e-12)
+    assert change.p_value == pytest.approx(float(stats.chi2.sf((est.value / est.se) ** 2, 1)),
+                                           rel=1e-9, abs=1e-300)
 
 
 def test_nile_linear_percent_of_level_interval_is_the_hand_delta_method():
@@ -112,9 +117,19 @@ def test_nile_linear_percent_of_level_interval_is_the_hand_delta_method():
     grad = np.array([0, 0, -100 * b / level ** 2, 100 / level - 100 * b * t_end / level ** 2])
     se = math.sqrt(grad @ V @ grad)
     gr = g.to_dict()["segments"][1]["growth"]
-    assert gr["annualised_pct"] == pytest.approx(value, rel=1e-8)
-    assert gr["annualised_pct_se"] == pytest.approx(se, rel=1e-6)
-    assert gr["annualised_pct_ci95"] == pytest.approx([value - Z * se, value + Z * se], rel=1e-6)
+    assert gr["annualised_pct_of_end"] == pytest.approx(value, rel=1e-8)
+    assert gr["annualised_pct_of_end_se"] == pytest.approx(se, rel=1e-6)
+    assert gr["annualised_pct_of_end_ci95"] == pytest.approx([value - Z * se, value + Z * se],
+                                                             rel=1e-6)
+    # the headline: compound annual growth of the fitted line from its start level to its end
+    # level, ((f1 / f0)^(1 / span) - 1) 100 with one period a year; gradient by hand
+    f0, span = a + b * brk, t_end - brk
+    ratio = level / f0
+    cagr = 100 * (ratio ** (1 / span) - 1)
+    d_ratio = np.array([0, 0, (f0 - level) / f0 ** 2, (t_end * f0 - brk * level) / f0 ** 2])
+    g_cagr = 100 * ratio ** (1 / span) / (span * ratio) * d_ratio
+    assert gr["annualised_pct"] == pytest.approx(cagr, rel=1e-8)
+    assert gr["annualised_pct_se"] == pytest.approx(math.sqrt(g_cagr @ V @ g_cagr), rel=1e-6)
     assert gr["annualised_units"] == pytest.approx(b, rel=1e-8)
     assert gr["annualised_units_se"] == pytest.approx(math.sqrt(V[3, 3]), rel=1e-6)
     # % of the level at the regime's start
@@ -143,7 +158,7 @@ def test_continuous_kind_matches_statsmodels_hinge_regression():
     se2 = math.sqrt(V[1, 1] + V[2, 2] + 2 * V[1, 2])
     assert segs[1]["growth"]["per_period_units_se"] == pytest.approx(se2, rel=1e-6)
     ref = res.wald_test(np.array([[0, 0, 1.0]]), use_f=False, scalar=True)
-    assert g.changes[0].wald == pytest.approx(float(ref.statistic), rel=1e-6)
+    assert g.changes[0].slope_wald == pytest.approx(float(ref.statistic), rel=1e-6)
 
 
 def test_quadratic_end_and_average_growth():
@@ -230,6 +245,7 @@ def test_planted_growth_change_is_found_and_level_breaks_share_growth():
     assert g.regimes[0].periods == brk and g.regimes[1].start_date == str(s.starts[brk])
     shared = regime_growth(s, spec, [brk], kind="level")
     assert shared.changes[0].p_value is None and shared.changes[0].note
+    assert shared.changes[0].annualised_pct_change.value is None  # nothing changed
     assert shared.regimes[0].get("annualised_pct").value == pytest.approx(
         shared.regimes[1].get("annualised_pct").value)
 
@@ -297,3 +313,21 @@ def test_growth_table_pickles_for_portfolio_runs():
     back = pickle.loads(pickle.dumps(g))
     assert back.to_dict() == g.to_dict()
     assert np.array_equal(back.fitted, g.fitted)
+
+
+def test_change_interval_and_test_agree():
+    # planted-break simulation: whatever the shape, the shown change's 95% interval excludes
+    # zero exactly when its test gives p < 0.05 (one standard error for both)
+    rng = np.random.default_rng(3)
+    n, brk = 80, 50
+    t = np.arange(n, dtype=float)
+    y = 100 + 1.0 * t + 0.4 * np.maximum(t - brk, 0) + rng.normal(0, 3, n)
+    s = Series("sim", pd.date_range("2012-01-01", periods=n, freq="MS").values, y,
+               Frequency("month"))
+    for shape in ("linear", "exponential", "quadratic"):
+        for kind in ("both", "slope"):
+            g = regime_growth(s, TrendSpec(shape), [brk], kind=kind)
+            c = g.changes[0]
+            est = c.annualised_pct_change
+            excludes = est.lower > 0 or est.upper < 0
+            assert excludes == (c.p_value < 0.05), (shape, kind)

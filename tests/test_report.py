@@ -221,11 +221,11 @@ def test_html_is_self_contained(demo_report):
     assert (folder / "report.html").stat().st_size < 5_000_000
 
 
-def test_summary_has_five_or_six_sentences_with_the_required_content(demo_report):
+def test_summary_is_the_verdicts_sentences_with_the_required_content(demo_report):
     folder, _ = demo_report
     result = json.loads((folder / "report.json").read_text())
     summary = result["report"]["summary"]
-    assert 5 <= len(summary) <= 6
+    assert summary == result["verdict"]["sentences"]
     text = " ".join(summary)
     assert "95% interval" in text and "% a year" in text and "forecast" in text.lower()
     assert "history" in text.lower()
@@ -421,19 +421,18 @@ def test_a_manifest_never_reaches_outside_the_reports_own_files(tmp_path):
 # --------------------------------------------------------------------- what the summary says
 
 
-def test_summary_names_the_model_behind_growth_and_forecast(demo_report):
+def test_summary_names_the_one_model_behind_growth_and_forecast(demo_report):
     folder, _ = demo_report
     result = json.loads((folder / "report.json").read_text())
     summary = result["report"]["summary"]
-    growth = next(s for s in summary if "% a year" in s and "since" in s)
-    forecast = summary[-1]
-    shape = result["growth"]["shape"]
-    assert growth.startswith("Growth by regime (") and f"{shape} trend" in growth
-    rec = result["evaluation"]["recommended"]
-    assert forecast.startswith("The recommended forecast (")
-    assert f"{rec['shape']} trend" in forecast
+    v = result["verdict"]
+    growth = next(s for s in summary if s.startswith("Growth now ("))
+    forecast = next(s for s in summary if s.startswith("Forecast ("))
+    assert v["growth_now"]["model"]["shape"] == v["model"]["shape"] == result["growth"]["shape"]
+    assert f"{v['model']['shape']} trend" in growth and f"{v['model']['shape']} trend" in forecast
+    assert result["evaluation"]["recommended"]["shape"] == v["forecast_model"]["shape"]
     history = next(s for s in summary if s.startswith("Keep "))
-    assert f"global {result['model']['shape']} trend" in history  # which strategy it judged
+    assert history == result["evaluation"]["history"]["sentence"]
 
 
 def test_summary_warns_when_growth_and_forecast_shapes_differ(hostile_analysis):
@@ -448,6 +447,7 @@ def test_summary_warns_when_growth_and_forecast_shapes_differ(hostile_analysis):
     rec = {"name": "separate exponential", "strategy": "separate", "shape": "exponential"}
     evaluation = dict(data.evaluation, recommended=rec,
                       candidates=[dict(rec, last_shape=None, start=None)])
+    data = replace(data, verdict=None)  # a result without a verdict: the figure-by-figure path
     mixed = replace(data, growth=dict(data.growth, shape="linear"), evaluation=evaluation)
     text = summary_sentences(mixed)
     assert 5 <= len(text) <= 6
@@ -467,7 +467,7 @@ def test_history_sentence_names_the_strategies_it_judged(hostile_analysis):
     from regimetrend.report.extract import gather
     from regimetrend.report.summary import summary_sentences
 
-    data = gather(hostile_analysis)
+    data = replace(gather(hostile_analysis), verdict=None)  # the path without a verdict
 
     def history(keep, breaks, p):
         ev = dict(data.evaluation, model=dict(data.evaluation["model"], shape="quadratic"),
@@ -485,7 +485,7 @@ def test_history_sentence_names_the_strategies_it_judged(hostile_analysis):
     assert "no break was found" in history(None, [], None)
 
 
-def test_linear_shape_summary_says_which_model_each_figure_comes_from(tmp_path):
+def test_an_explicit_shape_gives_every_figure_of_that_shape(tmp_path):
     from regimetrend.analysis import analyze
 
     analysis = analyze(load_series(DEMO), shape="linear", seasonality="dummies", horizon=12,
@@ -493,12 +493,12 @@ def test_linear_shape_summary_says_which_model_each_figure_comes_from(tmp_path):
     write_report(analysis, tmp_path)
     result = json.loads((tmp_path / "report.json").read_text())
     summary = result["report"]["summary"]
-    assert 5 <= len(summary) <= 6
-    text = " ".join(summary)
-    assert "linear trend" in text and "% of the regime's fitted end level" in text
-    rec_shape = analysis.evaluation.recommended.shape
-    assert ("need not agree" in summary[-1]) == (rec_shape != "linear")
-    assert "The global linear trend (one trend over all history)" in text
+    v = result["verdict"]
+    assert v["model"]["shape"] == v["forecast_model"]["shape"] == "linear"
+    assert result["growth"]["shape"] == "linear" and result["forecast"]["spec"]["shape"] == "linear"
+    growth = next(s for s in summary if s.startswith("Growth now ("))
+    assert "linear trend" in growth and growth.index("units a year") < growth.index("% a year")
+    assert "need not agree" not in " ".join(summary)
 
 
 def test_cautions_section_shows_the_analysis_cautions_as_given(demo_report, hostile_analysis):

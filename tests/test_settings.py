@@ -97,7 +97,7 @@ def test_the_table_matches_the_stages_that_use_the_values():
 
     assert RULES["kind"].choices == ("auto",) + KINDS
     assert set(RULES["criterion"].choices) == set(CRITERIA)
-    assert RULES["shape"].choices == SHAPES
+    assert RULES["shape"].choices == ("auto",) + SHAPES  # auto: the verdict chooses
     assert RULES["seasonality"].choices == ("auto",) + SEASONALITIES
     assert set(RULES) <= set(FLAGS)  # every setting has its one flag
 

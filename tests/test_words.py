@@ -52,8 +52,9 @@ def test_compare_prints_the_evaluations_summary(tmp_path, capsys):
     assert main(["compare", str(path), "--step", "2"]) == 0
     printed = capsys.readouterr().out
     series = rt.load_series(path)
-    ev = rt.compare(series, step=2)
-    assert printed == ev.summary(series) + "\n"
+    ev = rt.analyze(series, step=2).evaluation  # with the verdict's decisions
+    assert printed.startswith("verdict:\n")
+    assert printed.endswith(ev.summary(series) + "\n")
     assert f"recommendation: {ev.recommended.reason}" in printed
     assert f"history: {ev.history.sentence}" in printed
     assert ev.history.sentence.startswith("Keep ")

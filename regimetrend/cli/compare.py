@@ -12,7 +12,8 @@ from .progress import StageBar
 
 def register(sub) -> None:
     p = sub.add_parser("compare", help="score every strategy and shape against the global trend "
-                                       "on a leak-free rolling origin and recommend one")
+                                       "on a leak-free rolling origin and give the verdict: "
+                                       "one chosen model")
     options.add_input_options(p)
     options.add_model_options(p)
     options.add_break_options(p)
@@ -32,11 +33,12 @@ def run(args) -> int:
     settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
     budget.check_evaluation(series, settings.evaluation)  # refuse hours, announce minutes
-    from ..evaluate import compare
+    from ..analysis import analyze
 
-    ev = compare(series, settings,
-                 progress=StageBar("rolling origin", "origins", quiet=args.quiet))
-    result = ev.to_dict()
+    analysis = analyze(series, settings,
+                       progress=StageBar("rolling origin", "origins", quiet=args.quiet))
+    ev, verdict = analysis.evaluation, analysis.verdict
+    result = {"verdict": verdict.to_dict() if verdict is not None else None, **ev.to_dict()}
     if args.errors:
         path = options.write_atomic(args.errors, ev.errors.to_csv(series, ev.optimistic),
                                     "option --errors", make_folders=False)
@@ -44,10 +46,18 @@ def run(args) -> int:
     if args.json:
         print(options.dumps(result))
     else:
-        print(render(series, ev, result.get("outputs", {})))
+        print(render(series, ev, result.get("outputs", {}), verdict))
     return 0
 
 
-def render(series, ev, outputs) -> str:
-    """The readable comparison: ``Evaluation.summary`` and the files written."""
-    return "\n".join([ev.summary(series)] + [f"wrote {path}" for path in outputs.values()])
+def render(series, ev, outputs, verdict=None) -> str:
+    """The readable comparison: the verdict's sentences first, then ``Evaluation.summary`` of
+    the chosen shape's evaluation (its candidates are the alternatives) and the files
+    written."""
+    head = []
+    if verdict is not None:
+        head = (["verdict:"] + [f"  {s}" for s in verdict.sentences]
+                + ["", f"verdict rule: {verdict.rule}", "",
+                   f"evaluation of the chosen shape ({ev.reference} is its reference); the "
+                   f"other candidates are alternatives:", ""])
+    return "\n".join(head + [ev.summary(series)] + [f"wrote {path}" for path in outputs.values()])

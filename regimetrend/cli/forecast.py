@@ -27,8 +27,11 @@ def register(sub) -> None:
 
 
 def default_steps(series) -> int:
-    """One seasonal cycle, at least 4 periods."""
-    return max(series.frequency.season_length, 4)
+    """The calendar's default horizon (``evaluate.rolling.default_horizon``: 4 years, 4
+    quarters, 12 months, 13 weeks, 14 days, shorter on short series)."""
+    from ..evaluate.rolling import default_horizon
+
+    return default_horizon(series.n, series.frequency.unit, series.frequency.step)
 
 
 def run(args) -> int:

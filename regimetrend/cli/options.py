@@ -75,7 +75,8 @@ def _setting(p, name: str, help: str, metavar: str | None = None) -> None:
 def add_model_options(p) -> None:
     from ..settings import MAX_SEASON_LENGTH
 
-    _setting(p, "shape", "trend shape (default linear)")
+    _setting(p, "shape", "trend shape (default auto: compare and report let the verdict choose "
+                         "the shape per series; forecast and scan fit a linear trend)")
     _setting(p, "seasonality", "seasonal terms; auto = dummies for seasonal calendars, none "
                                "otherwise")
     _setting(p, "season_length", f"periods in a seasonal cycle (12 monthly, 4 quarterly, 52 "

@@ -68,7 +68,8 @@ def table(header: list[str], rows: list[list[str]]) -> str:
 
 
 def caution_lines() -> list[str]:
-    """The standing cautions shown with a plain trend forecast."""
-    from ..cautions import EXTRAPOLATION, JUDGEMENT
+    """The cautions shown with a plain trend forecast (the ``forecast`` command): they speak of
+    the one trend it fitted, not of regimes it never looked for."""
+    from ..cautions import ONE_TREND_CAUTIONS
 
-    return [EXTRAPOLATION, JUDGEMENT]
+    return list(ONE_TREND_CAUTIONS)

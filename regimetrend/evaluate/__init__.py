@@ -121,10 +121,12 @@ def compare(series, settings: Settings | None = None, *, shapes=None, window_cou
 
 
 def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
-             window_count: int = 10, progress=None) -> Evaluation:
+             window_count: int = 10, progress=None, place_after=None) -> Evaluation:
     """``compare`` with the spec already resolved and the full-sample break search ``full``
     already run with these settings (``analyze`` calls this, so each runs once per analysis);
-    the origins are still searched afresh."""
+    the origins are still searched afresh. ``place_after`` = (latest break, shortest regime)
+    places the default origins so that half of them know a shortest regime after that break
+    (default: the latest break of ``full`` with its trimming; ``rolling.plan_origins``)."""
     options, ev = settings.breaks, settings.evaluation
     s = spec.season_length
     cautions = []
@@ -140,7 +142,11 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     H = ev.horizon_for(series)
     specs = [TrendSpec(sh, spec.seasonality, s) for sh in shapes]
     w_min = minimum_window(specs)
-    plan = plan_origins(series.n, H, w_min, ev.first_origin, ev.step)
+    if place_after is None and breakinfo.positions(full):
+        place_after = (breakinfo.positions(full)[-1], int(getattr(full, "trim_periods", 0)))
+    latest, shortest = place_after if place_after is not None else (None, None)
+    plan = plan_origins(series.n, H, w_min, ev.first_origin, ev.step, latest, shortest,
+                        series.label)
     m_top = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
     reuse_breaks = ev.reuse_breaks
     breaks_at, failed = _origin_breaks(series, plan, full, spec, options, reuse_breaks, m_top)

@@ -8,6 +8,14 @@ trend's recursive-residual CUSUM left its 5% band, from the break search) dates 
 misfit began; the break that explains it is the one whose 95% date interval holds the
 crossing, else the latest break before it, else the first break after it. A later break that
 falls in (or just before) the last periods is named as well.
+
+Evidence the verdict reads to name the cause (``verdict.diagnose``):
+- ``residual_lag1``: lag-1 autocorrelation of the global trend's residuals over all history
+  (near 1 for a series that wanders like a random walk around any trend);
+- ``outlier``: the largest error of the window when it is at least ``OUTLIER_SIZE`` robust
+  standard deviations (1.4826 times the median absolute residual over all history) and
+  ``explains`` whether, without it, the window's errors look like noise (fewer than 70% on one
+  side and a mean under 2% of the level).
 """
 
 from __future__ import annotations
@@ -15,6 +23,8 @@ from __future__ import annotations
 import numpy as np
 
 from .result import Diagnosis
+
+OUTLIER_SIZE = 4.0  # robust standard deviations (common practice for a gross outlier)
 
 
 def default_window(n: int, horizon: int, season_length: int) -> int:
@@ -52,6 +62,7 @@ def diagnose(series, reference_name: str, fitted: np.ndarray, window: int, cross
     dominant = "positive" if pos >= neg else "negative"
     share = max(pos, neg) / k
     cause = explaining_break(crossing, breaks)
+    resid = series.values - np.asarray(fitted)
     data = {"model": reference_name, "window": k, "from": series.iso(n - k),
             "to": series.iso(n - 1), "mean_error": me, "mean_error_percent": pct,
             "mean_abs_error": float(np.mean(np.abs(err))),
@@ -59,6 +70,8 @@ def diagnose(series, reference_name: str, fitted: np.ndarray, window: int, cross
             "share_one_sign": share,
             "cusum_crossing": series.iso(crossing) if crossing is not None else None,
             "cusum_crossing_label": series.label(crossing) if crossing is not None else None,
+            "cusum_crossing_position": int(crossing) if crossing is not None else None,
+            "residual_lag1": lag1(resid), "outlier": outlier(series, resid, err, k),
             "explaining_break": None,
             "errors_are": "actual minus the global trend's in-sample fit"}
     if cause is not None:
@@ -96,3 +109,24 @@ def diagnose(series, reference_name: str, fitted: np.ndarray, window: int, cross
     if share < 0.7 and abs(pct or 0.0) < 2.0:
         sentence += "; the recent errors look like noise rather than a failing trend"
     return Diagnosis(sentence + ".", data)
+
+
+def lag1(resid: np.ndarray) -> float | None:
+    """Lag-1 autocorrelation of residuals (about their mean)."""
+    r = np.asarray(resid, dtype=float) - float(np.mean(resid))
+    den = float(r @ r)
+    return float(r[1:] @ r[:-1]) / den if den > 0 and r.size > 2 else None
+
+
+def outlier(series, resid, err, k: int) -> dict | None:
+    """The window's largest error when it is a gross outlier (module docstring), else None."""
+    scale = 1.4826 * float(np.median(np.abs(resid - np.median(resid))))
+    if not scale > 0 or k < 3:
+        return None
+    j = int(np.argmax(np.abs(err)))
+    size = abs(float(err[j])) / scale
+    if size < OUTLIER_SIZE:
+        return None
+    pos = series.n - k + j
+    return {"position": pos, "date": series.iso(pos), "label": series.label(pos),
+            "size": size, "explains": bool(abs(float(err[j])) >= 0.5 * abs(float(err.sum())))}

@@ -23,7 +23,7 @@ date interval, and the overall sup-F p-value (whether there is any break at all)
 from __future__ import annotations
 
 from ..regimes import usable_breaks
-from ..words import history_sentence
+from ..words import history_sentence, significance
 from .recommend import ALPHA, _p
 from .result import HistoryDecision
 
@@ -143,11 +143,18 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     judged = [r for r in rows if r["judgeable"]]
     candidates = [r for r in judged if r["significant"]]
     if not candidates:
-        r = (judged or rows)[-1]
+        if not judged:
+            r = rows[-1]
+            return HistoryDecision(None, None, history_sentence(
+                                   None, f"the break at {r['label']}{interval(r)} is too "
+                                   f"recent for the rolling origin to judge ({own_words(r)}), "
+                                   f"so revisit it as data arrive{tail}"), evidence)
+        r = judged[-1]
         return HistoryDecision(None, None, history_sentence(
-                               None, f"the break at {r['label']}{interval(r)} is not "
-                               f"significant on its own ({own_words(r)}; any break: sup-F "
-                               f"{_p(break_p)}){recent_note}{tail}"), evidence)
+                               None, f"the break at {r['label']}{interval(r)} is the latest "
+                               f"the rolling origin can judge, and on its own it is "
+                               f"{significance(r['own_p_value'])} ({own_words(r)}; any break: "
+                               f"sup-F {_p(break_p)}){recent_note}{tail}"), evidence)
     chosen = candidates[-1]
     k = 1 + sum(1 for r in judged if r["position"] > chosen["position"])
     fit = leak.get(k)
@@ -166,8 +173,8 @@ def decide_history(series, reference, truncated, sweep, from_breaks, breaks, bre
     where = ("" if hits is None or optimistic else
              f"; at {hits} of {len(origins)} origins the break re-detected there fell in "
              f"that 95% interval")
-    significant = (f"the break there{interval(chosen)} is significant on its own "
-                   f"({own_words(chosen)})")
+    significant = (f"the break there{interval(chosen)} is, on its own, "
+                   f"{significance(chosen['own_p_value'])} ({own_words(chosen)})")
     if fit is None or not fit.metrics["rmse"] <= rmse_all:
         got = ("was not run" if fit is None else
                f"did not forecast better than all history (RMSE {fit.metrics['rmse']:.4g} "

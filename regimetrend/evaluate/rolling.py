@@ -4,10 +4,21 @@ An origin ``o`` is the number of periods known: every candidate is fitted on pos
 ``0..o-1`` and forecasts ``o..o+H-1``. The last origin is ``n - H`` so that every origin is scored
 on all H horizons (a single train/holdout split is the one-origin case ``first_origin = n - H``).
 
-Default first origin: the later of half the series and ``n - H - 23 * step`` (at most 24
-origins, placed where the recent regimes are), and never before the shortest history every
-shape can be fitted on. Breaks are found again at every origin from the history up to it only
-(leak-free) through the ``breaks_at`` callable the caller passes in.
+Default first origin: the later of half the series and ``n - H - (K - 1) * step`` with
+K = max(24, 2H) origins at most (placed where the recent regimes are), and never before the
+shortest history every shape can be fitted on. Then, so that the evaluation can see the latest
+change: when a full-sample break b is given with its shortest regime h (the break search's
+trimming), the first origin moves later until at least half of the origins know h periods
+after b (origin o >= b + h), as long as at least ``MIN_ORIGINS_AFTER`` origins can; where the
+series does not allow it (the break is too recent), the plan says why in ``placement``.
+
+Default horizon (``default_horizon``): a planning span per calendar (4 years, 4 quarters, 12
+months, 13 weeks, 14 days; common practice), shortened on short series so that the rolling
+origin keeps at least two origins per horizon step (O >= 2H, so the pooled Diebold-Mariano
+test, which keeps H - 1 autocovariances, has enough origins).
+
+Breaks are found again at every origin from the history up to it only (leak-free) through the
+``breaks_at`` callable the caller passes in.
 """
 
 from __future__ import annotations
@@ -25,6 +36,15 @@ from ..metrics import naive_scale
 from ..regimes import OriginFits, Strategy
 
 MAX_DEFAULT_ORIGINS = 24
+MIN_ORIGINS_AFTER = 3  # origins that must know a shortest regime after the break to move
+BASE_HORIZON = {"year": 4, "quarter": 4, "month": 12, "week": 13, "day": 14}
+
+
+def default_horizon(n: int, unit: str, step: int = 1) -> int:
+    """Default forecast horizon for ``n`` periods of a ``unit`` calendar (module docstring):
+    the calendar's planning span, at most (n // 2 + 1) // 3 so that O >= 2H origins remain."""
+    base = BASE_HORIZON.get(unit, 4) if step == 1 else 4
+    return int(max(1, min(base, (n // 2 + 1) // 3)))
 FIELDS = ("forecast", "lower80", "upper80", "lower95", "upper95")
 
 
@@ -36,10 +56,12 @@ class OriginPlan:
     step: int
     horizon: int
     origins: tuple[int, ...]
+    placement: str = "default"  # how the first origin was placed, in words
 
     def to_dict(self, series=None) -> dict:
         out = {"first_origin": self.first, "step": self.step, "horizon": self.horizon,
-               "count": len(self.origins), "origins": list(self.origins)}
+               "count": len(self.origins), "origins": list(self.origins),
+               "placement": self.placement}
         if series is not None:
             out["first_origin_date"] = series.iso(self.first - 1)
             out["last_origin_date"] = series.iso(self.origins[-1] - 1)
@@ -49,15 +71,25 @@ class OriginPlan:
 
 
 def plan_origins(n: int, horizon: int, minimum: int, first_origin: int | None = None,
-                 step: int = 1) -> OriginPlan:
-    """Origins ``first, first + step, ... <= n - horizon`` (see the module docstring)."""
+                 step: int = 1, latest_break: int | None = None,
+                 shortest: int | None = None, label=str) -> OriginPlan:
+    """Origins ``first, first + step, ... <= n - horizon`` (see the module docstring).
+
+    ``latest_break`` and ``shortest`` (the latest full-sample break and the shortest regime of
+    the break search) move a default first origin later so that half of the origins know a
+    shortest regime after the break; ``label(position)`` names periods in ``placement``."""
     if horizon < 1:
         raise InputError(f"{about('horizon')}: must be at least 1 period")
     if step < 1:
         raise InputError(f"{about('step')}: must be at least 1 period")
     last = n - horizon
+    placement = "given" if first_origin is not None else "default"
     if first_origin is None:
-        first_origin = max(int(math.ceil(n / 2)), last - (MAX_DEFAULT_ORIGINS - 1) * step, minimum)
+        most = max(MAX_DEFAULT_ORIGINS, 2 * horizon)
+        first_origin = max(int(math.ceil(n / 2)), last - (most - 1) * step, minimum)
+        if latest_break is not None and shortest:
+            first_origin, placement = _after_break(first_origin, last, step, int(latest_break),
+                                                   int(shortest), horizon, label)
     if first_origin < minimum:
         raise InputError(f"{about('first_origin')}: {first_origin} periods are too few to fit every "
                          f"candidate; use at least {minimum}")
@@ -65,7 +97,29 @@ def plan_origins(n: int, horizon: int, minimum: int, first_origin: int | None = 
         raise InputError(f"{about('horizon')} and {option('first_origin')}: a first origin of {first_origin} "
                          f"periods with a horizon of {horizon} needs at least "
                          f"{first_origin + horizon} periods; the series has {n}")
-    return OriginPlan(first_origin, step, horizon, tuple(range(first_origin, last + 1, step)))
+    return OriginPlan(first_origin, step, horizon, tuple(range(first_origin, last + 1, step)),
+                      placement)
+
+
+def _after_break(first: int, last: int, step: int, b: int, h: int, horizon: int, label):
+    """(first origin, placement words) so that half of the origins know ``h`` periods after
+    the break at ``b`` (module docstring)."""
+    need = b + h  # an origin o knows a shortest regime after b when o >= need
+    origins = range(first, last + 1, step)
+    after = sum(1 for o in origins if o >= need)
+    if 2 * after >= len(origins):
+        return first, (f"default; {after} of {len(origins)} origins know at least {h} periods "
+                       f"after the latest break ({label(b)})")
+    can = (last - need) // step + 1 if need <= last else 0
+    if can < MIN_ORIGINS_AFTER:
+        return first, (f"default; the latest break ({label(b)}) is too recent for the rolling "
+                       f"origin to judge: an origin needs {h} periods after it (the shortest "
+                       f"regime) and {horizon} more to score, so only {max(can, 0)} of "
+                       f"{len(origins)} origins know a regime after it")
+    moved = max(first, last - 2 * (can - 1) * step)
+    total = (last - moved) // step + 1
+    return moved, (f"moved later so that {can} of {total} origins know at least {h} periods "
+                   f"after the latest break ({label(b)})")
 
 
 @dataclass(frozen=True, eq=False)

@@ -280,7 +280,46 @@ def _growth_chart(d: ReportData) -> Chart | None:
                  "The current regime is coloured.", png)
 
 
+def _verdict_facts(v) -> list[Fact]:
+    """Headline cards from the verdict: growth now, the latest break used, the first forecast
+    period and the chosen model, each from the one chosen model."""
+    from ..verdict import interval_words, num_text, pct_text, strategy_words
+
+    facts = []
+    g = v.growth_now
+    if g is not None and (g.annualised_pct is not None or g.per_year_units is not None):
+        since = f"since {g.since_label}" if g.since_label else "over all history"
+        lo, hi = g.ci95
+        if g.shape == "linear" and g.per_year_units is not None:
+            value = f"{num_text(g.per_year_units)} a year"
+            sub = (f"{pct_text(g.annualised_pct)} a year; " if g.annualised_pct is not None
+                   else "") + f"{g.shape} trend"
+        else:
+            value = f"{pct_text(g.annualised_pct)} a year"
+            sub = (f"95%: {pct_text(lo)} to {pct_text(hi)}" if None not in (lo, hi) else "")
+        facts.append(Fact(f"growth now, {since}", value, sub))
+    if v.breaks:
+        b = v.breaks[-1]
+        facts.append(Fact("latest change of regime", b.label,
+                          interval_words(*b.ci95_labels).replace("95% interval ", "95%: ")))
+    else:
+        facts.append(Fact("change of regime used", "none", f"{v.search_breaks} found by the "
+                                                           f"break search"))
+    facts.append(Fact("chosen model", f"{v.model.strategy} {v.model.shape}",
+                      strategy_words(v.model.strategy, v.model.shape,
+                                     v.history.keep_from_label)))
+    facts.append(Fact("diagnosis", v.diagnosis.cause, f"stability: {v.stability.status}"))
+    return facts
+
+
 def _facts(d: ReportData) -> list[Fact]:
+    if d.verdict is not None:
+        facts = _verdict_facts(d.verdict)
+        if d.forecast is not None and d.forecast.horizon:
+            row = d.forecast.rows()[0]
+            facts.insert(2, Fact(f"forecast {row['label']}", num(row["mean"]),
+                                 f"95%: {num(row['lower95'])} to {num(row['upper95'])}"))
+        return facts
     s = d.series
     facts = []
     g = d.growth

@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # annotations only: the report computes nothing
     from ..design import TrendSpec
     from ..evaluate.rolling import ErrorTable
     from ..forecast import Forecast
+    from ..verdict import Verdict
 
 
 @dataclass(frozen=True)
@@ -54,6 +55,7 @@ class ReportData:
     cautions: tuple[str, ...] = field(default=())
     regime_trend: np.ndarray | None = None  # regime_fitted with seasonal terms at their average
     global_trend: np.ndarray | None = None  # global_fitted with seasonal terms at their average
+    verdict: Verdict | None = None  # the chosen model and its sentences
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -105,4 +107,5 @@ def gather(analysis: Analysis, source_name: str | None = None,
         global_fitted=_fitted(analysis.global_fitted, series.n),
         cautions=tuple(str(c) for c in analysis.cautions),
         regime_trend=_fitted(growth.trend if growth is not None else None, series.n),
-        global_trend=_fitted(analysis.global_trend, series.n))
+        global_trend=_fitted(analysis.global_trend, series.n),
+        verdict=getattr(analysis, "verdict", None))

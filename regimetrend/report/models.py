@@ -32,7 +32,7 @@ def growth_measure(growth: dict | None) -> str | None:
     if shape == "exponential":
         return "compound growth"
     if shape == "linear":
-        return "yearly increase as % of the regime's fitted end level"
+        return "compound growth of the fitted line over the regime"
     return growth.get("headline") or None
 
 

@@ -1,4 +1,9 @@
-"""The plain-language summary a manager reads first: five or six short sentences.
+"""The plain-language summary a manager reads first.
+
+With a verdict (every ``analyze`` result) the summary is the verdict's sentences: the chosen
+model and why, its breaks, growth now, the history advice, the diagnosis, the forecast, the
+coverage warning, the stability check and the alternatives, all generated from the verdict's
+fields. The rest of this module words a result without a verdict.
 
 In order: what changed and when (with the date interval); how sure that is; how the global trend
 fails late; what history to keep; growth then versus now; the forecast for the next periods with
@@ -56,8 +61,8 @@ def _sure(data: ReportData) -> str:
                 f"{words.LEVEL})")
     if wald:
         last = wald[-1]
-        verdict = "differs clearly" if words.significant(last) else "does not differ clearly"
-        text += f", and growth {verdict} across the last break (Wald p-value {_p_text(last)})"
+        text += (f"; the change of growth across the last break is {words.significance(last)} "
+                 f"(Wald p-value {_p_text(last)})")
     return text + "."
 
 
@@ -182,7 +187,11 @@ def _forecast(data: ReportData) -> str | None:
 
 
 def summary_sentences(data: ReportData) -> list[str]:
-    """Five or six sentences (fewer only when a stage is missing)."""
+    """The verdict's sentences (``regimetrend.verdict``: one model, every sentence generated
+    from its fields). A result without a verdict (a stand-in with no evaluation) gets five or
+    six sentences built from the figures it has."""
+    if data.verdict is not None:
+        return list(data.verdict.sentences)
     out = [_when(data), _sure(data)]
     for fn in (_late_failure, _history, _growth, _forecast):
         s = fn(data)

@@ -1,0 +1,154 @@
+"""The verdict: one model per series, by the written rule, with fields and sentences that agree.
+
+Known-truth simulations (seeded; planted truths, not outside checks): exponential growth with
+no break, a kink, a jump, a random walk with drift and a one-off spike. The outside checks on
+real open series are in ``test_verdict_corpus.py``.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from regimetrend.analysis import analyze
+from regimetrend.evaluate.rolling import default_horizon, plan_origins
+from regimetrend.series import Frequency, Series
+from regimetrend.verdict import (p_text, pct_text, significance, stability_periods)
+
+from .verdict_checks import check_verdict
+
+N = 80
+
+
+def quarterly(name, values):
+    starts = pd.date_range("1990-01-01", periods=len(values), freq="QS")
+    return Series(name, starts.values.astype("datetime64[D]"), np.asarray(values, float),
+                  Frequency("quarter"))
+
+
+def simulated():
+    rng = np.random.default_rng(1)
+    t = np.arange(N)
+    return {
+        "exponential": 100 * np.exp(0.03 * t + rng.normal(0, 0.02, N)),
+        "kink": 100 + 0.5 * t + 2.0 * np.maximum(t - 50, 0) + rng.normal(0, 1.5, N),
+        "jump": 100 + 0.5 * t + 15 * (t >= 50) + rng.normal(0, 1.5, N),
+        "random walk": 100 + np.cumsum(0.3 + rng.normal(0, 1.5, N)),
+        "spike": 100 + 0.5 * t + rng.normal(0, 1.0, N) + 25 * (t == N - 2),
+    }
+
+
+@pytest.fixture(scope="module")
+def sims():
+    return {name: analyze(quarterly(name, v), seasonality="none")
+            for name, v in simulated().items()}
+
+
+@pytest.mark.parametrize("name", ["exponential", "kink", "jump", "random walk", "spike"])
+def test_every_simulated_verdict_is_coherent(sims, name):
+    check_verdict(sims[name])
+
+
+def test_exponential_growth_without_a_break_is_the_wrong_shape_for_a_line(sims):
+    a = sims["exponential"]
+    v = a.verdict
+    assert a.searches["exponential"].positions == ()  # no break under its own shape
+    assert len(a.searches["linear"].positions) >= 1  # the line needs breaks to follow it
+    assert v.model.shape == "exponential" and v.breaks == ()
+    assert v.diagnosis.cause == "wrong shape"
+    assert v.history.keep_from is None
+    assert v.growth_now.annualised_pct == pytest.approx(100 * (np.exp(0.12) - 1), abs=0.5)
+
+
+def test_a_kink_is_a_regime_change_dated_at_the_kink(sims):
+    a = sims["kink"]
+    v = a.verdict
+    assert v.diagnosis.cause == "regime change"
+    found = a.searches["linear"]
+    assert any(b.ci95[0] - 2 <= 50 <= b.ci95[1] + 2 for b in found.breaks)
+    assert found.breaks[-1].label in v.diagnosis.sentence
+    assert v.model.strategy != "global"  # one trend over all history is not kept
+
+
+def test_a_jump_is_found_at_its_date(sims):
+    a = sims["jump"]
+    found = a.searches[a.verdict.model.search_shape]
+    assert any(abs(p - 50) <= 2 for p in found.positions)
+    assert a.verdict.diagnosis.cause in ("noise", "regime change")
+
+
+def test_a_random_walk_with_drift_is_not_forecast_with_one_long_trend(sims):
+    # On 80 points trend breaks cannot be told apart from wandering: in this draw the
+    # autocorrelation-calibrated break test still finds a break (p < 0.05), so the cause may
+    # be named a regime change; either way the verdict must not keep one trend over all history
+    v = sims["random walk"].verdict
+    assert v.diagnosis.cause in ("wandering", "regime change")
+    assert v.model.strategy != "global"
+
+
+def test_a_one_off_spike_is_called_an_outlier(sims):
+    v = sims["spike"].verdict
+    assert v.diagnosis.cause == "outlier"
+    assert quarterly("x", np.zeros(N)).label(N - 2) in v.diagnosis.sentence
+
+
+def test_an_explicit_shape_is_honoured():
+    values = simulated()["exponential"]
+    a = analyze(quarterly("exponential", values), seasonality="none", shape="linear")
+    check_verdict(a, explicit_shape="linear")
+    assert set(a.evaluations) == {"linear"} and set(a.searches) == {"linear"}
+
+
+def test_a_late_jump_makes_the_verdict_fragile():
+    rng = np.random.default_rng(7)
+    t = np.arange(N)
+    values = 100 + 0.5 * t + rng.normal(0, 1.0, N) + 12 * (t >= N - 3)
+    a = analyze(quarterly("late jump", values), seasonality="none", shape="linear")
+    check_verdict(a, explicit_shape="linear")
+    st = a.verdict.stability
+    assert st.status in ("stable", "changed")
+    if st.status == "changed":
+        assert st.changed_when_added <= 3
+
+
+# ------------------------------------------------------------------------------- plan and words
+
+
+def test_origins_move_later_so_half_know_a_regime_after_the_latest_break():
+    plan = plan_origins(120, 12, minimum=24, latest_break=90, shortest=10)
+    after = sum(1 for o in plan.origins if o >= 100)
+    assert 2 * after >= len(plan.origins) and "moved later" in plan.placement
+    kept = plan_origins(120, 12, minimum=24, latest_break=40, shortest=10)
+    assert kept.first == 85 and kept.placement.startswith("default")
+    recent = plan_origins(120, 12, minimum=24, latest_break=105, shortest=10)
+    assert recent.first == 85 and "too recent" in recent.placement
+    given = plan_origins(120, 12, minimum=24, first_origin=60, latest_break=90, shortest=10)
+    assert given.first == 60 and given.placement == "given"
+
+
+def test_default_horizons_follow_the_calendar_and_leave_origins_for_the_test():
+    assert default_horizon(144, "month") == 12
+    assert default_horizon(84, "quarter") == 4
+    assert default_horizon(24, "year") == 4
+    assert default_horizon(16, "year") == 3
+    assert default_horizon(2000, "week") == 13  # a quarter, not a year of weeks
+    assert default_horizon(1000, "day") == 14
+    for n, unit in ((40, "week"), (60, "month"), (30, "quarter")):
+        h = default_horizon(n, unit)
+        plan = plan_origins(n, h, minimum=8)
+        assert len(plan.origins) >= 2 * h - 1
+
+
+def test_significance_words_come_from_the_p_value():
+    assert significance(0.049) == "significant at the 5% level"
+    assert significance(0.05) == "not significant at the 5% level"
+    assert significance(None) == "not tested"
+    assert p_text(0.0004) == "p < 0.001" and p_text(0.0123) == "p = 0.012"
+    assert pct_text(-0.04) == "0.0%" and pct_text(-0.06) == "-0.1%"
+
+
+def test_stability_drops_one_period_up_to_a_season():
+    q = quarterly("x", np.ones(20))
+    assert stability_periods(q) == (1, 2, 3, 4)
+    starts = pd.date_range("2000-01-01", periods=30, freq="MS").values.astype("datetime64[D]")
+    m = Series("m", starts, np.ones(30), Frequency("month"))
+    assert stability_periods(m) == (1, 2, 3, 6, 12)

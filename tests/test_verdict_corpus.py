@@ -1,0 +1,89 @@
+"""The verdict on a corpus of real open series (``tests/corpus.py``; the source of each series
+is named there and in the parameter ids): no two fields contradict, every sentence agrees with
+its number, and the growth of the chosen model matches statsmodels' least squares on the same
+design. Known facts about particular series are marked (from memory)."""
+
+import numpy as np
+import pytest
+
+from regimetrend.analysis import analyze
+
+from .corpus import CORPUS
+from .verdict_checks import check_verdict
+
+NAMES = list(CORPUS)
+
+
+@pytest.fixture(scope="module")
+def corpus():
+    return {name: analyze(CORPUS[name][0]()) for name in NAMES}
+
+
+def test_the_corpus_covers_every_calendar_and_at_least_twelve_series():
+    assert len(CORPUS) >= 12
+    assert {c for _, c, _ in CORPUS.values()} == {"annual", "quarterly", "monthly", "weekly"}
+
+
+@pytest.mark.parametrize("name", NAMES)
+def test_the_verdict_is_coherent(corpus, name):
+    check_verdict(corpus[name])
+
+
+@pytest.mark.parametrize("name", NAMES)
+def test_report_figures_come_from_the_chosen_model(corpus, name):
+    a = corpus[name]
+    v = a.verdict
+    ev = a.evaluation
+    assert ev.recommended.name == v.model.name  # ranking table and charts mark this model
+    assert ev.history.keep_from == v.history.keep_from
+    assert ev.diagnosis.sentence == v.diagnosis.sentence
+    assert v.model.name in ev.errors.names
+    last = a.growth.last
+    if v.growth_now.annualised_pct is not None:
+        assert last.get("annualised_pct").value == v.growth_now.annualised_pct
+
+
+@pytest.mark.parametrize("name", NAMES)
+def test_growth_now_matches_statsmodels_on_the_chosen_design(corpus, name):
+    """Outside check (statsmodels OLS): for one trend (global or truncated, no seasonal terms
+    or seasonal dummies) the slope behind growth now is refitted by statsmodels on the same
+    stretch and columns."""
+    import statsmodels.api as sm
+
+    from regimetrend.design import seasonal_columns
+
+    a = corpus[name]
+    v = a.verdict
+    if v.model.strategy not in ("global", "truncated") or v.model.shape == "quadratic" \
+            or v.model.seasonality == "adjust":
+        pytest.skip(f"{v.model.strategy} {v.model.shape}: no single-trend refit to compare")
+    s = a.series
+    start = a.forecast.fitted_from
+    t = np.arange(start, s.n, dtype=float)
+    y = s.values[start:]
+    y = np.log(y) if v.model.shape == "exponential" else y
+    X = np.column_stack([np.ones_like(t), t])
+    if v.model.seasonality == "dummies":
+        X = np.hstack([X, seasonal_columns(np.arange(start, s.n), s.first_season(),
+                                           a.spec.season_length)])
+    slope = sm.OLS(y, X).fit().params[1]
+    ppy = s.frequency.periods_per_year
+    if v.model.shape == "exponential":
+        expected = 100 * (np.exp(slope * ppy) - 1)
+        assert v.growth_now.annualised_pct == pytest.approx(expected, rel=1e-6, abs=1e-9)
+    else:
+        assert v.growth_now.per_year_units == pytest.approx(slope * ppy, rel=1e-6, abs=1e-9)
+
+
+def test_uk_driver_deaths_seat_belt_law_is_found(corpus):
+    """The UK front-seat belt law took effect at the end of January 1983 (from memory; the
+    series is the classic example of Harvey and Durbin, 1986): a break near 1983-02."""
+    a = corpus["UKDriverDeaths"]
+    dates = [a.series.iso(p) for found in a.searches.values() for p in found.positions]
+    assert any("1982-11-01" <= d <= "1983-05-01" for d in dates)
+
+
+def test_johnson_and_johnson_grows_exponentially(corpus):
+    """Johnson & Johnson's quarterly earnings grow roughly exponentially (usually modelled on
+    logs; from memory): the verdict's shape is exponential."""
+    assert corpus["JohnsonJohnson"].verdict.model.shape == "exponential"

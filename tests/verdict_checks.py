@@ -1,0 +1,78 @@
+"""Invariants every verdict must satisfy: no two fields contradict, every sentence agrees with
+its number. Shared by the known-truth simulations and the real-series corpus."""
+
+from __future__ import annotations
+
+import re
+
+from regimetrend.verdict import CAUSES, num_text, pct_text
+
+VERDICT_KEYS = {"model", "breaks", "keep_history_from", "growth_now", "forecast_model",
+                "diagnosis", "stability", "sentences"}
+P_WITH_WORDS = re.compile(r"p (?:=|<) (\d\.\d+), (significant|not significant) at the 5% level")
+
+
+def check_verdict(analysis, explicit_shape: str | None = None) -> None:
+    v = analysis.verdict
+    d = analysis.to_dict()["verdict"]
+    assert set(d) == VERDICT_KEYS
+    assert set(d["model"]) == {"shape", "seasonality", "strategy"}
+    assert set(d["growth_now"]) == {"annualised_pct", "ci95", "per_year_units", "model"}
+    assert set(d["diagnosis"]) == {"cause", "sentence"}
+    assert d["diagnosis"]["cause"] in CAUSES
+    assert all(set(b) == {"date", "ci95"} for b in d["breaks"])
+    model = d["model"]
+    if explicit_shape:
+        assert model["shape"] == explicit_shape
+    # the model, its forecast and its growth are one model
+    assert d["forecast_model"] == {"shape": model["shape"], "strategy": model["strategy"]}
+    assert d["growth_now"]["model"]["shape"] == model["shape"]
+    assert analysis.forecast.spec.shape == model["shape"]
+    assert analysis.growth.spec.shape == model["shape"]
+    assert analysis.spec.shape == model["shape"]
+    # break-free models use no breaks and keep all history; a cut is at one of the model's breaks
+    if model["strategy"] in ("global", "window-average", "continuous"):
+        assert d["keep_history_from"] is None
+    if model["strategy"] in ("global", "window-average"):
+        assert d["breaks"] == []
+    if model["strategy"] == "truncated" and d["keep_history_from"] is not None:
+        assert analysis.series.iso(analysis.forecast.fitted_from) == d["keep_history_from"]
+    if model["strategy"] == "separate" and d["keep_history_from"] is not None:
+        assert d["keep_history_from"] in [b["date"] for b in d["breaks"]]
+    for b in d["breaks"]:
+        assert b["ci95"][0] <= b["date"] <= b["ci95"][1]
+    # sentences agree with the fields
+    text = " ".join(d["sentences"])
+    assert tuple(d["sentences"]) == v.sentences
+    assert d["diagnosis"]["sentence"] in d["sentences"]
+    assert d["stability"]["sentence"] in d["sentences"]
+    assert "-0.0%" not in text and " -0 " not in text
+    for b in v.breaks:
+        assert b.label in text
+    keep = v.history.keep_from_label
+    history = next(s for s in d["sentences"] if s.startswith("Keep "))
+    if keep:
+        assert history.startswith(f"Keep the history from {keep} ")
+    else:
+        assert history.startswith("Keep all history")
+    g = v.growth_now
+    growth = next(s for s in d["sentences"] if s.startswith("Growth now ("))
+    if g.annualised_pct is not None:
+        assert f"{pct_text(g.annualised_pct)} a year" in growth
+    if g.per_year_units is not None:
+        assert f"{num_text(g.per_year_units)} units a year" in growth
+    if g.shape == "linear" and g.per_year_units is not None and g.annualised_pct is not None:
+        assert growth.index("units a year") < growth.index("% a year")  # units first
+    if g.shared:
+        assert "growth changed" not in text.lower()
+    if d["stability"]["status"] == "stable":
+        assert d["stability"]["sentence"].startswith("The verdict is stable")
+    elif d["stability"]["status"] == "changed":
+        k = d["stability"]["changed_when_added"]
+        assert "changed when the last" in d["stability"]["sentence"]
+        assert (f"last {k} " in d["stability"]["sentence"]) or k == 1
+    for p, words in P_WITH_WORDS.findall(text):  # significance words follow the p-value
+        assert (float(p) < 0.05) == (words == "significant")
+    assert (d["diagnosis"]["cause"] == "wrong shape") <= ("curves" in d["diagnosis"]["sentence"])
+    if v.evidence.coverage95 is not None and v.evidence.coverage95 < 0.8:
+        assert any("95% intervals covered only" in s for s in d["sentences"])

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 from ..design import TrendSpec
 
@@ -198,6 +199,12 @@ class BreakSet:
     seasonal_by_regime: bool = False
     notes: tuple[str, ...] = ()
     max_breaks: int = 0  # most breaks searched (the default cap resolved; see detect_breaks)
+    wandering: Any = None  # ``wandering.Wandering``: random-walk-like residuals (qualifies breaks)
+
+    @property
+    def is_wandering(self) -> bool:
+        """The residuals of the chosen model wander like a random walk (``breaks/wandering``)."""
+        return bool(self.wandering is not None and self.wandering.wandering)
 
     @property
     def n_breaks(self) -> int:
@@ -237,4 +244,5 @@ class BreakSet:
                 "method": self.method, "exact": bool(self.exact),
                 "iterations": int(self.iterations),
                 "seasonal_by_regime": bool(self.seasonal_by_regime),
-                "max_breaks": int(self.max_breaks), "notes": list(self.notes)}
+                "max_breaks": int(self.max_breaks), "notes": list(self.notes),
+                "wandering": self.wandering.to_dict() if self.wandering is not None else None}

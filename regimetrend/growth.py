@@ -333,7 +333,7 @@ def _fit_joint(series: Series, spec: TrendSpec, breaks: list[int], kind: str,
     except ols.RankDeficient as exc:
         raise InputError(f"the regime model cannot be fitted as a {spec.describe()}: {exc}") from None
     L = ols.newey_west_lags(n) if lags is None else int(lags)
-    cov = res.cov_hac(L, small_sample=True)
+    cov = res.cov_hac(L, small_sample=True) if lags is not None else res.cov_hac_prewhitened()
     fitted = response.y - res.residuals + response.seasonal_offset()
     fitted = np.exp(fitted) if spec.log_scale else fitted
     regimes = tuple(_RegimeTrend(p.start, p.end, p.center, p.spread, p.A) for p in design.pieces)
@@ -349,7 +349,7 @@ def _model_from_fits(fits) -> _Model:
         L = ols.newey_west_lags(f.fit.n)
         lags.append(L)
         betas.append(f.fit.beta)
-        covs.append(f.fit.cov_hac(L, small_sample=True))
+        covs.append(f.fit.cov_hac_prewhitened())
         A = np.zeros((3, total))
         for i in range(f.spec.trend_terms):
             A[i, offset + i] = 1.0
@@ -557,7 +557,7 @@ def _linear_words() -> str:
 def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: float,
            seasonal_by_regime: bool = False) -> GrowthTable:
     ppy = series.frequency.periods_per_year
-    z = _z(level)
+    z = ols.t_quantile(level, max(len(model.fitted) - len(model.beta), 1))
     regimes = []
     for i, rt in enumerate(model.regimes):
         figures, notes = _regime_figures(rt, model.beta, model.cov, spec, ppy, z)

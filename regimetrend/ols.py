@@ -64,6 +64,54 @@ def long_run_variance(residuals: np.ndarray, bandwidth: float | None = None) -> 
     return lrv
 
 
+def smooth_columns(X: np.ndarray) -> int:
+    """Columns of a design that move slowly in time (uncentred lag-1 correlation above 0.5:
+    constants, trends, steps, hinges; not seasonal dummies). They bias the residuals'
+    lag-1 autocorrelation down, each by about (1 + rho) / n."""
+    X = np.asarray(X, dtype=float)
+    num = np.einsum("ij,ij->j", X[1:], X[:-1])
+    den = np.einsum("ij,ij->j", X, X)
+    return int(np.sum(num > 0.5 * np.where(den > 0, den, np.inf)))
+
+
+def residual_ar1(residuals: np.ndarray, smooth: int = 1) -> float:
+    """AR(1) coefficient of regression residuals, corrected for its small-sample bias and
+    capped at +-0.97. The lag-1 autocorrelation r of residuals from m slowly moving regressors
+    has mean about rho - ((1 + 3 rho) + (m - 1)(1 + rho)) / n (Kendall, 1954, for the mean,
+    m = 1, from memory; the (1 + rho) / n per further trend term checked by simulation: 4,000
+    detrended AR(1) series of 40-120 points gave n x bias -2.0, -3.3, -4.7 at rho 0, 0.3, 0.6
+    against -2, -3.2, -4.4); solving for rho gives (r n + m) / (n - m - 2)."""
+    e = np.asarray(residuals, dtype=float)
+    n = e.size
+    den = float(e[:-1] @ e[:-1])
+    if n < 4 or den <= 0:
+        return 0.0
+    r = float(e[1:] @ e[:-1]) / den
+    m = max(int(smooth), 1)
+    if n - m - 2 > 0:
+        r = (r * n + m) / (n - m - 2)
+    return min(max(r, -0.97), 0.97)
+
+
+def _andrews_bandwidth_multi(W: np.ndarray) -> float:
+    """Andrews' (1991) AR(1) plug-in bandwidth for the Bartlett kernel of a vector series:
+    S = 1.1447 (alpha n)^(1/3), alpha = sum 4 r^2 s^4 / ((1 - r)^6 (1 + r)^2) over
+    sum s^4 / (1 - r)^4, with (r, s^2) an AR(1) fit to each component (equal weights)."""
+    num = den = 0.0
+    n = W.shape[0]
+    for a in range(W.shape[1]):
+        w = W[:, a]
+        d = float(w[:-1] @ w[:-1])
+        if d <= 0:
+            continue
+        r = min(max(float(w[1:] @ w[:-1]) / d, -0.97), 0.97)
+        s2 = float(np.mean((w[1:] - r * w[:-1]) ** 2))
+        num += 4.0 * r * r * s2 * s2 / ((1.0 - r) ** 6 * (1.0 + r) ** 2)
+        den += s2 * s2 / (1.0 - r) ** 4
+    alpha = num / den if den > 0 else 0.0
+    return 1.1447 * (alpha * n) ** (1.0 / 3.0)
+
+
 def prewhitened_long_run_variance(residuals: np.ndarray) -> float:
     """Long-run variance with AR(1) prewhitening (Andrews and Monahan, 1992): fit
     e_t = rho e_(t-1) + v_t, take the Bartlett/Andrews long-run variance of v and recolour it
@@ -122,6 +170,36 @@ class LeastSquaresFit:
         cov = self.xtx_inv @ meat @ self.xtx_inv
         if small_sample and self.df_resid > 0:
             cov *= self.n / self.df_resid
+        return cov
+
+    def cov_hac_prewhitened(self) -> np.ndarray:
+        """HAC covariance with AR(1) prewhitening (Andrews and Monahan, 1992) and Andrews'
+        (1991) data-driven Bartlett bandwidth, times n / (n - k); pair it with t quantiles on
+        ``df_resid`` degrees of freedom.
+
+        The scores v_t = x_t e_t are prewhitened with the residuals' bias-corrected AR(1)
+        coefficient (``residual_ar1``; one coefficient for every component, which is the
+        VAR(1) of Andrews and Monahan restricted to a scalar: the regressors are deterministic
+        and move slowly), the Bartlett estimate of the whitened scores is recoloured by
+        1 / (1 - rho)^2. Measured coverage of the slope's 95% interval, 1,500 AR(1) series
+        each (``benchmarks/calibration.py`` repeats it): 91-95% for 40-120 points and rho up to
+        0.6, where Newey-West with the fixed lag rule and normal quantiles gave 76-93%."""
+        n, k = self.X.shape
+        V = self.X * self.residuals[:, None]
+        rho = residual_ar1(self.residuals, smooth_columns(self.X))
+        W = V[1:] - rho * V[:-1]
+        m = W.shape[0]
+        S = _andrews_bandwidth_multi(W)
+        meat = W.T @ W
+        j = 1
+        while j < S and j < m:
+            g = W[j:].T @ W[:-j]
+            meat += (1.0 - j / S) * (g + g.T)
+            j += 1
+        meat *= (n / max(m, 1)) / (1.0 - rho) ** 2
+        cov = self.xtx_inv @ meat @ self.xtx_inv
+        if self.df_resid > 0:
+            cov *= n / self.df_resid
         return cov
 
     def standard_errors(self, kind: str = "classical", lags: int | None = None) -> np.ndarray:

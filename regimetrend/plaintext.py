@@ -127,8 +127,13 @@ def breaks_text(b: BreakSet, series: Series | None = None,
                          f"{words.p_phrase(c.p_value)}")
     if b.drift is not None:
         lines.append(f"  the global trend started to drift at {b.drift.label} ({b.drift.method})")
+    if getattr(b, "is_wandering", False):
+        w = b.wandering
+        lines.append(f"  wandering: the series moves around its trend like a random walk "
+                     f"(KPSS {numformat.statistic(w.kpss)}, 5% value {w.kpss_critical:g}; "
+                     f"AR(1) {numformat.statistic(w.ar1)}); the breaks are descriptive only")
     g = growth.to_dict() if growth is not None else {}
-    lines += ["", "regimes (growth with 95% intervals from Newey-West errors):"]
+    lines += ["", "regimes (growth with 95% intervals from autocorrelation-robust errors):"]
     rows = []
     per_regime = g.get("segments") or [{} for _ in b.segments]
     for s, gs in zip(b.segments, per_regime):

@@ -15,7 +15,13 @@ def test_demo_writes_the_report_and_prints_the_summary(tmp_path, monkeypatch, ca
     monkeypatch.chdir(tmp_path)  # any folder: the data ship with the package
     assert main(["demo", "--output", "out"]) == 0
     text = capsys.readouterr().out
-    assert "invented data" in text and "2021-04" in text
+    assert "invented data" in text
+    # the planted change (2021-04) lies in the printed 95% interval of the break date
+    import re
+
+    lo, hi = re.search(r"changed in \d{4}-\d{2} \(95% interval (\d{4}-\d{2}) to "
+                       r"(\d{4}-\d{2})\)", text).groups()
+    assert lo <= "2021-04" <= hi
     for name in ("report.html", "report.json", "report.xlsx", "lumen_grid_energy.csv"):
         assert (tmp_path / "out" / name).is_file()
     assert "open " in text and "report.html" in text

@@ -64,8 +64,8 @@ def test_johnsonjohnson_intervals_match_statsmodels_hac_and_hand_delta_method():
     s = _rseries("JohnsonJohnson", "quarter", "1960-01-01")
     spec = TrendSpec("exponential", "dummies", 4)
     brk = 40
-    g = regime_growth(s, spec, [brk], kind="both")
     n = s.n
+    g = regime_growth(s, spec, [brk], kind="both", lags=newey_west_lags(n))  # Newey-West
     t = np.arange(n, dtype=float)
     r1, r2 = (t < brk).astype(float), (t >= brk).astype(float)
     seas = pd.get_dummies(t.astype(int) % 4, drop_first=True).to_numpy(float)
@@ -73,6 +73,7 @@ def test_johnsonjohnson_intervals_match_statsmodels_hac_and_hand_delta_method():
     L = newey_west_lags(n)
     res = _sm_hac(X, np.log(s.values), L)
     V = res.cov_params()
+    Z = stats.t.ppf(0.975, n - X.shape[1])  # t quantiles on the residual degrees of freedom
     for seg, col in zip(g.to_dict()["segments"], (1, 3)):
         gr = seg["growth"]
         b, se_b = res.params[col], math.sqrt(V[col, col])
@@ -108,6 +109,7 @@ def test_nile_linear_percent_of_level_interval_is_the_hand_delta_method():
     X = np.column_stack([r1, r1 * t, r2, r2 * t])
     res = _sm_hac(X, s.values, 3)
     V = res.cov_params()
+    Z = stats.t.ppf(0.975, s.n - 4)  # t quantiles on the residual degrees of freedom
     a, b = res.params[2], res.params[3]
     t_end = s.n - 1
     level = a + b * t_end
@@ -144,9 +146,9 @@ def test_continuous_kind_matches_statsmodels_hinge_regression():
     y = 100 + 2 * t + 3 * np.maximum(t - brk, 0) + rng.normal(0, 2, n)
     s = Series("planted", pd.date_range("2010-01-01", periods=n, freq="MS").values, y,
                Frequency("month"))
-    g = regime_growth(s, TrendSpec("linear"), [brk], kind="slope")
-    X = np.column_stack([np.ones(n), t, np.maximum(t - brk, 0)])
     L = newey_west_lags(n)
+    g = regime_growth(s, TrendSpec("linear"), [brk], kind="slope", lags=L)  # Newey-West
+    X = np.column_stack([np.ones(n), t, np.maximum(t - brk, 0)])
     res = _sm_hac(X, y, L)
     V = res.cov_params()
     segs = g.to_dict()["segments"]
@@ -177,18 +179,51 @@ def test_quadratic_end_and_average_growth():
     assert gr["average_annualised_pct"] == pytest.approx(cagr, rel=1e-3)
 
 
+def _hand_prewhitened_cov(X, e):
+    """AR(1)-prewhitened Bartlett HAC covariance (Andrews and Monahan, 1992) with Andrews'
+    (1991) bandwidth, written out by hand from the formulas: rho bias-corrected for the m
+    slowly moving regressors as (r n + m) / (n - m - 2), scores v_t = x_t e_t whitened
+    w_t = v_t - rho v_(t-1), Bartlett weights 1 - j/S, recoloured by 1/(1 - rho)^2, times
+    n/(n - k)."""
+    n, k = X.shape
+    m = sum(1 for c in X.T if c[1:] @ c[:-1] > 0.5 * (c @ c))
+    r = (e[1:] @ e[:-1]) / (e[:-1] @ e[:-1])
+    rho = min(max((r * n + m) / (n - m - 2), -0.97), 0.97)
+    V = X * e[:, None]
+    W = V[1:] - rho * V[:-1]
+    num = den = 0.0
+    for a in range(k):
+        w = W[:, a]
+        ra = min(max((w[1:] @ w[:-1]) / (w[:-1] @ w[:-1]), -0.97), 0.97)
+        s2 = np.mean((w[1:] - ra * w[:-1]) ** 2)
+        num += 4 * ra ** 2 * s2 ** 2 / ((1 - ra) ** 6 * (1 + ra) ** 2)
+        den += s2 ** 2 / (1 - ra) ** 4
+    S = 1.1447 * (num / den * (n - 1)) ** (1 / 3)
+    meat = W.T @ W + sum((1 - j / S) * (W[j:].T @ W[:len(W) - j] + W[:len(W) - j].T @ W[j:])
+                         for j in range(1, len(W)) if j < S)
+    meat = meat * (n / (n - 1)) / (1 - rho) ** 2
+    B = np.linalg.inv(X.T @ X)
+    return B @ meat @ B * n / (n - k)
+
+
 def test_separate_fits_match_statsmodels_per_regime():
-    # statsmodels OLS + HAC fitted on each regime alone (reference), via growth_from_fits
+    # statsmodels OLS fitted on each regime alone (reference coefficients), via
+    # growth_from_fits; the prewhitened HAC standard error by hand from the published formulas
     s = _rseries("JohnsonJohnson", "quarter", "1960-01-01")
     spec = TrendSpec("exponential")
     fits = [fit_history(s, spec, 0, 40), fit_history(s, spec, 40, s.n)]
     g = growth_from_fits(s, fits)
-    for seg, (a, e) in zip(g.to_dict()["segments"], ((0, 40), (40, s.n))):
+    for seg, f, (a, e) in zip(g.to_dict()["segments"], fits, ((0, 40), (40, s.n))):
         t = np.arange(a, e, dtype=float)
-        res = _sm_hac(np.column_stack([np.ones(e - a), t]), np.log(s.values[a:e]),
-                      newey_west_lags(e - a))
+        X = np.column_stack([np.ones(e - a), t])
+        res = _sm_hac(X, np.log(s.values[a:e]), newey_west_lags(e - a))
         assert seg["growth"]["log_growth_per_period"] == pytest.approx(res.params[1], rel=1e-8)
-        assert seg["growth"]["log_growth_per_period_se"] == pytest.approx(res.bse[1], rel=1e-6)
+        # the fit's own design (scaled time index): the bandwidth depends on the scaling, the
+        # residuals do not
+        np.testing.assert_allclose(f.fit.residuals, res.resid, atol=1e-9)
+        cov = _hand_prewhitened_cov(f.fit.X, np.asarray(res.resid))
+        se = math.sqrt(cov[1, 1]) / f.scale.spread  # per period: u = (t - centre) / spread
+        assert seg["growth"]["log_growth_per_period_se"] == pytest.approx(se, rel=1e-6)
 
 
 def test_planted_growth_change_is_found_and_level_breaks_share_growth():

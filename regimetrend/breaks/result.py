@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 from ..design import TrendSpec
 
@@ -227,11 +228,17 @@ class BreakSet:
     notes: tuple[str, ...] = ()
     max_breaks: int = 0  # most breaks searched (the default cap resolved; see detect_breaks)
     given: bool = False  # the dates were given by the analyst, not searched for
+    wandering: Any = None  # ``wandering.Wandering``: random-walk-like residuals (qualifies breaks)
 
     @property
     def source(self) -> str:
         """Where the dates come from, in words."""
         return "given by the analyst" if self.given else "found by the search"
+
+    @property
+    def is_wandering(self) -> bool:
+        """The residuals of the chosen model wander like a random walk (``breaks/wandering``)."""
+        return bool(self.wandering is not None and self.wandering.wandering)
 
     @property
     def n_breaks(self) -> int:
@@ -272,4 +279,5 @@ class BreakSet:
                 "iterations": int(self.iterations),
                 "seasonal_by_regime": bool(self.seasonal_by_regime),
                 "max_breaks": int(self.max_breaks), "dates_given": bool(self.given),
-                "dates_source": self.source, "notes": list(self.notes)}
+                "dates_source": self.source, "notes": list(self.notes),
+                "wandering": self.wandering.to_dict() if self.wandering is not None else None}

@@ -8,22 +8,38 @@ _SECTIONS = (
     ("Trend and growth",
      "Each trend is fitted by least squares: linear (y = a + b t), exponential (ln y = a + b t, "
      "growth per period e^b - 1, compounded to a year as (1 + g)^p - 1) or quadratic. Seasonal "
-     "terms, when used, are shared by all regimes. Standard errors use the Newey-West "
-     "covariance, which allows for autocorrelated residuals, and intervals of growth figures "
-     "use the delta method; a Wald test with the same covariance asks whether growth differs "
-     "across a break.",
-     "Newey, W. K. and West, K. D. (1987), Econometrica 55(3), 703-708; Newey and West (1994), "
-     "Review of Economic Studies 61(4), 631-653."),
+     "terms, when used, are shared by all regimes. Standard errors allow for autocorrelated "
+     "residuals: a heteroskedasticity and autocorrelation consistent covariance with AR(1) "
+     "prewhitening and a data-driven Bartlett bandwidth, with t quantiles. Intervals of growth "
+     "figures use the delta method and a Wald test with the same covariance asks whether "
+     "growth differs across a break. In simulations with regimes of 40 to 120 points and "
+     "AR(1) errors up to 0.6 the 95% intervals covered 89-95% of the time; shorter or more "
+     "persistent regimes give intervals that are too narrow.",
+     "Newey, W. K. and West, K. D. (1987), Econometrica 55(3), 703-708; Andrews, D. W. K. "
+     "(1991), Econometrica 59(3), 817-858; Andrews, D. W. K. and Monahan, J. C. (1992), "
+     "Econometrica 60(4), 953-966."),
     ("Break search",
      "Breaks are the first periods of new regimes. The best break dates for each number of "
      "breaks come from an exact search over all segmentations (dynamic programming on segment "
      "costs); very long series are searched by PELT instead. The number of breaks is chosen "
      "by an information criterion or sequential tests, the sup-F test asks whether there is "
-     "any break at all, and each break date gets a 95% interval.",
+     "any break at all, and each break date gets a 95% interval. The tests assume that the "
+     "deviations from the trend return to it (stationary errors, autocorrelation allowed): "
+     "each F statistic is scaled by a long-run variance estimated without the break tested, "
+     "and whether there is any break is judged against series simulated on the same design, "
+     "with level, slope and combined breaks tried together, so the chance of a false break is "
+     "about 5% in all (measured 3-8% for 60-240 points and autocorrelation up to 0.6). When "
+     "the deviations wander like a random walk (a KPSS test with a persistent residual "
+     "autocorrelation) the report says so and treats breaks as descriptive. Break-date "
+     "intervals are widened to cover the dates of another kind of break that fits almost as "
+     "well; small jumps in short series are dated less surely than the intervals suggest.",
      "Bai, J. and Perron, P. (1998), Econometrica 66(1), 47-78; Bai and Perron (2003), Journal "
      "of Applied Econometrics 18(1), 1-22; Andrews, D. W. K. (1993), Econometrica 61(4), "
      "821-856; Killick, R., Fearnhead, P. and Eckley, I. A. (2012), Journal of the American "
-     "Statistical Association 107(500), 1590-1598."),
+     "Statistical Association 107(500), 1590-1598; Dufour, J.-M. (2006), Journal of "
+     "Econometrics 133(2), 443-477; Westfall, P. H. and Young, S. S. (1993), Resampling-Based "
+     "Multiple Testing, Wiley; Kwiatkowski, D., Phillips, P. C. B., Schmidt, P. and Shin, Y. "
+     "(1992), Journal of Econometrics 54(1-3), 159-178."),
     ("Known dates and drift",
      "A break at a known date is tested with the Chow test. Break dates the analyst gives "
      "are used instead of the search: the regimes are fitted at those dates, each break is "

@@ -724,7 +724,9 @@ def stability_of(series, runs: list[Run], explicit, wandering, chosen: tuple, pr
         run = runs[i]
         model = model_of(best, run)
         brks = break_dates(series.head(series.n - k), searches[i], model)
-        same_model = (i == chosen[0] and best.name == chosen[1])
+        # The same candidate may be scored in more than one run (the linear run also scores
+        # other shapes); what matters is the model and its breaks, not which run chose it.
+        same_model = best.name == chosen[1]
         same_breaks = _same_breaks(brks, chosen[2])
         reruns.append({"without_last": k, "model": best.name,
                        "breaks": [b.label for b in brks], "same": same_model and same_breaks})

@@ -633,8 +633,12 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             f"({interval_words(*b.ci95_labels)}) explains it; the chosen model does "
             f"not forecast from it, because {why}."),
             dict(ev, explaining_break=b.label))
-    if crossing is not None or found:
-        where = (f"the break at {found[-1].label}" if found else
+    # only evidence within reach of the failure window is cited: a break decades earlier
+    # does not explain a misfit of the last periods
+    reachable_breaks = [b for b in found if b.position >= ws - reach]
+    near_crossing = crossing is not None and crossing >= ws - reach
+    if reachable_breaks or near_crossing:
+        where = (f"the break at {reachable_breaks[-1].label}" if reachable_breaks else
                  f"the CUSUM crossing at {series.label(crossing)}")
         return Diagnosis("regime change", (
             f"{head}; {cross_text}. The misfit points to a change of regime ({where}), though "

@@ -126,7 +126,7 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
                                                   progress=progress, place_after=place_after))
             for s in run_shapes]
     lag1 = runs[0].evaluation.diagnosis.data.get("residual_lag1")
-    wandering = lag1 is not None and lag1 >= verdicts.WANDERING_LAG1
+    wandering = bool(runs[0].breaks.is_wandering)  # KPSS and AR(1) of the break model's residuals
     index, chosen, basis = verdicts.choose(runs, explicit, wandering)
     run = runs[index]
     spec = TrendSpec(chosen.strategy.shape, base.seasonality, base.season_length)

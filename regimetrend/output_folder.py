@@ -28,6 +28,7 @@ import os
 import re
 import shutil
 import signal
+from collections.abc import Set as AbstractSet
 from pathlib import Path
 
 from .errors import InputError
@@ -54,14 +55,14 @@ def pid_alive(pid: int) -> bool:
     return True
 
 
-def orphan(name: str, known: set[str] = frozenset()) -> bool:
+def orphan(name: str, known: AbstractSet[str] = frozenset()) -> bool:
     """Is ``name`` a temporary of ours whose writer is gone (or an older version's temporary of
     one of the ``known`` output names)?"""
     m = _OURS.match(name)
     if m:
         return not pid_alive(int(m["pid"]))
-    m = _LEGACY_TMP.match(name)
-    return bool(m) and m["name"] in known
+    legacy = _LEGACY_TMP.match(name)
+    return legacy is not None and legacy["name"] in known
 
 
 def temp_prefix(name: str) -> str:
@@ -148,8 +149,9 @@ def recover(target: Path, manifest: str) -> None:
     if left and not os.path.lexists(target):
         complete = [p for p in left if (p / manifest).is_file() and (p / ".new").exists()]
         old = [p for p in left if not (p / ".new").exists()]
-        chosen = (complete or old or [None])[0]
-        if chosen is not None:
+        candidates: list[Path] = complete or old
+        if candidates:
+            chosen = candidates[0]
             os.rename(chosen, target)
             with contextlib.suppress(FileNotFoundError):
                 os.unlink(target / ".new")

@@ -61,9 +61,8 @@ if TYPE_CHECKING:
 
 SWEEP_NOTE = 0.30  # a sweep gain this large that the verdict declines is explained
 COVERAGE_FLOOR = 0.80  # rolling 95% intervals covering less than this are flagged
-WANDERING_LAG1 = 0.80  # residual lag-1 correlation of the global trend that counts as wandering
-#                        (this tool's threshold; a random walk detrended over 80 periods gives
-#                        about 0.85, white noise about 0)
+WANDERING_LAG1 = 0.80  # (kept for callers) the wandering flag itself comes from the break
+#                        search (``breaks/wandering.py``: KPSS and AR(1) of its residuals)
 CURVE_LAG1 = 0.50  # a trend of the right shape leaves residuals less correlated than this
 CAUSES = ("regime change", "wrong shape", "wandering", "outlier", "noise")
 BREAK_FREE = ("global", "window-average")
@@ -589,14 +588,21 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         return Diagnosis("noise", (
             f"{head}, which looks like noise: one {ref_shape} trend still fits the last "
             f"periods."), ev)
+    cross_text = (f"its CUSUM left the 5% band at {series.label(crossing)}"
+                  if crossing is not None else "its CUSUM stayed inside the 5% band")
+    if wandering:
+        return Diagnosis("wandering", (
+            f"{head}; {cross_text}. The series wanders around its trend like a random walk "
+            f"(even with its breaks the residuals fail the KPSS test of returning to the trend "
+            f"and keep an AR(1) coefficient of {_corr(_ar1(runs))}): breaks in the trend "
+            f"cannot be told apart from wandering, and recent history and short windows serve "
+            f"forecasting better than a long trend."), ev)
     # within reach: a break at most a third of the series, and at most ten years, before the
     # failure window (never less than the window or two seasons): not decades before
     ten_years = int(10 * series.frequency.periods_per_year)
     reach = max(k, 2 * series.frequency.season_length, min(n // 3, ten_years))
     near = [b for b in breaks if b.position >= ws - reach]
     via_cusum = _cross(crossing, breaks, k)
-    cross_text = (f"its CUSUM left the 5% band at {series.label(crossing)}"
-                  if crossing is not None else "its CUSUM stayed inside the 5% band")
     if breaks and model.strategy not in BREAK_FREE:
         b = (near or [via_cusum] if (near or via_cusum) else list(breaks))[-1]
         gap = ws - b.position
@@ -627,14 +633,12 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             f"({interval_words(*b.ci95_labels)}) explains it; the chosen model does "
             f"not forecast from it, because {why}."),
             dict(ev, explaining_break=b.label))
-    if wandering:
-        return Diagnosis("wandering", (
-            f"{head}; {cross_text}. The residuals of one trend wander like a random walk "
-            f"(lag-1 correlation {_corr(lag1)}): breaks in the trend cannot be told apart from "
-            f"wandering, and recent history and short windows serve forecasting better than a "
-            f"long trend."), ev)
-    if crossing is not None or found:
-        where = (f"the break at {found[-1].label}" if found else
+    # only evidence within reach of the failure window is cited: a break decades earlier
+    # does not explain a misfit of the last periods
+    reachable_breaks = [b for b in found if b.position >= ws - reach]
+    near_crossing = crossing is not None and crossing >= ws - reach
+    if reachable_breaks or near_crossing:
+        where = (f"the break at {reachable_breaks[-1].label}" if reachable_breaks else
                  f"the CUSUM crossing at {series.label(crossing)}")
         return Diagnosis("regime change", (
             f"{head}; {cross_text}. The misfit points to a change of regime ({where}), though "
@@ -642,6 +646,11 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
     return Diagnosis("noise", (
         f"{head}, but no break, CUSUM crossing or wandering explains it; with the evidence at "
         f"hand it is treated as noise."), ev)
+
+
+def _ar1(runs: list[Run]):
+    w = getattr(runs[0].breaks, "wandering", None)
+    return getattr(w, "ar1", None)
 
 
 def _corr(x) -> str:
@@ -719,7 +728,9 @@ def stability_of(series, runs: list[Run], explicit, wandering, chosen: tuple, pr
         run = runs[i]
         model = model_of(best, run)
         brks = break_dates(series.head(series.n - k), searches[i], model)
-        same_model = (i == chosen[0] and best.name == chosen[1])
+        # The same candidate may be scored in more than one run (the linear run also scores
+        # other shapes); what matters is the model and its breaks, not which run chose it.
+        same_model = best.name == chosen[1]
         same_breaks = _same_breaks(brks, chosen[2])
         reruns.append({"without_last": k, "model": best.name,
                        "breaks": [b.label for b in brks], "same": same_model and same_breaks})

@@ -280,9 +280,15 @@ def _growth_chart(d: ReportData) -> Chart | None:
                  "The current regime is coloured.", png)
 
 
-def _verdict_facts(v) -> list[Fact]:
+def _units_suffix(d: ReportData) -> str:
+    """' UNITS' when the analyst gave units other than the series name, else ''."""
+    return f" {d.units}" if d.units and d.units != d.series.name else ""
+
+
+def _verdict_facts(v, units: str = "") -> list[Fact]:
     """Headline cards from the verdict: growth now, the latest break used, the first forecast
-    period and the chosen model, each from the one chosen model."""
+    period and the chosen model, each from the one chosen model; ``units`` (' UNITS' or '')
+    follows every figure in the series' own units."""
     from ..verdict import interval_words, num_text, pct_text, strategy_words
 
     facts = []
@@ -291,7 +297,7 @@ def _verdict_facts(v) -> list[Fact]:
         since = f"since {g.since_label}" if g.since_label else "over all history"
         lo, hi = g.ci95
         if g.shape == "linear" and g.per_year_units is not None:
-            value = f"{num_text(g.per_year_units)} a year"
+            value = f"{num_text(g.per_year_units)}{units} a year"
             sub = (f"{pct_text(g.annualised_pct)} a year; " if g.annualised_pct is not None
                    else "") + f"{g.shape} trend"
         else:
@@ -314,13 +320,13 @@ def _verdict_facts(v) -> list[Fact]:
 
 def _facts(d: ReportData) -> list[Fact]:
     if d.verdict is not None:
-        facts = _verdict_facts(d.verdict)
+        units = _units_suffix(d)
+        facts = _verdict_facts(d.verdict, units)
         if d.forecast is not None and d.forecast.horizon:
             row = d.forecast.rows()[0]
-            facts.insert(2, Fact(f"forecast {row['label']}", num(row["mean"]),
-                                 f"95%: {num(row['lower95'])} to {num(row['upper95'])}"))
+            facts.insert(2, Fact(f"forecast {row['label']}", num(row["mean"]) + units,
+                                 f"95%: {num(row['lower95'])} to {num(row['upper95'])}{units}"))
         return facts
-    s = d.series
     facts = []
     g = d.growth
     if g and g.get("segments"):
@@ -341,7 +347,7 @@ def _facts(d: ReportData) -> list[Fact]:
     if d.forecast is not None and d.forecast.horizon:
         row = d.forecast.rows()[0]
         which = "recommended forecast" if d.recommended else "forecast"
-        units = f" {d.units}" if d.units and d.units != s.name else ""
+        units = _units_suffix(d)
         facts.append(Fact(f"{which} {row['label']}", num(row["mean"]) + units,
                           f"95%: {num(row['lower95'])} to {num(row['upper95'])}{units}"))
     rec = d.recommended

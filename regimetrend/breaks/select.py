@@ -36,11 +36,12 @@ import math
 import numpy as np
 
 from ..errors import InputError, about
+from ..words import LEVEL
 
 CRITERIA = ("bic", "lwz", "sequential")
 DEFAULT_CRITERION = "sequential"
 LWZ_C0, LWZ_D0 = 0.299, 0.1
-SEQUENTIAL_LEVEL = 0.05
+SEQUENTIAL_LEVEL = LEVEL  # the one test level (words.LEVEL)
 
 
 def check_criterion(name: str) -> str:

@@ -20,62 +20,39 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import InputError
-from ..settings import Settings
+from ..settings import RULES, Settings
 from .inputs import ID_SEPARATOR, _id_text
 
-CHOICES = {
-    "shape": ("linear", "exponential", "quadratic"),
-    "seasonality": ("auto", "none", "dummies", "adjust"),
-    "kind": ("auto", "level", "slope", "both"),
-    "criterion": ("sequential", "bic", "lwz"),
-    "serial_correlation": ("allow", "ignore"),
-}
-WHOLE = {"season_length": 1, "max_breaks": 0, "horizon": 1, "first_origin": 1, "step": 1}
-SWITCHES = ("seasonal_by_regime", "reuse_breaks")
-SETTING_NAMES = (*CHOICES, *WHOLE, *SWITCHES, "trim", "events")
+SETTING_NAMES = tuple(RULES)  # every setting; values are checked by ``settings.RULES``
 _TRUE = {"true", "yes", "1", "y"}
 _FALSE = {"false", "no", "0", "n"}
 
 
 def parse_setting(name: str, value, where: str):
-    """The typed value of one override cell; ``where`` names the row and column for errors."""
-    text = value if isinstance(value, str) else ("" if value is None else value)
-    if isinstance(text, str):
-        text = text.strip()
-    if name in CHOICES:
-        if str(text).lower() not in CHOICES[name]:
-            raise InputError(f"{where}: {text!r} is not one of {', '.join(CHOICES[name])}")
-        return str(text).lower()
-    if name in WHOLE:
-        try:
-            number = float(text)
-        except (TypeError, ValueError):
-            number = float("nan")
-        if not (math.isfinite(number) and number.is_integer() and number >= WHOLE[name]):
-            raise InputError(f"{where}: expected a whole number of at least {WHOLE[name]}, "
-                             f"got {text!r}")
-        return int(number)
-    if name in SWITCHES:
-        if isinstance(text, bool):
-            return text
+    """The typed value of one override cell, checked by the settings' table
+    (``settings.RULES``, the same rules as the command line and Python); ``where`` names the
+    row and column for errors. Cells are text: yes/no for switches, dates separated by ``;``."""
+    if name not in RULES:
+        raise InputError(f"{where}: unknown setting {name!r}; settings are "
+                         f"{', '.join(SETTING_NAMES)}")
+    rule = RULES[name]
+    text = value.strip() if isinstance(value, str) else value
+    if rule.form == "flag" and not isinstance(text, bool):
         word = str(text).lower()
         if word not in _TRUE | _FALSE:
             raise InputError(f"{where}: expected yes or no, got {text!r}")
-        return word in _TRUE
-    if name == "trim":
+        text = word in _TRUE
+    elif rule.form == "dates" and isinstance(text, str):
+        text = tuple(e.strip() for e in text.split(";") if e.strip())
+    elif rule.form in ("whole", "trim") and isinstance(text, str):
         try:
-            number = float(text)
-        except (TypeError, ValueError):
-            number = -1.0
-        if not (0 < number < 1 or (number >= 1 and number.is_integer())):
-            raise InputError(f"{where}: expected a share between 0 and 1 or a whole number of "
-                             f"periods, got {text!r}")
-        return number if number < 1 else int(number)
-    if name == "events":
-        items = text if isinstance(text, list) else str(text).split(";")
-        return tuple(str(e).strip() for e in items if str(e).strip())
-    raise InputError(f"{where}: unknown setting {name!r}; settings are "
-                     f"{', '.join(SETTING_NAMES)}")
+            text = float(text)
+        except ValueError:
+            pass  # the rule refuses text, naming what it expects
+    try:
+        return rule.check(name, text)
+    except InputError as exc:  # the rule's reason, after the row and column
+        raise InputError(f"{where}: {str(exc).split(': ', 1)[-1]}") from None
 
 
 def with_changes(base: Settings, changes: dict) -> Settings:

@@ -11,8 +11,10 @@ import pytest
 
 from regimetrend.analysis import analyze
 from regimetrend.evaluate.rolling import default_horizon, plan_origins
+from regimetrend.numformat import percent
 from regimetrend.series import Frequency, Series
-from regimetrend.verdict import (p_text, pct_text, significance, stability_periods)
+from regimetrend.verdict import stability_periods
+from regimetrend.words import p_phrase, significance
 
 from .verdict_checks import check_verdict
 
@@ -142,8 +144,8 @@ def test_significance_words_come_from_the_p_value():
     assert significance(0.049) == "significant at the 5% level"
     assert significance(0.05) == "not significant at the 5% level"
     assert significance(None) == "not tested"
-    assert p_text(0.0004) == "p < 0.001" and p_text(0.0123) == "p = 0.012"
-    assert pct_text(-0.04) == "0.0%" and pct_text(-0.06) == "-0.1%"
+    assert p_phrase(0.0004) == "p < 0.001" and p_phrase(0.0123) == "p = 0.012"
+    assert percent(-0.0004) == "0%" and percent(-0.06) == "-0.060%"  # never "-0.0%"
 
 
 def test_stability_drops_one_period_up_to_a_season():

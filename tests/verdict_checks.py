@@ -5,7 +5,8 @@ from __future__ import annotations
 
 import re
 
-from regimetrend.verdict import CAUSES, num_text, pct_text
+from regimetrend.numformat import number, percent
+from regimetrend.verdict import CAUSES
 
 VERDICT_KEYS = {"model", "breaks", "keep_history_from", "growth_now", "forecast_model",
                 "diagnosis", "stability", "sentences"}
@@ -58,9 +59,9 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
     g = v.growth_now
     growth = next(s for s in d["sentences"] if s.startswith("Growth now ("))
     if g.annualised_pct is not None:
-        assert f"{pct_text(g.annualised_pct)} a year" in growth
+        assert f"{percent(g.annualised_pct)} a year" in growth
     if g.per_year_units is not None:
-        assert f"{num_text(g.per_year_units)} units a year" in growth
+        assert f"{number(g.per_year_units)} units a year" in growth
     if g.shape == "linear" and g.per_year_units is not None and g.annualised_pct is not None:
         assert growth.index("units a year") < growth.index("% a year")  # units first
     if g.shared:

@@ -149,9 +149,10 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
                     growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
                     cusum=cusum,
-                    cautions=cautions.for_analysis(series, run.breaks if verdict.breaks
-                                                   else None,
-                                                   tuple(run.evaluation.cautions) + extra),
+                    cautions=cautions.for_analysis(
+                        series, run.breaks if verdict.breaks else None,
+                        tuple(run.evaluation.cautions) + extra,
+                        unused=() if verdict.breaks else (run.breaks, runs[0].breaks)),
                     global_trend=global_fit.trend(), verdict=verdict, searches=searches,
                     evaluations={r.shape: r.evaluation for r in runs})
 

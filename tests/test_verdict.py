@@ -154,3 +154,42 @@ def test_stability_drops_one_period_up_to_a_season():
     starts = pd.date_range("2000-01-01", periods=30, freq="MS").values.astype("datetime64[D]")
     m = Series("m", starts, np.ones(30), Frequency("month"))
     assert stability_periods(m) == (1, 2, 3, 6, 12)
+
+
+# ------------------------------------------------------------------------------- given dates
+
+
+def test_given_break_dates_are_said_to_be_given_not_searched():
+    """A jump at a date the analyst knows (planted at position 50 = 2002Q3): the verdict names
+    the date as given, cites the F test of the given dates, and no interval or search."""
+    values = simulated()["jump"]
+    s = quarterly("jump", values)
+    a = analyze(s, seasonality="none", breaks=[s.iso(50)])
+    check_verdict(a)
+    v = a.verdict
+    d = a.to_dict()["verdict"]
+    text = " ".join(v.sentences)
+    assert all(b["ci95"] is None for b in d["breaks"])
+    assert "sup-F" not in text and "re-detected" not in text
+    assert "F test of the analyst's break dates" in text and "given by the analyst" in text
+    for b in v.found_breaks:
+        assert f"{b.label} (95% interval" not in text
+    if v.breaks:
+        assert v.breaks[0].label == s.label(50) and v.breaks[0].given
+        assert "The verdict is stable" not in text or "analyst's break dates" in text
+
+
+def test_a_break_near_the_end_keeps_its_caution_when_the_model_uses_no_break():
+    """A late jump (8 quarters before the end) that the chosen break-free model does not use
+    still gets the near-end caution, naming the break the search found."""
+    rng = np.random.default_rng(7)
+    t = np.arange(N)
+    values = 100 + 0.5 * t + rng.normal(0, 1.0, N) + 12 * (t >= N - 8)
+    a = analyze(quarterly("late jump", values), seasonality="none")
+    check_verdict(a)
+    assert a.verdict.breaks == ()  # this draw: a window average wins, using no break
+    late = max(b.position for s in a.searches.values() for b in s.breaks)
+    assert late >= N - 10
+    label = a.series.label(late)
+    assert any(f"A break at {label}" in c and "the chosen model does not use it" in c
+               for c in a.cautions)

@@ -40,8 +40,11 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
         assert analysis.series.iso(analysis.forecast.fitted_from) == d["keep_history_from"]
     if model["strategy"] == "separate" and d["keep_history_from"] is not None:
         assert d["keep_history_from"] in [b["date"] for b in d["breaks"]]
-    for b in d["breaks"]:
-        assert b["ci95"][0] <= b["date"] <= b["ci95"][1]
+    for b, field in zip(v.breaks, d["breaks"]):
+        if b.given:  # a date the analyst gave has no date interval
+            assert field["ci95"] is None
+        else:
+            assert field["ci95"][0] <= field["date"] <= field["ci95"][1]
     # sentences agree with the fields
     text = " ".join(d["sentences"])
     assert tuple(d["sentences"]) == v.sentences
@@ -50,6 +53,10 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
     assert "-0.0%" not in text and " -0 " not in text
     for b in v.breaks:
         assert b.label in text
+    if v.evidence.breaks_given:  # dates given by the analyst: no search is described
+        assert "sup-F" not in text and "re-detected" not in text and "break search" not in text
+        assert not any(f"{b.label} (95% interval" in text for b in v.found_breaks)
+        assert "given by the analyst" in text
     keep = v.history.keep_from_label
     history = next(s for s in d["sentences"] if s.startswith("Keep "))
     if keep:

@@ -73,5 +73,5 @@ def build(series, runs: list[Run], run_index: int, candidate, basis: str, growth
                 len(run.breaks.positions), hist, gnow, st.last_shape or st.shape, st.name,
                 forecast_sentence(forecast, model, hist.keep_from_label
                                   if model.strategy == "truncated" else None),
-                diag, stability, note, (), RULE)
+                diag, stability, note, (), RULE, found)
     return with_sentences(v)

@@ -14,7 +14,8 @@ RULE (``RULE`` below, shown with every verdict)
    trend of the evaluation's shape is kept unless another candidate has a lower rolling-origin
    RMSE and either (a) the Diebold-Mariano test finds it more accurate at the 5% level, or
    (b) it is break-aware, at least 10% better and the sup-F test finds a break at the 5%
-   level, or (c) the series wanders (``WANDERING_LAG1``) and it is at least 10% better (with a
+   level (for break dates given by the analyst, the F test of those dates), or (c) the
+   series wanders (the break search's wandering flag) and it is at least 10% better (with a
    wandering series break tests cannot separate a break from the wandering, so accuracy alone
    decides). Among the candidates that qualify the lowest RMSE wins.
 3. Between the two evaluations' winners (``auto`` only), the one using fewer breaks (global
@@ -30,6 +31,7 @@ from typing import Any
 
 import numpy as np
 
+from ..evaluate import breakinfo
 from ..evaluate.accuracy_tests import compare_errors
 from ..evaluate.recommend import ALPHA, LARGE_GAIN, recommend
 from .fields import BREAK_FREE, Evidence, Model, Run
@@ -37,7 +39,8 @@ from .fields import BREAK_FREE, Evidence, Model, Run
 RULE = ("One model is chosen per series. Each rolling-origin evaluation keeps the global trend "
         "of its shape unless another candidate has a lower RMSE and either the Diebold-Mariano "
         f"test finds it more accurate at the {ALPHA:.0%} level, or it is regime-aware, at least "
-        f"{LARGE_GAIN:.0%} better and the sup-F test finds a break at the {ALPHA:.0%} level, or "
+        f"{LARGE_GAIN:.0%} better and the sup-F test (for break dates given by the analyst, the F "
+        f"test of those dates) finds a break at the {ALPHA:.0%} level, or "
         f"the series wanders and it is at least {LARGE_GAIN:.0%} better. Under the automatic "
         "shape, the linear evaluation and (when another shape needs fewer breaks) that shape's "
         "evaluation each give a winner; the one using fewer breaks is kept unless the other is "
@@ -61,9 +64,8 @@ def search_shapes(searches: dict, explicit: str | None) -> tuple[str, ...]:
 
 
 def supf(breakset):
-    """The sup-F p-value of a break search (``evaluate.breakinfo``)."""
-    from ..evaluate import breakinfo
-
+    """The sup-F p-value of a break search, or for dates the analyst gave the F test of those
+    dates (``evaluate.breakinfo``)."""
     return breakinfo.supf_pvalue(breakset)
 
 
@@ -181,4 +183,6 @@ def evidence_of(runs: list[Run], run_index: int, candidate, basis: str) -> Evide
                     gain=1.0 - rmse / ref_rmse if ref_rmse > 0 else None, p_better=p,
                     break_p=supf(own.breaks), basis=basis,
                     coverage95=m.get("coverage95"), coverage80=m.get("coverage80"),
-                    origins=int(ev0.plan.get("count", 0)), runner_up=tuple(others[:2]))
+                    origins=int(ev0.plan.get("count", 0)), runner_up=tuple(others[:2]),
+                    break_test=breakinfo.test_name(own.breaks),
+                    breaks_given=bool(getattr(own.breaks, "given", False)))

@@ -8,10 +8,10 @@ from __future__ import annotations
 
 from ..evaluate.recommend import ALPHA
 from ..numformat import number, percent, statistic
-from .breaks_used import judged_by
+from .breaks_used import break_words, judged_by
 from .choose import supf
 from .fields import BREAK_FREE, CURVE_LAG1, BreakDate, Diagnosis, Evidence, Model, Run
-from .phrases import article, interval_words
+from .phrases import article
 
 
 def _cross(crossing, breaks, reach: int) -> BreakDate | None:
@@ -83,8 +83,8 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         gap = ws - b.position
         when = (f"{gap} periods before these" if gap > 0 else "within these periods")
         return Diagnosis("regime change", (
-            f"{head}; {cross_text}. A change of regime explains it: the break at {b.label} "
-            f"({interval_words(*b.ci95_labels)}), {when}, starts the "
+            f"{head}; {cross_text}. A change of regime explains it: the break at "
+            f"{break_words(b)}, {when}, starts the "
             f"regime the chosen model forecasts from, and one trend over all history is still "
             f"pulled by the earlier regime."), dict(ev, explaining_break=b.label))
     other = _other_shape(runs, ref_shape, model, evidence, start_label, searches)
@@ -104,8 +104,8 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         why = ("it is too recent for the rolling origin to judge" if not judged_by(runs[0], 0)
                or not _judged(runs, b) else "on past periods that did not pay by the rule")
         return Diagnosis("regime change", (
-            f"{head}; {cross_text}, and the break at {b.label} "
-            f"({interval_words(*b.ci95_labels)}) explains it; the chosen model does "
+            f"{head}; {cross_text}, and the break at {break_words(b)} explains it; the "
+            f"chosen model does "
             f"not forecast from it, because {why}."),
             dict(ev, explaining_break=b.label))
     # only evidence within reach of the failure window is cited: a break decades earlier

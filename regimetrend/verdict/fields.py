@@ -58,28 +58,34 @@ class Evidence:
     reference_rmse: float
     gain: float | None
     p_better: float | None  # one-sided Diebold-Mariano: chosen more accurate than reference
-    break_p: float | None  # sup-F of the chosen shape's break search
+    break_p: float | None  # sup-F of the chosen shape's break search (given dates: their F test)
     basis: str  # "accuracy test", "large gain with a significant break", "wandering series
     #            with a large gain", "global kept", and "; fewer breaks kept" / "; evidence"
     coverage95: float | None
     coverage80: float | None
     origins: int
     runner_up: tuple = ()  # ((name, rmse, gain), ...) the best candidates not chosen
+    break_test: str = "sup-F test"  # the name of the test behind ``break_p``
+    breaks_given: bool = False  # the break dates were given by the analyst, not searched for
 
 
 @dataclass(frozen=True)
 class BreakDate:
-    """A break the model uses, as a date and its 95% interval (positions kept for checks)."""
+    """A break the model uses, as a date and its 95% interval; a date the analyst gave has no
+    interval (``ci95`` and ``ci95_labels`` are None; ``ci95_positions`` is the date itself, for
+    the comparisons that read it) and carries its partial F test's p-value instead."""
 
     position: int
     date: str
     label: str
-    ci95: tuple[str, str]
-    ci95_labels: tuple[str, str]
+    ci95: tuple[str, str] | None
+    ci95_labels: tuple[str, str] | None
     ci95_positions: tuple[int, int]
+    given: bool = False  # given by the analyst (``--breaks``), not found by a search
+    p_value: float | None = None  # given dates: the partial F test at the date, F law
 
     def to_dict(self) -> dict:
-        return {"date": self.date, "ci95": list(self.ci95)}
+        return {"date": self.date, "ci95": list(self.ci95) if self.ci95 else None}
 
 
 @dataclass(frozen=True)
@@ -165,6 +171,8 @@ class Verdict:
     origin_note: str | None
     sentences: tuple[str, ...]
     rule: str  # the written rule that chose the model (``choose.RULE``)
+    found_breaks: tuple[BreakDate, ...] = ()  # every break of the chosen shape's search
+    #                                          (or every date the analyst gave), used or not
 
     def to_dict(self) -> dict:
         return {"model": self.model.to_dict(),

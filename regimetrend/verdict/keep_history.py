@@ -61,8 +61,11 @@ def history_advice(series, model: Model, forecast, evaluation, breaks, evidence)
         leak_text = ""
         if leak and leak.get("gain_over_all_history") is not None:
             g = leak["gain_over_all_history"]
-            leak_text = (f"; the leak-free trend refitted from the break re-detected at each "
-                         f"origin, which a forecaster could have used, was "
+            source = ("the latest of the analyst's break dates known there"
+                      if evidence is not None and evidence.breaks_given
+                      else "the break re-detected there")
+            leak_text = (f"; the leak-free trend refitted at each origin from {source}, "
+                         f"which a forecaster could have used, was "
                          f"{percent(abs(100 * g))} {'better' if g >= 0 else 'worse'} "
                          f"than all history")
         declined = (f"that start was picked with hindsight as the best of {n_starts} fixed "

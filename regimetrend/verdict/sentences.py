@@ -10,9 +10,9 @@ from dataclasses import dataclass, replace
 
 from ..numformat import number, percent
 from ..words import p_phrase, significance
-from .breaks_used import judged_by
+from .breaks_used import break_words, judged_by
 from .fields import COVERAGE_FLOOR, Evidence, GrowthNow, History, Model, Run, Verdict
-from .phrases import interval_words, strategy_words
+from .phrases import strategy_words
 
 
 def _model_sentence(series, model: Model, ev: Evidence, start_label) -> str:
@@ -31,20 +31,42 @@ def _model_sentence(series, model: Model, ev: Evidence, start_label) -> str:
             f"origins; {test}).")
 
 
-def _breaks_sentence(series, model: Model, breaks, search_breaks: int, break_p) -> str:
+def _and(parts) -> str:
+    """'a', 'a and b', 'a, b and c'."""
+    parts = list(parts)
+    if len(parts) < 2:
+        return "".join(parts)
+    return ", ".join(parts[:-1]) + " and " + parts[-1]
+
+
+def _breaks_sentence(model: Model, breaks, search_breaks: int, ev: Evidence,
+                     found=()) -> str:
+    """The breaks the model uses with their test, or why none is used. Dates the analyst gave
+    are said to be given (no search, no date interval; the F test of those dates)."""
+    p = ev.break_p
+    test = f"{ev.break_test} {p_phrase(p)}, {significance(p)}"
+    if breaks and ev.breaks_given:
+        parts = [f"{b.label} (partial F {p_phrase(b.p_value)})" if len(breaks) > 1 else b.label
+                 for b in breaks]
+        lead = ("The regime changed in " if len(parts) == 1 else "The regimes changed in ")
+        what = ("a date given by the analyst" if len(parts) == 1
+                else "dates given by the analyst")
+        return (lead + _and(parts) + f", {what} and not searched for ({test}).")
     if breaks:
-        parts = [f"{b.label} ({interval_words(*b.ci95_labels)})" for b in breaks]
-        test = f"sup-F {p_phrase(break_p)}, {significance(break_p)}"
-        lead = "The regime changed in " if len(parts) == 1 else "The regimes changed in "
-        return lead + ", ".join(parts[:-1]) + (" and " if len(parts) > 1 else "") + parts[-1] + \
-            f" ({test})."
+        lead = "The regime changed in " if len(breaks) == 1 else "The regimes changed in "
+        return lead + _and([break_words(b) for b in breaks]) + f" ({test})."
+    many = search_breaks > 1
+    if ev.breaks_given:
+        return (f"The break date{'s' if many else ''} {_and(found)} {'were' if many else 'was'} "
+                f"given by the analyst, not searched for ({test}), but the chosen model does not "
+                f"use {'them' if many else 'it'}.")
     if search_breaks:
+        at = f" ({_and(found)})" if found else ""
         return (f"The break search under the {model.search_shape} shape found {search_breaks} "
-                f"break{'s' if search_breaks > 1 else ''} (sup-F {p_phrase(break_p)}, "
-                f"{significance(break_p)}), but the chosen model does not use "
-                f"{'them' if search_breaks > 1 else 'it'}.")
+                f"break{'s' if many else ''}{at}; {test}; but the chosen model does not use "
+                f"{'them' if many else 'it'}.")
     return (f"No break is used: the break search under the {model.search_shape} shape found "
-            f"none (sup-F {p_phrase(break_p)}).")
+            f"none ({ev.break_test} {p_phrase(p)}).")
 
 
 def _growth_sentence(g: GrowthNow | None, chosen: str = "") -> str | None:
@@ -132,8 +154,8 @@ def history_sentence(v: Verdict) -> str:
 def sentences(v: Verdict) -> tuple[str, ...]:
     start_label = v.history.keep_from_label if v.model.strategy == "truncated" else None
     out = [_model_sentence_for(v, start_label),
-           _breaks_sentence(_Named(v.series_name), v.model, v.breaks, v.search_breaks,
-                            v.evidence.break_p),
+           _breaks_sentence(v.model, v.breaks, v.search_breaks, v.evidence,
+                            [b.label for b in v.found_breaks]),
            _growth_sentence(v.growth_now, v.model.strategy), _history_sentence(v.history),
            v.diagnosis.sentence, v.forecast_text, _coverage_sentence(v.evidence),
            v.origin_note, v.stability.sentence, _alternatives_sentence(v.evidence)]

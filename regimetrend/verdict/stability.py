@@ -49,9 +49,14 @@ def stability_of(series, runs: list[Run], explicit, wandering, chosen: tuple, pr
     ks = [r["without_last"] for r in reruns]
     dropped = _list(ks) + " " + _unit(series, 2)
     if changed is None:
+        if not chosen[2]:
+            same = "the same model, using no break, is chosen"
+        elif any(b.given for b in chosen[2]):
+            same = "the same model is chosen, with the analyst's break dates"
+        else:
+            same = "the same model and the same break dates (within their 95% intervals) are chosen"
         return Stability("stable", ks[-1], None,
-                         f"The verdict is stable: without the last {dropped} the same model "
-                         f"and the same break dates (within their 95% intervals) are chosen.",
+                         f"The verdict is stable: without the last {dropped} {same}.",
                          tuple(reruns))
     r = next(r for r in reruns if r["without_last"] == changed)
     before = series.label(series.n - 1 - changed)

@@ -102,6 +102,7 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
     from . import verdict as verdicts
     from .breaks import cusum as cusum_paths
     from .breaks.detect import find_breaks
+    from .breaks.wandering import wanders_under_every_shape
     from .design import SHAPES
     from .evaluate import evaluate
     from .growth import growth_from_fits, growth_table
@@ -126,7 +127,11 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
                                                   progress=progress, place_after=place_after))
             for s in run_shapes]
     lag1 = runs[0].evaluation.diagnosis.data.get("residual_lag1")
-    wandering = bool(runs[0].breaks.is_wandering)  # KPSS and AR(1) of the break model's residuals
+    # KPSS and AR(1) of the break models' residuals (``breaks/wandering.py``); under the
+    # automatic shape read across shapes (a shape whose model leaves little persistence explains
+    # it as a curve); one shape alone cannot tell a curve from a random walk by the second reading
+    wandering = (bool(runs[0].breaks.is_wandering) if explicit else
+                 wanders_under_every_shape([s.wandering for s in searches.values()]))
     index, chosen, basis = verdicts.choose(runs, explicit, wandering)
     run = runs[index]
     spec = TrendSpec(chosen.strategy.shape, base.seasonality, base.season_length)

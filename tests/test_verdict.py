@@ -62,13 +62,29 @@ def test_exponential_growth_without_a_break_is_the_wrong_shape_for_a_line(sims):
 
 
 def test_a_kink_is_a_regime_change_dated_at_the_kink(sims):
+    """A kink is a change of growth: the cause is a regime change dated at the kink. When a
+    break-free curve is chosen (it forecast better on past periods), the diagnosis says that
+    the model follows the change as a curve and that the shape is the open question."""
     a = sims["kink"]
     v = a.verdict
     assert v.diagnosis.cause == "regime change"
     found = a.searches["linear"]
     assert any(b.ci95[0] - 2 <= 50 <= b.ci95[1] + 2 for b in found.breaks)
     assert found.breaks[-1].label in v.diagnosis.sentence
+    assert "growth changed at" in v.diagnosis.sentence
     assert v.model.strategy != "global"  # one trend over all history is not kept
+    if v.model.strategy in ("global", "window-average"):  # break-free: the shape question
+        assert "does not date the break" in v.diagnosis.sentence
+        assert "keeps bending (a curve)" in v.diagnosis.sentence
+    # Planted truth: growth after the kink is 2.5 a quarter, 10 a year. The chosen model in
+    # this draw is an average of quadratic trends whose growth is read from one quadratic over
+    # all history (its end slope, 10.8 a year): the truth must lie in its 95% interval; a
+    # model forecasting from the kink's regime must be within 5% of it.
+    g = v.growth_now
+    lo, hi = g.per_year_units_ci95
+    assert lo <= 10.0 <= hi
+    if v.model.strategy in ("separate", "truncated", "continuous") and g.shape == "linear":
+        assert g.per_year_units == pytest.approx(10.0, rel=0.05)
 
 
 def test_a_jump_is_found_at_its_date(sims):
@@ -78,13 +94,21 @@ def test_a_jump_is_found_at_its_date(sims):
     assert a.verdict.diagnosis.cause in ("noise", "regime change")
 
 
-def test_a_random_walk_with_drift_is_not_forecast_with_one_long_trend(sims):
-    # On 80 points trend breaks cannot be told apart from wandering: in this draw the
-    # autocorrelation-calibrated break test still finds a break (p < 0.05), so the cause may
-    # be named a regime change; either way the verdict must not keep one trend over all history
-    v = sims["random walk"].verdict
-    assert v.diagnosis.cause in ("wandering", "regime change")
+def test_a_random_walk_with_drift_is_called_wandering(sims):
+    # On 80 points the break found in this draw absorbs part of the walk (its residuals pass
+    # the KPSS test); one trend over all history does not return to the trend and the breaks
+    # leave the residuals persistent under every shape: the second wandering reading
+    a = sims["random walk"]
+    v = a.verdict
+    assert v.diagnosis.cause == "wandering"
+    assert "like a random walk" in v.diagnosis.sentence
     assert v.model.strategy != "global"
+    assert not any(a.searches[s].wandering.ar1 < 0.6 for s in a.searches)
+
+
+def test_planted_breaks_and_curves_are_not_called_wandering(sims):
+    for name in ("exponential", "kink", "jump", "spike"):
+        assert sims[name].verdict.diagnosis.cause != "wandering", name
 
 
 def test_a_one_off_spike_is_called_an_outlier(sims):

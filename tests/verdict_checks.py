@@ -73,6 +73,14 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
         assert growth.index("units a year") < growth.index("% a year")  # units first
     if g.shared:
         assert "growth changed" not in text.lower()
+    # growth words follow the chosen model: a separate fit has each regime's own growth, and
+    # "growth changed" is said only of a model that lets growth change at its breaks
+    if model["strategy"] == "separate":
+        assert analysis.growth.kind == "both" and not g.shared
+    if "growth changed" in text.lower():
+        assert model["strategy"] in ("separate", "continuous") and analysis.growth.kind != "level"
+    if g.shared:
+        assert analysis.growth.kind == "level"
     if d["stability"]["status"] == "stable":
         assert d["stability"]["sentence"].startswith("The verdict is stable")
     elif d["stability"]["status"] == "changed":

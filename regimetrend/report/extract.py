@@ -7,7 +7,7 @@ that need it, and the page says so, instead of failing.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, is_dataclass, replace
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -92,6 +92,11 @@ def gather(analysis: Analysis, source_name: str | None = None,
     series = getattr(analysis, "series", None)
     if not isinstance(series, Series):
         raise TypeError("write_report needs an Analysis (with its series)")
+    verdict = getattr(analysis, "verdict", None)
+    if units and verdict is not None:  # the verdict's amounts in the analyst's units
+        verdict = verdict.in_units(units)
+        if is_dataclass(analysis):
+            analysis = replace(analysis, verdict=verdict)
     breakset, evaluation, growth = analysis.breaks, analysis.evaluation, analysis.growth
     cusum = analysis.cusum if analysis.cusum and "path" in analysis.cusum else None
     return ReportData(
@@ -113,4 +118,4 @@ def gather(analysis: Analysis, source_name: str | None = None,
         global_trend=_fitted(analysis.global_trend, series.n),
         break_test=breakinfo.test_name(breakset),
         breaks_given=bool(breakset is not None and breakset.given),
-        verdict=getattr(analysis, "verdict", None))
+        verdict=verdict)

@@ -26,6 +26,7 @@ from .fields import (
     BreakDate,
     Diagnosis,
     Evidence,
+    ForecastNow,
     GrowthNow,
     History,
     Model,
@@ -38,7 +39,6 @@ from .keep_history import HISTORY_RULE, history_advice
 from .phrases import interval_words, strategy_words
 from .sentences import (
     coverage_caution,
-    forecast_sentence,
     history_sentence,
     origin_note,
     sentences,
@@ -49,7 +49,7 @@ from .stability import stability_of, stability_periods
 __all__ = ["BREAK_FREE", "CAUSES", "COVERAGE_FLOOR", "HISTORY_RULE", "RULE", "SWEEP_NOTE",
            "BreakDate", "Diagnosis", "Evidence", "GrowthNow", "History", "Model", "Run",
            "Stability", "Verdict", "break_dates", "build", "choose", "coverage_caution",
-           "diagnose", "eligible", "evidence_of", "forecast_sentence", "growth_now",
+           "diagnose", "eligible", "evidence_of", "ForecastNow", "growth_now",
            "history_advice", "history_sentence", "interval_words", "judged_by", "model_of",
            "origin_note", "search_shapes", "sentences", "stability_of", "stability_periods",
            "strategy_words"]
@@ -72,7 +72,5 @@ def build(series, runs: list[Run], run_index: int, candidate, basis: str, growth
     note = origin_note(series, run, brks)
     v = Verdict(series.name, series.frequency.name, model, evidence, brks,
                 len(run.breaks.positions), hist, gnow, st.last_shape or st.shape, st.name,
-                forecast_sentence(forecast, model, hist.keep_from_label
-                                  if model.strategy == "truncated" else None),
-                diag, stability, note, (), RULE, found)
+                ForecastNow.of(forecast), diag, stability, note, (), RULE, found)
     return with_sentences(v)

@@ -113,12 +113,11 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         shapes = _shapes_finding(b, searches or {runs[0].shape: runs[0].breaks})
         change = _change_words(_kind_of(searches, shape, runs))
         every = len(shapes) > 1 and len(shapes) == len(searches or {})
-        where = (f"found by the break search under every shape tried ({_and(shapes)}), so no "
-                 f"curve without a break accounts for it" if every else
-                 f"found by the break search under the {_and(shapes)} "
-                 f"shape{'s' if len(shapes) > 1 else ''}")
-        lead = (f"{head}; {cross_text}. A change of regime explains it: {change} at "
-                f"{break_words(b)}, {where}")
+        where = (f"under every shape tried ({_and(shapes)}), so no curve without a break "
+                 f"accounts for it" if every else
+                 f"under the {_and(shapes)} shape{'s' if len(shapes) > 1 else ''}")
+        lead = (f"{head}; {cross_text}. A change of regime explains it: the break search "
+                f"dates {change} at {break_words(b)}, {where}")
         ev = dict(ev, explaining_break=b.label)
         if not judged_by(runs[0], 0) or not _judged(runs, b):
             return Diagnosis("regime change", (
@@ -179,8 +178,10 @@ def _kind_of(searches, shape: str, runs: list[Run]) -> str:
 
 
 def _change_words(kind: str) -> str:
-    return {"level": "the level shifted", "slope": "growth changed"}.get(
-        kind, "the level and growth changed")
+    """What the break search dates (a finding about the data, worded without saying that the
+    chosen model's growth changed: a model without breaks has one growth path)."""
+    return {"level": "a shift of level", "slope": "a change of growth"}.get(
+        kind, "a change of level and growth")
 
 
 def _best_break_model(runs: list[Run]):

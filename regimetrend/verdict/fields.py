@@ -7,7 +7,7 @@ Every sentence of the verdict is generated from these fields (``sentences.py``),
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
@@ -124,6 +124,27 @@ class GrowthNow:
 
 
 @dataclass(frozen=True)
+class ForecastNow:
+    """The chosen model's forecast as the verdict states it: the first and last periods' means
+    and the last period's 95% range, in the series' units."""
+
+    first_label: str
+    first_mean: float
+    last_label: str
+    last_mean: float
+    last_lower95: float
+    last_upper95: float
+    periods: int
+
+    @classmethod
+    def of(cls, forecast) -> ForecastNow:
+        rows = forecast.rows()
+        first, last = rows[0], rows[-1]
+        return cls(first["label"], first["mean"], last["label"], last["mean"],
+                   last["lower95"], last["upper95"], len(rows))
+
+
+@dataclass(frozen=True)
 class Diagnosis:
     """The cause (one of ``CAUSES``) of the reference trend's late failure, in one sentence."""
 
@@ -165,7 +186,7 @@ class Verdict:
     growth_now: GrowthNow | None
     forecast_shape: str
     forecast_strategy: str
-    forecast_text: str  # the forecast sentence's figures, already worded
+    forecast_now: ForecastNow
     diagnosis: Diagnosis
     stability: Stability
     origin_note: str | None
@@ -173,6 +194,14 @@ class Verdict:
     rule: str  # the written rule that chose the model (``choose.RULE``)
     found_breaks: tuple[BreakDate, ...] = ()  # every break of the chosen shape's search
     #                                          (or every date the analyst gave), used or not
+    units: str = ""  # the analyst's units of the values (``--units``); "" = not given
+
+    def in_units(self, units: str | None) -> Verdict:
+        """The verdict with every amount in its sentences followed by ``units`` (the
+        analyst's ``--units``); the fields' numbers are unchanged."""
+        from .sentences import with_sentences
+
+        return with_sentences(replace(self, units=(units or "").strip()))
 
     def to_dict(self) -> dict:
         return {"model": self.model.to_dict(),

@@ -28,10 +28,10 @@ def history_advice(series, model: Model, forecast, evaluation, breaks, evidence)
         why = ("the chosen trend is fitted only on the history from there"
                if start else "the chosen trend found no usable break to start from")
     elif model.strategy == "separate":
-        from ..regimes import TERMS, usable_breaks
+        from ..regimes import joint_knots
 
-        kept = usable_breaks([b.position for b in breaks], series.n, TERMS[model.shape] + 1,
-                             TERMS[model.shape] + 2)
+        kept = joint_knots([b.position for b in breaks], series.n, model.shape,
+                           model.seasonality)
         start = kept[-1] if kept else None
         why = ("the chosen model forecasts from the last regime's trend, which starts there"
                if start else "the chosen model has no usable break, so it is one trend")

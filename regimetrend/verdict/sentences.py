@@ -11,7 +11,16 @@ from dataclasses import dataclass, replace
 from ..numformat import number, percent
 from ..words import p_phrase, significance
 from .breaks_used import break_words, judged_by
-from .fields import COVERAGE_FLOOR, Evidence, GrowthNow, History, Model, Run, Verdict
+from .fields import (
+    COVERAGE_FLOOR,
+    Evidence,
+    ForecastNow,
+    GrowthNow,
+    History,
+    Model,
+    Run,
+    Verdict,
+)
 from .phrases import strategy_words
 
 
@@ -69,7 +78,7 @@ def _breaks_sentence(model: Model, breaks, search_breaks: int, ev: Evidence,
             f"none ({ev.break_test} {p_phrase(p)}).")
 
 
-def _growth_sentence(g: GrowthNow | None, chosen: str = "") -> str | None:
+def _growth_sentence(g: GrowthNow | None, chosen: str = "", units: str = "") -> str | None:
     if g is None:
         return None
     lo, hi = g.ci95
@@ -78,19 +87,19 @@ def _growth_sentence(g: GrowthNow | None, chosen: str = "") -> str | None:
     model = strategy_words(g.strategy, g.shape)
     if g.since_label:
         model += f", since {g.since_label}"
-    units = ""
+    amount = ""
     if g.per_year_units is not None:
         ulo, uhi = g.per_year_units_ci95
         uci = (f" (95% interval {number(ulo)} to {number(uhi)})"
                if ulo is not None and uhi is not None else "")
-        units = f"{number(g.per_year_units)} units a year{uci}"
+        amount = f"{number(g.per_year_units)} {units or 'units'} a year{uci}"
     pct = (f"{percent(g.annualised_pct)} a year{ci}, {g.base}"
            if g.annualised_pct is not None else None)
     if g.shape == "linear":
-        body = units + (f"; as {g.base}, {percent(g.annualised_pct)} a year{ci}"
+        body = amount + (f"; as {g.base}, {percent(g.annualised_pct)} a year{ci}"
                         if g.annualised_pct is not None else "")
     else:
-        body = (pct or "") + (f"; in units, {units}" if units else "")
+        body = (pct or "") + (f"; as an amount, {amount}" if amount else "")
     text = f"Growth now ({model}): {body}."
     if chosen == "window-average":
         text += (" The chosen average of trends has no single growth rate of its own, so growth "
@@ -156,8 +165,11 @@ def sentences(v: Verdict) -> tuple[str, ...]:
     out = [_model_sentence_for(v, start_label),
            _breaks_sentence(v.model, v.breaks, v.search_breaks, v.evidence,
                             [b.label for b in v.found_breaks]),
-           _growth_sentence(v.growth_now, v.model.strategy), _history_sentence(v.history),
-           v.diagnosis.sentence, v.forecast_text, _coverage_sentence(v.evidence),
+           _growth_sentence(v.growth_now, v.model.strategy, v.units),
+           _history_sentence(v.history),
+           v.diagnosis.sentence,
+           _forecast_sentence(v.forecast_now, v.model, start_label, v.units),
+           _coverage_sentence(v.evidence),
            v.origin_note, v.stability.sentence, _alternatives_sentence(v.evidence)]
     return tuple(s for s in out if s)
 
@@ -171,15 +183,19 @@ def _model_sentence_for(v: Verdict, start_label) -> str:
     return _model_sentence(_Named(v.series_name), v.model, v.evidence, start_label)
 
 
-def forecast_sentence(forecast, model: Model, start_label: str | None = None) -> str:
-    rows = forecast.rows()
+def _forecast_sentence(f: ForecastNow, model: Model, start_label: str | None,
+                       units: str) -> str:
     words = strategy_words(model.strategy, model.shape, start_label)
-    first, last = rows[0], rows[-1]
-    text = f"Forecast ({words}): {number(first['mean'])} for {first['label']}"
-    if len(rows) > 1:
-        text += f" and {number(last['mean'])} for {last['label']}"
-    return (text + f", with a 95% range of {number(last['lower95'])} to "
-            f"{number(last['upper95'])} for {last['label']}.")
+    text = f"Forecast ({words}): {_amount(f.first_mean, units)} for {f.first_label}"
+    if f.periods > 1:
+        text += f" and {_amount(f.last_mean, units)} for {f.last_label}"
+    return (text + f", with a 95% range of {number(f.last_lower95)} to "
+            f"{_amount(f.last_upper95, units)} for {f.last_label}.")
+
+
+def _amount(x, units: str) -> str:
+    """A number followed by the analyst's units, when given."""
+    return f"{number(x)} {units}" if units else number(x)
 
 
 def origin_note(series, run: Run, breaks) -> str | None:

@@ -131,3 +131,9 @@ def test_separate_fits_under_level_breaks_show_each_regimes_own_growth():
     assert v.growth_now.per_year_units == pytest.approx(slope, rel=1e-6)
     assert not v.growth_now.shared and a.growth.kind == "both"
     assert "share this one growth rate" not in " ".join(v.sentences)
+    # the report's headline card of a break the analyst gave says so (no interval)
+    from regimetrend.report.content import build
+    from regimetrend.report.extract import gather
+
+    facts = {f.key: f for f in build(gather(a, units="cubic metres (1e8)")).facts}
+    assert facts["latest change of regime"].sub == "given by the analyst"

@@ -308,6 +308,7 @@ def _verdict_facts(v, units: str = "") -> list[Fact]:
     if v.breaks:
         b = v.breaks[-1]
         facts.append(Fact("latest change of regime", b.label,
+                          "given by the analyst" if b.ci95_labels is None else
                           interval_words(*b.ci95_labels).replace("95% interval ", "95%: ")))
     else:
         facts.append(Fact("change of regime used", "none", f"{v.search_breaks} found by the "

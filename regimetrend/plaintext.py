@@ -215,12 +215,13 @@ def evaluation_text(ev: Evaluation, series: Series | None = None) -> str:
     rows = []
     for c in ev.candidates:
         m, vs = c.metrics, c.vs_global
-        rows.append([c.name, str(c.rank), fmt(m["rmse"]), fmt(m["mae"]),
+        rows.append([c.name, "chosen" if c.name == ev.recommended.name else "", str(c.rank),
+                     fmt(m["rmse"]), fmt(m["mae"]),
                      fmt(m["mape"]) if m["mape"] is not None else "-", fmt(m["mase"]),
                      fmt(m["me"]), _pct(m["coverage80"]), _pct(m["coverage95"]),
                      _pct(c.gain) if c.name != ev.reference else "reference",
                      numformat.pvalue(vs.get("p_value_better"), "-")])
-    lines.append(table(["candidate", "rank", "RMSE", "MAE", "MAPE %", "MASE", "ME",
+    lines.append(table(["candidate", "verdict", "rank by RMSE", "RMSE", "MAE", "MAPE %", "MASE", "ME",
                         "80% cover", "95% cover", "gain vs global", "DM p (better)"], rows))
     if ev.same_as:
         lines.append("not ranked (same forecasts as another candidate): " + "; ".join(

@@ -66,72 +66,126 @@ def zoom_start(n: int, last_break: int | None, horizon: int, season: int) -> int
 
 
 def _regime_bands(d: ReportData, line) -> list:
+    """The chosen model's trend cut at the breaks it uses (NaN where it was not fitted)."""
     s = d.series
-    edges = [0] + [b.position for b in d.breaks] + [s.n]
+    edges = [0] + [b.position for b in d.model_breaks] + [s.n]
     return [charts.Band("regime", s.starts[a:b], line[a:b]) for a, b in pairwise(edges)
-            if b > a]
+            if b > a and np.isfinite(line[a:b]).any()]
+
+
+def _trend_words(d: ReportData, at_average: str) -> tuple[str, str]:
+    """(legend label, caption words) of the solid blue line: the chosen model's fitted trend,
+    or, for a window average (which has no single fit), the trend growth now describes."""
+    shape = (d.growth or {}).get("shape") or "trend"
+    v = d.verdict
+    if v is None:
+        label = f"{shape} trend of each regime" if d.breaks else f"{shape} trend"
+        return label + at_average, label
+    strategy, start = v.model.strategy, v.history.keep_from_label
+    if strategy == "window-average":
+        label = f"one {shape} trend over all history (growth now)"
+        return (label + at_average, f"one {shape} trend over all history, which the growth "
+                "figures describe (the chosen average of trends from several starts has no "
+                "single fitted line)")
+    if strategy == "truncated":
+        label = f"chosen: {shape} trend fitted from {start}" if start else \
+            f"chosen: one {shape} trend"
+    elif strategy == "global":
+        label = f"chosen: one {shape} trend over all history"
+    elif strategy == "continuous":
+        label = f"chosen: {shape} trend joined at the breaks"
+    else:
+        label = (f"chosen: {shape} trend of each regime" if d.model_breaks
+                 else f"chosen: {shape} trend")
+    return label + at_average, label.replace("chosen: ", "the chosen model's fitted line, ")
 
 
 def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
+    """The series with the chosen model: its fitted trend, the breaks it uses and its
+    forecast; the global trend of the reference shape for comparison; the search's breaks that
+    the chosen model does not use, only as such."""
     s = d.series
     seasonal = _seasonal(d)
     trend = d.regime_trend if d.regime_trend is not None else d.regime_fitted
     regime_bands = _regime_bands(d, trend) if trend is not None else []
     gline = d.global_trend if d.global_trend is not None else d.global_fitted
-    # with no break the trend of the one regime is the global trend: drawn once, in blue
+    chosen_is_global = _same(d.global_forecast, d.forecast)
+    # the chosen model is one trend over all history of the reference shape: drawn once, in blue
     global_trend = (charts.Band("global", s.starts, gline)
-                    if gline is not None and (d.breaks or not regime_bands) else None)
+                    if gline is not None and (not chosen_is_global or not regime_bands)
+                    else None)
     seasonal_fit = (charts.Band("seasonal", s.starts, d.regime_fitted)
                     if seasonal and d.regime_fitted is not None and d.regime_trend is not None
                     else None)
     forecast = _band("forecast", d.forecast) if d.forecast is not None else None
     global_forecast = (_band("global", d.global_forecast)
-                       if d.global_forecast is not None and not _same(d.global_forecast,
-                                                                      d.forecast)
-                       else None)
+                       if d.global_forecast is not None and not chosen_is_global else None)
     horizon = d.forecast.horizon if d.forecast is not None else 4
-    first = zoom_start(s.n, d.breaks[-1].position if d.breaks else None, horizon,
-                       s.frequency.season_length)
-    shape = (d.growth or {}).get("shape") or "trend"
-    at_average = " (seasonal terms at their average)" if seasonal else ""
-    at_average = " (seasonal terms at average)" if seasonal else ""
-    labels = {"regime": f"{shape} trend of each regime{at_average}" if d.breaks else
-              f"{shape} trend{at_average}",
-              "global": ("one global trend" if global_trend is not None else
-                         "one global trend's forecast")
+    last = d.model_breaks[-1].position if d.model_breaks else (
+        d.forecast.fitted_from if d.forecast is not None and d.forecast.fitted_from else None)
+    first = zoom_start(s.n, last, horizon, s.frequency.season_length)
+    ref_shape = d.global_forecast.spec.shape if d.global_forecast is not None else "global"
+    at_average = " (seasons averaged)" if seasonal else ""
+    trend_label, trend_caption = _trend_words(d, at_average)
+    search_shape = d.verdict.model.search_shape if d.verdict is not None else ""
+    labels = {"regime": trend_label, "seasonal": "the blue line with its seasonal pattern",
+              "global": (f"one {ref_shape} trend over all history (reference)"
+                         if global_trend is not None else
+                         f"one {ref_shape} trend's forecast (reference)")
               + (", its forecast on the right" if first is not None and global_trend is not None
-                 and global_forecast is not None else "")}
+                 and global_forecast is not None else ""),
+              "breaks": ("break used by the chosen model, 95% interval" if d.verdict is not None
+                         else "break date, 95% interval"),
+              "search": f"break found by the {search_shape} search, not used".replace("  ", " "),
+              "forecast": ("chosen model's forecast, 80% and 95% intervals"
+                           if d.verdict is not None else
+                           "recommended forecast, 80% and 95% intervals"),
+              "zoom": "latest regime and forecast" if d.model_breaks else
+                      "recent periods and forecast"}
     png = charts.series_chart(
         s.starts, s.values, units=d.units, frequency=s.frequency,
-        breaks=[s.starts[b.position] for b in d.breaks],
-        break_spans=[(s.starts[b.low], s.starts[b.high]) for b in d.breaks
+        breaks=[s.starts[b.position] for b in d.model_breaks],
+        break_spans=[(s.starts[b.low], s.starts[b.high]) for b in d.model_breaks
                      if b.low is not None and b.high is not None],
-        regime_trends=regime_bands if d.breaks or d.regime_trend is not None else [],
+        search_breaks=[s.starts[b.position] for b in d.unused_breaks],
+        regime_trends=regime_bands,
         global_trend=global_trend, seasonal_fit=seasonal_fit, forecast=forecast,
         global_forecast=global_forecast, zoom_from=None if first is None else s.starts[first],
         labels=labels, log_scale=log_scale, title=f"{s.name}: regimes, trends and forecast")
     parts = ["Actual values in black."]
-    if d.breaks:
-        parts.append(f"Solid blue lines: the {shape} trend of each regime"
-                     + (", with the seasonal terms at their average" if seasonal else "") + "; "
-                     "orange lines mark the breaks (the first period of a new regime), hatched "
-                     "spans the 95% intervals of their dates.")
-    elif d.regime_trend is not None:
-        parts.append(f"Solid blue line: the {shape} trend"
+    if regime_bands:
+        parts.append(f"Solid blue: {trend_caption}"
                      + (", with the seasonal terms at their average" if seasonal else "") + ".")
+    if d.model_breaks:
+        parts.append("Orange lines mark the breaks the chosen model uses (the first period of "
+                     "a new regime), hatched spans the 95% intervals of their dates.")
+    if d.unused_breaks:
+        dates = ", ".join(b.label for b in d.unused_breaks)
+        parts.append(f"Grey dashed lines: the break search's dates ({dates}), which the chosen "
+                     "model does not use.")
     if global_trend is None and global_forecast is not None:
-        parts.append("Dashed purple: the forecast of one trend over all history.")
+        parts.append(f"Dashed purple: the forecast of one {ref_shape} trend over all history, "
+                     "the reference.")
     if global_trend is not None:
-        parts.append("Dashed purple: one trend over all history"
+        parts.append(f"Dashed purple: one {ref_shape} trend over all history, the reference"
                      + (" (with its forecast in the right panel)." if first is not None
-                        and global_forecast is not None else " and its forecast."))
+                        and global_forecast is not None else
+                        " and its forecast." if global_forecast is not None else "."))
     if forecast is not None and d.forecast is not None:
-        words = strategy_words(recommended_candidate(d.evaluation)) or d.forecast.model
-        parts.append(f"Vermillion: the recommended forecast ({words}) with 80% and 95% "
+        if d.verdict is not None:
+            from ..verdict import strategy_words as chosen_words
+
+            m = d.verdict.model
+            words = chosen_words(m.strategy, m.shape, d.verdict.history.keep_from_label)
+            which = "the chosen model's forecast"
+        else:
+            words = strategy_words(recommended_candidate(d.evaluation)) or d.forecast.model
+            which = "the recommended forecast"
+        parts.append(f"Vermillion: {which} ({words}) with 80% and 95% "
                      "prediction intervals (darker and lighter bands).")
     if first is not None:
         parts.append(f"The right panel zooms on the periods from {s.label(first)}"
-                     + (" and adds the regime model with its seasonal pattern (dotted)."
+                     + (" and adds the chosen model with its seasonal pattern (dotted)."
                         if seasonal_fit is not None else "."))
     return Chart("series_regimes", "The series, its regimes, trends and forecast",
                  " ".join(parts), png)
@@ -145,14 +199,14 @@ def _error_chart(d: ReportData) -> Chart | None:
     targets = np.asarray(t.targets)[:, 0]
     lines = {f"reference: {_name(d, d.reference)}": t.errors(d.reference)[:, 0]}
     if d.recommended != d.reference:
-        lines[f"recommended: {_name(d, d.recommended)}"] = t.errors(d.recommended)[:, 0]
+        lines[f"chosen: {_name(d, d.recommended)}"] = t.errors(d.recommended)[:, 0]
     png = charts.error_chart(s.starts[targets], lines, units=d.units,
                              frequency=s.frequency, horizon_note=", one period ahead",
                              title="Forecast errors on the rolling origin (actual minus "
                                    "forecast)")
-    which = ("of the global trend (dashed purple) and of the recommended strategy (solid "
+    which = ("of the global trend (dashed purple) and of the chosen model (solid "
              "vermillion)" if len(lines) == 2 else
-             "of the global trend, which is also the recommended strategy")
+             "of the global trend, which is also the chosen model")
     return Chart("forecast_errors", "Forecast errors over time",
                  f"One-period-ahead errors (actual minus forecast) {which}, each fitted only on "
                  "the history before the period it forecasts. Errors drifting away from zero "
@@ -223,7 +277,7 @@ def _history_chart(d: ReportData) -> Chart | None:
         caption += " and from the breaks (separate marks)"
     caption += ". Lower is better."
     if keep is not None:
-        caption += (f" The dashed vertical line marks the recommended start, "
+        caption += (f" The dashed vertical line marks the start the verdict keeps, "
                     f"{d.series.frequency.label(keep)}.")
     else:
         caption += " All history is kept, so no start is marked."
@@ -231,21 +285,22 @@ def _history_chart(d: ReportData) -> Chart | None:
 
 
 def _horizon_chart(d: ReportData) -> Chart | None:
+    """The best-ranked candidates by horizon, always with the chosen model and the reference
+    (at most six lines)."""
     cands = (d.evaluation or {}).get("candidates") or []
-    lines = {}
+    must = [n for n in (d.recommended, d.reference) if n]
+    lines: dict = {}
     horizons = None
-    for c in cands[:6]:
+    ordered = [c for c in cands if c.get("name") in must] + \
+        [c for c in cands if c.get("name") not in must]
+    for c in ordered:
         ph = c.get("per_horizon") or []
         vals = [m.get("rmse") for m in ph]
-        if not vals or any(v is None for v in vals):
+        if len(lines) >= charts.MAX_LEGEND or not vals or any(v is None for v in vals):
             continue
         horizons = [m.get("horizon", i + 1) for i, m in enumerate(ph)]
         lines[c["name"]] = vals
-    if d.reference and d.reference not in lines:
-        ref = next((c for c in cands if c.get("name") == d.reference), None)
-        if ref and ref.get("per_horizon"):
-            lines = dict(list(lines.items())[:charts.MAX_LEGEND - 1])
-            lines[d.reference] = [m.get("rmse") for m in ref["per_horizon"]]
+    lines = {c["name"]: lines[c["name"]] for c in cands if c.get("name") in lines}  # rank order
     if not lines or horizons is None:
         return None
     lines = {_name(d, k): v for k, v in lines.items()}
@@ -255,7 +310,7 @@ def _horizon_chart(d: ReportData) -> Chart | None:
                                title="Accuracy by forecast horizon")
     return Chart("accuracy_by_horizon", "Accuracy by horizon for the candidates",
                  "Rolling-origin RMSE at each horizon for the best-ranked candidates and the "
-                 "global trend (dashed purple); the recommended strategy is drawn thicker in "
+                 "global trend (dashed purple); the chosen model is drawn thicker in "
                  "vermillion.", png)
 
 

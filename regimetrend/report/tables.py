@@ -111,14 +111,19 @@ def growth_rows(growth: dict) -> Table:
 LEADING = 5  # candidates shown before the rest of the ranking is folded away
 
 
+CHOSEN = "chosen"  # the ranking row of the verdict's model
+
+
 def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
     """The candidate ranking (``Evaluation.to_dict()['candidates']``); ``names`` maps each
-    candidate's key to the words a manager reads. The page shows the leading candidates and
-    folds the rest; the CSV and the workbook keep every row."""
-    recommended = dig(evaluation, "recommended", "name")
+    candidate's key to the words a manager reads. The rank orders by rolling-origin RMSE only;
+    the row of the verdict's model (the evaluation's ``recommended``, set from the verdict) is
+    marked "chosen", and when it does not rank first the note says why. The page shows the
+    leading candidates and folds the rest; the CSV and the workbook keep every row."""
+    chosen = dig(evaluation, "recommended", "name")
     names = names or {}
-    cols = (Column("rank", "Rank", "int"), Column("candidate", "Candidate", "text"),
-            Column("recommended", "Recommended", "text"), Column("rmse", "RMSE", "num"),
+    cols = (Column("rank", "Rank by RMSE", "int"), Column("candidate", "Candidate", "text"),
+            Column("chosen", "Verdict", "text"), Column("rmse", "RMSE", "num"),
             Column("mae", "MAE", "num"), Column("mape", "MAPE, %", "pct"),
             Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage, %", "pct"),
             Column("gain_pct", "RMSE gain over global, %", "pct"),
@@ -132,7 +137,7 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
         vs = c.get("vs_global") or {}
         p = vs.get("p_value_better", vs.get("p_value"))
         rows.append({"rank": c.get("rank"), "candidate": names.get(c.get("name"), c.get("name")),
-                     "recommended": "yes" if c.get("name") == recommended else "",
+                     "chosen": CHOSEN if c.get("name") == chosen else "",
                      "rmse": m.get("rmse"), "mae": m.get("mae"), "mape": m.get("mape"),
                      "mase": m.get("mase"), "coverage95": None if cov is None else 100.0 * cov,
                      "gain_pct": None if gain is None else 100.0 * gain, "dm_p_value": p,
@@ -142,6 +147,11 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
            "of the global trend's RMSE. p-value: one-sided Diebold-Mariano test (with the " \
            "Harvey-Leybourne-Newbold correction) that the candidate forecasts better than the " \
            "global trend."
+    rank = next((r["rank"] for r in rows if r["chosen"]), None)
+    if rank is not None and rank != 1:
+        note += (f" The rank orders by RMSE alone; the chosen model (rank {rank}) is the "
+                 "verdict's: its rule keeps one trend over all history, or the model using "
+                 "fewer breaks, unless a test or a significant break backs a more accurate one.")
     if evaluation.get("optimistic_note"):
         note += " " + str(evaluation["optimistic_note"]).capitalize() + "."
     return Table("candidate_ranking", "Candidate ranking", cols, tuple(rows), note,

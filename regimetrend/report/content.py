@@ -7,6 +7,7 @@ from itertools import pairwise
 
 import numpy as np
 
+from .. import growth_figures as gf
 from .. import numformat
 from ..cautions import assemble
 from . import charts
@@ -320,10 +321,10 @@ def _growth_chart(d: ReportData) -> Chart | None:
         return None
     segs = g["segments"]
     labels = [f"{s['start_label']} to {s['end_label']}" for s in segs]
-    vals = [s["growth"].get("annualised_pct") for s in segs]
+    vals = [s["growth"].get(gf.ANNUALISED_PCT) for s in segs]
     if all(v is None for v in vals):
         return None
-    ci = [s["growth"].get("annualised_pct_ci95") or [None, None] for s in segs]
+    ci = [s["growth"].get(gf.ci95(gf.ANNUALISED_PCT)) or [None, None] for s in segs]
     png = charts.growth_chart(labels, vals, [c[0] for c in ci], [c[1] for c in ci],
                               quantity="growth (% a year)",
                               title="Growth by regime")
@@ -331,7 +332,8 @@ def _growth_chart(d: ReportData) -> Chart | None:
     model_text = f" Model: {model}, as in the growth table." if model else ""
     return Chart("growth_by_regime", "Annualised growth by regime",
                  f"Bars: {g.get('headline', 'annualised growth')}; whiskers: 95% intervals "
-                 f"(Newey-West covariance, delta method).{model_text} "
+                 "(autocorrelation-robust covariance as the growth table's note says, delta "
+                 f"method).{model_text} "
                  "The current regime is coloured.", png)
 
 
@@ -386,8 +388,8 @@ def _facts(d: ReportData) -> list[Fact]:
     g = d.growth
     if g and g.get("segments"):
         last = g["segments"][-1]
-        v = last["growth"].get("annualised_pct")
-        ci = last["growth"].get("annualised_pct_ci95") or [None, None]
+        v = last["growth"].get(gf.ANNUALISED_PCT)
+        ci = last["growth"].get(gf.ci95(gf.ANNUALISED_PCT)) or [None, None]
         if v is not None:
             sub = (f"95%: {numformat.interval(ci[0], ci[1], numformat.percent)}"
                    if None not in ci else "")

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from .. import growth_figures as gf
 from .. import numformat
 
 # how a column reads (rounded by ``regimetrend.numformat``): text, int, pct (percent), num (plain
@@ -56,7 +57,7 @@ def dig(obj, *keys, default=None):
 
 
 def _ci(growth: dict, name: str, i: int):
-    ci = growth.get(f"{name}_ci95") or [None, None]
+    ci = growth.get(gf.ci95(name)) or [None, None]
     return ci[i]
 
 
@@ -78,11 +79,11 @@ def growth_rows(growth: dict) -> Table:
     annual = float(growth.get("periods_per_year") or 0) == 1.0
     cols = [Column("regime", "Regime", "int"), Column("from", "From", "text"),
             Column("to", "To", "text"), Column("periods", "Periods", "int")]
-    figures = [] if annual else [("per_period_pct", "Growth per period, %", "pct")]
-    figures += [("annualised_pct", "Growth a year, %", "pct"),
-                ("annualised_units", "Increase a year, units", "num")]
+    figures = [] if annual else [(gf.PER_PERIOD_PCT, "Growth per period, %", "pct")]
+    figures += [(gf.ANNUALISED_PCT, "Growth a year, %", "pct"),
+                (gf.ANNUALISED_UNITS, "Increase a year, units", "num")]
     if shape == "exponential":
-        figures.append(("doubling_time_years", "Doubling time, years", "num"))
+        figures.append((gf.DOUBLING_TIME_YEARS, "Doubling time, years", "num"))
     for key, heading, kind in figures:
         cols += _interval_columns(key, heading, kind)
     cols += [Column("change_points", "Change of growth a year from the regime before, points",
@@ -99,7 +100,7 @@ def growth_rows(growth: dict) -> Table:
             row[f"{key}_low"] = _ci(g, key, 0)
             row[f"{key}_high"] = _ci(g, key, 1)
         change = changes.get(seg.get("index"))
-        row["change_points"] = change.get("annualised_pct_change") if change else None
+        row["change_points"] = change.get(gf.CHANGE_PCT) if change else None
         row["change_p_value"] = change.get("p_value") if change else None
         rows.append(row)
     note = (f"Every % here: {growth.get('headline', 'annualised growth')}. "

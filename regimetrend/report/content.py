@@ -448,10 +448,18 @@ def build(d: ReportData, *, log_scale: bool = False, progress=None) -> Content:
                             f"Model: {words}." if words else ft.note))
     if d.breaks_dict and d.breaks_dict.get("breaks"):
         bt = break_rows(d.breaks_dict)
-        bt = Table(bt.name, bt.title, bt.columns,
+        title, note = bt.title, bt.note
+        if d.verdict is not None:  # the search's breaks, said to be the search's
+            title = f"Breaks found by the {d.verdict.model.search_shape} break search"
+            used = len(d.model_breaks)
+            note = (f"{note} The chosen model uses "
+                    + ("these breaks." if used and not d.unused_breaks else
+                       "none of them; they are shown as the search found them." if not used
+                       else f"{used} of them.")).strip()
+        bt = Table(bt.name, title, bt.columns,
                    tuple(dict(r, label=b.label, low=d.label(b.low), high=d.label(b.high))
                          if b.low is not None else dict(r, label=b.label)
-                         for r, b in zip(bt.rows, d.breaks)), bt.note)
+                         for r, b in zip(bt.rows, d.breaks)), note)
         tables.append(bt)
     cautions = list(assemble(d.cautions))  # the analysis's cautions; standing ones always
     spec_text = d.spec.describe() if d.spec is not None else ""

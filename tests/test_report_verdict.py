@@ -117,3 +117,13 @@ def test_breaks_table_is_labelled_as_the_searchs_when_the_model_uses_none(ukgas)
     assert breaks.title == f"Breaks found by the {ukgas.verdict.model.search_shape} break search"
     assert "The chosen model uses none of them" in breaks.note
     assert [r["label"] for r in breaks.rows] == [b.label for b in ukgas.breaks.breaks]
+
+
+def test_terminal_ranking_marks_the_verdicts_model(ukgas):
+    lines = ukgas.evaluation.summary(ukgas.series).splitlines()
+    head = next(i for i, line in enumerate(lines) if line.startswith("candidate "))
+    at = lines[head].index("verdict")
+    rows = lines[head + 2:lines.index("", head)]
+    marked = [r for r in rows if r[at:at + len("verdict")].strip() == "chosen"]
+    assert len(marked) == 1 and marked[0].startswith(ukgas.verdict.model.name + " ")
+    assert "rank by RMSE" in lines[head]

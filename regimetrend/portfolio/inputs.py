@@ -52,11 +52,16 @@ class Portfolio:
     layout: str  # long, wide or folder
     id_columns: tuple[str, ...]
     tasks: tuple[SeriesTask, ...]
+    decimal: str | None = None  # the decimal mark of a text file's numbers (None: intake's own)
 
 
 def read_portfolio(path, *, id_columns=(), date_column=None, value_column=None,
-                   sheet=None) -> Portfolio:
-    """All series of the portfolio at ``path`` (a file or a folder), in input order."""
+                   sheet=None, decimal=None) -> Portfolio:
+    """All series of the portfolio at ``path`` (a file or a folder), in input order.
+
+    ``decimal``: the decimal mark the analyst gave, or None to find it as single-series intake
+    does; for a text file it is decided once for the whole file (``file_decimal``), as every
+    series' cells are handed to intake apart from the file."""
     path = Path(path)
     if path.is_dir():
         if id_columns:
@@ -66,10 +71,38 @@ def read_portfolio(path, *, id_columns=(), date_column=None, value_column=None,
                                                                 value_column, sheet)))
     frame = read_table(path, sheet)
     if id_columns:
-        return Portfolio("long", tuple(id_columns),
-                         tuple(_long_tasks(frame, path, list(id_columns), date_column,
-                                           value_column)))
-    return Portfolio("wide", ("id",), tuple(_wide_tasks(frame, path, date_column)))
+        tasks = tuple(_long_tasks(frame, path, list(id_columns), date_column, value_column))
+        mark = file_decimal(path, decimal, skip=[_column(frame, c, "--id-column", path)
+                                                 for c in id_columns])
+        return Portfolio("long", tuple(id_columns), tasks, mark)
+    tasks = tuple(_wide_tasks(frame, path, date_column))
+    return Portfolio("wide", ("id",), tasks, file_decimal(path, decimal, skip=[]))
+
+
+def file_decimal(path: Path, decimal, skip) -> str | None:
+    """The decimal mark of every series of a text file when the analyst gave none, decided as
+    single-series intake decides it for one file: the point in comma-separated files, else what
+    the numbers show (``intake.marks``); when nothing tells, the point, after refusing any cell
+    that reads either way (``200,002``), naming its file row. Tables that are not text files
+    keep intake's own rule (None). ``skip``: id columns, whose text is no number."""
+    if decimal is not None or path.suffix.lower() not in (".csv", ".txt"):
+        return decimal
+    from ..intake.marks import decimal_mark, refuse_either_reading
+    from ..intake.text_file import read_text
+
+    table = read_text(path, None)
+    if table.separator == ",":
+        return "."
+    for column in skip:  # id columns (e.g. product codes 1.234) say nothing about the numbers
+        if column in table.cells:
+            table.cells[column] = []
+    mark = decimal_mark(table)
+    if mark is None:
+        for column in table.columns:
+            if column not in skip:
+                refuse_either_reading(table, column)
+        mark = "."
+    return mark
 
 
 def read_table(path: Path, sheet=None) -> pd.DataFrame:

@@ -116,6 +116,66 @@ def find_breaks(series, spec: TrendSpec, options: BreakSettings) -> BreakSet:
         return _rescaled(found, scale)
 
 
+def find_break_positions(series, spec: TrendSpec, options: BreakSettings) -> tuple[int, ...]:
+    """The break positions ``find_breaks`` gives, without the rest of its result (intervals,
+    tests of each break, CUSUM, segments): what the rolling origin needs at every origin.
+
+    With the sequential rule the tied kinds are searched only as deep as its tests reach (the
+    paths beyond a test that does not reject cannot change any count, kind or position); other
+    settings run ``find_breaks``. The positions are the same (``tests/test_origin_speed.py``
+    compares the two on real series at every origin)."""
+    with _one_blas_thread():
+        scale = _response_scale(series.values) if not spec.log_scale else 1.0
+        if scale != 1.0:  # positions do not change with the scale
+            series = dataclasses.replace(series, values=series.values / scale)
+        return _positions(series, spec, options)
+
+
+def _positions(series, spec, options: BreakSettings) -> tuple[int, ...]:
+    kind, criterion = options.kind, options.criterion
+    robust = options.serial_correlation == "allow"
+    problem, M, _, long_series, kinds = _prepared(series, spec, kind, options.max_breaks,
+                                                  options.trim, options.seasonal_by_regime,
+                                                  options.method)
+    if (long_series or problem.seasonal_by_regime or criterion != "sequential" or options.events
+            or options.break_dates):
+        found = _detect(series, spec, kind, options.max_breaks, options.trim, criterion,
+                        options.events, options.seasonal_by_regime, options.method,
+                        options.serial_correlation)
+        return tuple(int(p) for p in found.positions)
+    paths: dict[str, KindPath] = {}
+    if "both" in kinds:
+        paths["both"] = search_both(problem, M, criterion, "exact")
+    first = _first_test(problem, kinds, robust, long_series)
+    values, counts = {}, {}
+    for k in ("both",) + tuple(k for k in kinds if k != "both"):
+        if k not in kinds:
+            continue
+        depth = min(M, 1)  # one break unless the sequential tests go further
+        while True:
+            if k != "both":
+                starts = paths["both"].positions if "both" in paths else None
+                paths[k] = search_tied(problem, k, depth, starts)
+            values[k] = _criterion_values(problem, paths[k], "bic")
+            counts[k], steps, _ = _sequential_count(problem, paths[k], values[k], M, robust,
+                                                    first)
+            last = steps[-1].p_value if steps else None
+            if k == "both" or depth >= M or last is None or not last < select.SEQUENTIAL_LEVEL:
+                break
+            depth = M  # the tests went as deep as the path: search it all
+    multi = kind == "auto" and robust and sum(1 for k in counts if counts[k] > 0) > 1
+    if multi:
+        scores = _quasi_gls_scores(problem, paths, counts)
+        chosen_kind, m = _choose(scores, kinds, counts)
+        chosen_kind, m = _nesting_kind_if_needed(problem, paths, scores, counts, chosen_kind,
+                                                 m, robust)
+    else:
+        chosen_kind, m = _choose(values, kinds, counts)
+    path = paths[chosen_kind]
+    positions = tuple(path.positions[m]) if m < len(path.positions) else ()
+    return tuple(int(p) for p in positions)
+
+
 def _response_scale(values) -> float:
     """A power of two (exact to divide by) that brings the largest |value| near 1, for values
     so large or small (beyond 1e+-100) that sums of squares would overflow or underflow: the
@@ -184,9 +244,9 @@ def robust_factor(residuals, enabled: bool = True) -> float:
     return min(1.0, g0 / lrv) if lrv > 0 and g0 > 0 else 1.0
 
 
-def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, method,
-            serial_correlation) -> BreakSet:
-    robust = serial_correlation == "allow"
+def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method):
+    """(problem, M, capped, long series, kinds): the break problem and the number of breaks
+    searched, or an InputError when the series is too short for them."""
     problem = build_problem(series, spec, seasonal_by_regime, trim)
     n, h = problem.n, problem.h
     capped = None
@@ -213,9 +273,18 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
                          f"the {problem.spec.season_length}-period seasonal pattern (use "
                          f"{setting('max_breaks', problem.most_breaks())}, "
                          f"{setting('seasonality', 'none')} or a longer {option('trim')})")
-    event_positions = [_event_position(series, e, h) for e in events]
     long_series = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
     kinds = KINDS if kind == "auto" else (kind,)
+    return problem, M, capped, long_series, kinds
+
+
+def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, method,
+            serial_correlation) -> BreakSet:
+    robust = serial_correlation == "allow"
+    problem, M, capped, long_series, kinds = _prepared(series, spec, kind, M, trim,
+                                                       seasonal_by_regime, method)
+    n, h = problem.n, problem.h
+    event_positions = [_event_position(series, e, h) for e in events]
 
     paths: dict[str, KindPath] = {}
     if "both" in kinds or kind == "auto":

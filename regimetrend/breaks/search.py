@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .. import ols
+from ..errors import InputError
 from . import exact, kinks, select
 from .costs import SegmentCost
 from .problem import BreakProblem
@@ -61,8 +61,8 @@ def _candidate_ssr(problem: BreakProblem, positions) -> tuple[float, np.ndarray 
     a seasonal pattern. Such a break set is no candidate (infinite SSR, never chosen), rather
     than a failure of the whole analysis."""
     try:
-        fit = ols.fit(problem.design("both", positions), problem.y)
-    except ols.RankDeficient:
+        fit = problem.fit("both", positions)  # kept by the problem, like every joint fit
+    except InputError:  # raised by ``fit`` only for dependent columns
         return np.inf, None
     return fit.ssr, problem.seasonal_part(fit)
 

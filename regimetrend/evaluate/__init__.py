@@ -49,6 +49,23 @@ def history_breaks(history, spec: TrendSpec, options: BreakSettings):
     return find_breaks(history, spec, dataclasses.replace(options, events=(), max_breaks=m))
 
 
+def history_positions(history, spec: TrendSpec, options: BreakSettings) -> tuple[int, ...]:
+    """The positions of ``history_breaks`` (same settings, same cap on the number of breaks),
+    found without the rest of the break result (``breaks.detect.find_break_positions``)."""
+    from ..breaks.detect import find_break_positions
+    from ..breaks.problem import resolve_trim
+
+    if options.break_dates:
+        return breakinfo.positions(history_breaks(history, spec, options))
+    m = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
+    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
+    h = resolve_trim(options.trim, history.n, spec, by_regime)
+    m = max(0, min(m, history.n // max(h, 1) - 1))
+    found = find_break_positions(history, spec,
+                                 dataclasses.replace(options, events=(), max_breaks=m))
+    return tuple(sorted(found))
+
+
 def given_at_origin(full, spec: TrendSpec, options: BreakSettings):
     """``breaks_at(o)`` for the analyst's dates: at origin ``o`` the given dates inside the
     history known then with a shortest regime on each side (the trim resolved on that history,
@@ -110,7 +127,7 @@ def _origin_breaks(series, plan, full, spec: TrendSpec, options: BreakSettings,
 
     def search(o):
         try:
-            return breakinfo.positions(history_breaks(series.head(o), spec, options))
+            return history_positions(series.head(o), spec, options)
         except InputError:
             failed.append(o)  # too little history for a search here: no breaks known
             return ()

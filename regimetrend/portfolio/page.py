@@ -12,7 +12,7 @@ from collections import Counter
 
 from ..output import write_atomic
 from ..report.safety import esc
-from ..numformat import number
+from ..numformat import number, percent
 from .ranking import RULE, evidence
 from .store import file_id
 
@@ -48,13 +48,15 @@ figcaption{font-size:12px;margin-bottom:4px;overflow-wrap:anywhere}
 def _fmt(v, digits=1, suffix=""):
     if v is None:
         return "-"
-    return f"{v:+.{digits}f}{suffix}" if suffix == "%" else f"{v:.{digits}f}{suffix}"
+    if suffix == "%":  # the number rule: one decimal, no "-0.0"
+        return percent(v, sign=True)
+    return f"{v:.{digits}f}{suffix}"
 
 
 def _interval(lo, hi, digits=1):
     if lo is None or hi is None:
         return ""
-    return f" ({lo:+.{digits}f} to {hi:+.{digits}f})"
+    return f" ({percent(lo, sign=True, symbol=False)} to {percent(hi, sign=True, symbol=False)})"
 
 
 def sparkline(chart: dict, width=248, height=120) -> str:

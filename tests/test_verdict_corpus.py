@@ -138,3 +138,18 @@ def test_separate_fits_under_level_breaks_show_each_regimes_own_growth():
 
     facts = {f.key: f for f in build(gather(a, units="cubic metres (1e8)")).facts}
     assert facts["latest change of regime"].sub == "given by the analyst"
+
+
+def test_break_dates_given_on_a_real_series_are_worded_as_given(corpus):
+    """UKDriverDeaths with the analyst's dates 1974-11 and 1983-02 (the seat-belt law, from
+    memory): no sentence describes a search, the diagnosis cites the given date's partial F,
+    and the amounts carry the analyst's units."""
+    a = analyze(corpus["UKDriverDeaths"].series, breaks=["1974-11", "1983-02"], shape="linear")
+    check_verdict(a, explicit_shape="linear")
+    v = a.verdict.in_units("deaths")
+    assert all(b["ci95"] is None for b in a.to_dict()["verdict"]["breaks"])
+    text = " ".join(v.sentences)
+    assert "1974-11 and 1983-02" in text and "given by the analyst" in text
+    assert v.diagnosis.cause == "regime change"
+    assert "1983-02 (given by the analyst; partial F p" in v.diagnosis.sentence
+    assert "deaths a year" in text and "deaths for" in text

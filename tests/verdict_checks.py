@@ -7,6 +7,7 @@ import re
 
 from regimetrend.numformat import number, percent
 from regimetrend.verdict import CAUSES
+from regimetrend.verdict import sentences as sentences_from_fields
 
 VERDICT_KEYS = {"model", "breaks", "keep_history_from", "growth_now", "forecast_model",
                 "diagnosis", "stability", "sentences"}
@@ -48,6 +49,7 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
     # sentences agree with the fields
     text = " ".join(d["sentences"])
     assert tuple(d["sentences"]) == v.sentences
+    assert sentences_from_fields(v) == v.sentences  # regenerated from the fields alone
     assert d["diagnosis"]["sentence"] in d["sentences"]
     assert d["stability"]["sentence"] in d["sentences"]
     assert "-0.0%" not in text and " -0 " not in text

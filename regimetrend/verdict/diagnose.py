@@ -116,7 +116,9 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         where = (f"under every shape tried ({_and(shapes)}), so no curve without a break "
                  f"accounts for it" if every else
                  f"under the {_and(shapes)} shape{'s' if len(shapes) > 1 else ''}")
-        lead = (f"{head}; {cross_text}. A change of regime explains it: the break search "
+        lead = (f"{head}; {cross_text}. A change of regime explains it: {change} at "
+                f"{break_words(b)}" if b.given else
+                f"{head}; {cross_text}. A change of regime explains it: the break search "
                 f"dates {change} at {break_words(b)}, {where}")
         ev = dict(ev, explaining_break=b.label)
         if not judged_by(runs[0], 0) or not _judged(runs, b):

@@ -37,6 +37,7 @@ from math import comb
 
 import numpy as np
 
+from ..factor_memo import FACTORS
 from ..regime_design import break_powers
 
 GRID_LENGTH = 1500  # exact two-break grid up to this length
@@ -71,6 +72,13 @@ def design_with_breaks(Z: np.ndarray, positions, terms) -> np.ndarray:
 
 
 def _orthonormal(X: np.ndarray) -> np.ndarray:
+    """An orthonormal basis of the columns of X (dependent columns dropped). The same fixed
+    design recurs across break kinks, shapes and reruns, so the basis is kept per exact design
+    (``factor_memo``)."""
+    return FACTORS.get("kinks-basis", np.asarray(X, dtype=float), _basis)
+
+
+def _basis(X: np.ndarray) -> np.ndarray:
     norms = np.linalg.norm(X, axis=0)
     q, r = np.linalg.qr(X / np.where(norms > 0, norms, 1.0))
     keep = np.abs(np.diag(r)) > 1e-10

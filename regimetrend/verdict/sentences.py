@@ -104,8 +104,9 @@ def _growth_sentence(g: GrowthNow | None, chosen: str = "", units: str = "") -> 
     lo, hi = g.ci95
     ci = (f" (95% interval {percent(lo)} to {percent(hi)})"
           if lo is not None and hi is not None else "")
-    model = strategy_words(g.strategy, g.shape)
-    if g.since_label:
+    truncated = g.strategy == "truncated"  # its words name where its history starts
+    model = strategy_words(g.strategy, g.shape, g.since_label if truncated else None)
+    if g.since_label and not truncated:
         model += f", since {g.since_label}"
     amount = ""
     if g.per_year_units is not None:

@@ -97,6 +97,23 @@ class OneBreakScan:
         self.ssr0 = float(self.e @ self.e)
         self.Q = Q
         self.t = np.arange(n, dtype=float)
+        self._pair_memo: dict = {}
+
+    def _pair_sums(self, i: int, j: int, qmax: int, suffix: bool) -> np.ndarray | None:
+        """``_sums`` of h_i h_j (term multipliers; None = all ones), once per scan: the
+        two-break grid asks for the same sums in every block of pairs. None where the
+        product is zero everywhere (two different season indicators), which adds nothing."""
+        key = (min(i, j), max(i, j), qmax, suffix)
+        if key not in self._pair_memo:
+            hi, hj = self.terms[i][0], self.terms[j][0]
+            if hi is None and hj is None:
+                w = np.ones(self.n)
+            elif hi is None or hj is None:
+                w = np.asarray(hj if hi is None else hi, dtype=float)
+            else:
+                w = hi * hj
+            self._pair_memo[key] = self._sums(w, qmax, suffix)[:, 0, :] if np.any(w) else None
+        return self._pair_memo[key]
 
     def _sums(self, w: np.ndarray, qmax: int, suffix: bool) -> np.ndarray:
         """S[q, m, b] = sum of w_t x_t^q over t >= b (suffix, x = t - (n-1)) or over t < b
@@ -111,6 +128,24 @@ class OneBreakScan:
             out = np.concatenate([np.zeros_like(prod[:, :1, :]),
                                   np.cumsum(prod, axis=1)[:, :-1, :]], axis=1)
         return np.moveaxis(out, 1, -1)  # (q, m, n)
+
+    def _nonzero_pairs(self, suffix: bool) -> list:
+        """Term pairs whose product is not zero everywhere, grouped by their powers:
+        [((p1, p2), rows i, columns j, stacked sums (pairs, q, n))]."""
+        key = ("pairs", suffix)
+        if key not in self._pair_memo:
+            kw = len(self.terms)
+            groups: dict = {}
+            for i in range(kw):
+                for j in range(kw):
+                    p1, p2 = self.terms[i][1], self.terms[j][1]
+                    S = self._pair_sums(i, j, p1 + p2, suffix)
+                    if S is not None:
+                        groups.setdefault((p1, p2), []).append((i, j, S))
+            self._pair_memo[key] = [
+                (powers, np.array([g[0] for g in got]), np.array([g[1] for g in got]),
+                 np.stack([g[2] for g in got])) for powers, got in groups.items()]
+        return self._pair_memo[key]
 
     @staticmethod
     def _expand(S: np.ndarray, p: int, beta: np.ndarray, cand: np.ndarray) -> np.ndarray:
@@ -152,12 +187,13 @@ class OneBreakScan:
             S = self._sums(np.column_stack([hs[j] * self.e, Q * hs[j][:, None]]), p, suffix)
             r[:, j] = self._expand(S[:, 0, :], p, beta, cand)
             QW[:, :, j] = self._expand(S[:, 1:, :], p, beta[None, :], cand).T
-        A = np.empty((cand.size, kw, kw))
+        A = np.zeros((cand.size, kw, kw))
         for i in range(kw):
             for j in range(i, kw):
                 p = terms[i][1] + terms[j][1]
-                S = self._sums(hs[i] * hs[j], p, suffix)[:, 0, :]
-                A[:, i, j] = A[:, j, i] = self._expand(S, p, beta, cand)
+                S = self._pair_sums(i, j, p, suffix)
+                if S is not None:
+                    A[:, i, j] = A[:, j, i] = self._expand(S, p, beta, cand)
         return r, QW, A
 
     def cross(self, b1: np.ndarray, b2: np.ndarray, pre1: np.ndarray, pre2: np.ndarray
@@ -168,8 +204,6 @@ class OneBreakScan:
         not overlap at all."""
         n, terms = self.n, self.terms
         kw = len(terms)
-        ones = np.ones(n)
-        hs = [ones if h is None else h for h, _ in terms]
         out = np.zeros(b1.shape + (kw, kw))
         both_suf = ~pre1 & ~pre2
         both_pre = pre1 & pre2
@@ -180,16 +214,16 @@ class OneBreakScan:
             at = x2 if suffix else x1
             shift = (n - 1.0) if suffix else 0.0
             be1, be2 = x1 - shift, x2 - shift
-            for i, (_, p1) in enumerate(terms):
-                for j, (_, p2) in enumerate(terms):
-                    S = self._sums(hs[i] * hs[j], p1 + p2, suffix)[:, 0, :]
-                    total = 0.0
-                    for q1 in range(p1 + 1):
-                        for q2 in range(p2 + 1):
-                            total = total + (comb(p1, q1) * comb(p2, q2)
-                                             * (-be1) ** (p1 - q1) * (-be2) ** (p2 - q2)
-                                             * S[q1 + q2][at])
-                    out[mask, i, j] = total
+            block = np.zeros((x1.size, kw, kw))
+            for (p1, p2), rows, cols, SS in self._nonzero_pairs(suffix):
+                total = 0.0
+                for q1 in range(p1 + 1):
+                    for q2 in range(p2 + 1):
+                        total = total + (comb(p1, q1) * comb(p2, q2)
+                                         * (-be1) ** (p1 - q1) * (-be2) ** (p2 - q2)
+                                         * SS[:, q1 + q2, at])
+                block[:, rows, cols] = np.swapaxes(total, 0, 1)
+            out[mask] = block
         return out
 
 
@@ -231,7 +265,7 @@ def best_pair(y, Z, terms, h: int, complete: bool = True, chunk: int = 2_000_000
     for s0 in range(0, i1.size, step):
         a, b = i1[s0:s0 + step], i2[s0:s0 + step]
         W12 = scan.cross(cand[a], cand[b], P["prefix"][a], P["prefix"][b])
-        C = W12 - np.einsum("cqi,cqj->cij", P["QW"][a], P["QW"][b])
+        C = W12 - np.matmul(np.swapaxes(P["QW"][a], 1, 2), P["QW"][b])
         G = np.zeros((a.size, 2 * kw, 2 * kw))
         G[:, :kw, :kw], G[:, kw:, kw:] = P["G"][a], P["G"][b]
         G[:, :kw, kw:], G[:, kw:, :kw] = C, np.swapaxes(C, 1, 2)
@@ -283,7 +317,7 @@ def ssr_with(y, Z, terms, positions) -> float:
     return float(e @ e)
 
 
-class _Scans:
+class ScanMemo:
     """Memo of one-break scans within one search: the same (others, range) is scanned once."""
 
     def __init__(self, y, Z, terms):
@@ -298,10 +332,10 @@ class _Scans:
         return self.memo[key]
 
 
-def refine(y, Z, terms, positions, n, h, scans: _Scans | None = None
+def refine(y, Z, terms, positions, n, h, scans: ScanMemo | None = None
            ) -> tuple[tuple[int, ...], float]:
     """Move one break at a time to its best position given the others, to a local optimum."""
-    scans = scans or _Scans(y, Z, terms)
+    scans = scans or ScanMemo(y, Z, terms)
     pos = sorted(int(p) for p in positions)
     current = ssr_with(y, Z, terms, pos)
     for _ in range(MAX_SWEEPS):
@@ -317,15 +351,17 @@ def refine(y, Z, terms, positions, n, h, scans: _Scans | None = None
     return tuple(pos), current
 
 
-def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None
+def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None,
+                scans: ScanMemo | None = None
                 ) -> tuple[list[float], list[tuple[int, ...]], list[bool]]:
     """SSR path for 0..max_breaks breaks of a tied kind: (ssr, positions, exact flags).
 
     ``starts_by_m[m]`` optionally gives a starting segmentation for the refinement with m
-    breaks (the exact ``both`` solution)."""
+    breaks (the exact ``both`` solution); ``scans`` a memo of one-break scans of the same
+    y, Z and terms to use and fill."""
     y = np.asarray(y, dtype=float)
     n = len(y)
-    scans = _Scans(y, Z, terms)
+    scans = scans if scans is not None else ScanMemo(y, Z, terms)
     ssr = [ssr_with(y, Z, terms, ())]
     positions: list[tuple[int, ...]] = [()]
     exact = [True]

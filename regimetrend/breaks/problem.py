@@ -18,7 +18,7 @@ on the model scale whatever the parameterisation.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -42,6 +42,15 @@ class BreakProblem:
     season_idx: np.ndarray | None
     seasonal_by_regime: bool
     h: int  # minimum regime length in periods
+    _scans: dict = field(default_factory=dict, repr=False)
+
+    def scans(self, kind: str) -> "kinks.ScanMemo":
+        """The memo of one-break scans of ``kind`` (tied kinds): the search, the sequential
+        tests and the added-break statistics ask for the same scans, which on long series
+        are the bulk of the work; each is computed once per problem."""
+        if kind not in self._scans:
+            self._scans[kind] = kinks.ScanMemo(self.y, self.base, self.terms(kind))
+        return self._scans[kind]
 
     @property
     def n(self) -> int:

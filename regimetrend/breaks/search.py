@@ -110,7 +110,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
 def search_tied(problem: BreakProblem, kind: str, max_breaks: int, starts_by_m=None) -> KindPath:
     terms = problem.terms(kind)
     ssr, positions, flags = kinks.tied_search(problem.y, problem.base, terms, max_breaks,
-                                              problem.h, starts_by_m)
+                                              problem.h, starts_by_m, problem.scans(kind))
     method = "exact grid" if all(flags) else "exact grid up to two breaks, refined beyond"
     return KindPath(kind, tuple(ssr), tuple(tuple(p) for p in positions), tuple(flags), method)
 
@@ -142,9 +142,9 @@ def best_added_break(problem: BreakProblem, kind: str, positions, y_adjusted=Non
         return before, best, where
     terms = problem.terms(kind)
     before = kinks.ssr_with(problem.y, problem.base, terms, sorted(positions))
+    scans = problem.scans(kind)
     for a, b in zip(bounds[:-1], bounds[1:]):
-        pos, s, _, _ = kinks.best_single(problem.y, problem.base, terms, a + h, b - h,
-                                         sorted(positions))
+        pos, s = scans.best(a + h, b - h, sorted(positions))
         if pos is not None and s < best:
             best, where = s, pos
     return before, best, where

@@ -38,7 +38,8 @@ from .. import ols
 from ..design import TrendSpec
 from ..errors import InputError, about, option, setting
 from ..settings import DEFAULT_MAX_BREAKS, BreakSettings, Settings
-from . import calibrate, critical, cusum, chow, exact, intervals, kinks, select, wandering
+from . import (calibrate, critical, cusum, chow, exact, intervals, kinks, long_search, select,
+               wandering)
 from .problem import KINDS, BreakProblem, build_problem
 from .result import (Break, BreakSet, BreakTests, CusumSummary, Drift, EventTest, Segment,
                      SequentialStep, SupFTest)
@@ -265,7 +266,7 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
                      "changes only, so no p-value is given for it.")
     if path.method in PENALISED:
         how = ("PELT" if path.method == "pelt" else
-               f"ruptures' bottom-up segmentation polished exactly (from {exact.BOTTOM_UP_LENGTH} "
+               f"ruptures' bottom-up segmentation polished exactly (from {long_search.BOTTOM_UP_LENGTH} "
                f"periods, where it matched PELT's breaks several times faster)")
         notes.append(f"Series of {exact.PELT_LENGTH} periods or more are searched by {how} with "
                      f"a BIC-matched penalty; only that break count is evaluated.")

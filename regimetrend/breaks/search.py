@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from . import exact, kinks, select
+from . import exact, kinks, long_search, select
 from .costs import SegmentCost
 from .problem import BreakProblem
 
@@ -56,7 +56,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
                 ) -> KindPath:
     n, h = problem.n, problem.h
     use_pelt = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
-    bottom_up = use_pelt and method != "pelt" and n >= exact.BOTTOM_UP_LENGTH
+    bottom_up = use_pelt and method != "pelt" and n >= long_search.BOTTOM_UP_LENGTH
     shared = problem.seasonal is not None and not problem.seasonal_by_regime
     season = _joint_ssr(problem, "both", ())[1] if shared else np.zeros(n)
     chosen = None
@@ -65,7 +65,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
         cost = _segment_cost(problem, problem.y - season)
         if use_pelt:
             pen = exact.bic_penalty(problem.y - season, changing)
-            found = (exact.bottom_up_search(cost, pen, h) if bottom_up
+            found = (long_search.bottom_up_search(cost, pen, h) if bottom_up
                      else exact.pelt_search(cost, pen, h))
             sets = [(), found]
             flags = [True, False]

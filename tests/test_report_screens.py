@@ -18,8 +18,6 @@ units in the key figures. Each screenshot is kept in the test's temporary folder
 (``screens/<name>.png``) for a person to look at.
 """
 
-import base64
-import json
 import re
 
 import numpy as np
@@ -30,7 +28,7 @@ from regimetrend.series import Frequency, Series
 
 from .conftest import rseries
 from .test_charts import CALENDAR, layout
-from .test_report_browser import PipeBrowser, _chromium
+from .browser import render
 
 DATE_CHARTS = ("series", "errors", "cusum", "history")
 UNIT_CHARTS = ("series", "errors", "history", "horizon")
@@ -117,41 +115,14 @@ PAGE = r"""
 
 def test_report_screenshot_in_headless_chromium(report, tmp_path_factory):
     case, unit, options, folder, drawn = report
-    binary = _chromium()
-    if binary is None:
-        import os
-
-        if os.environ.get("CI", "").lower() == "true":
-            pytest.fail("chromium is required on CI (.ci/run installs Debian's chromium)")
-        pytest.skip("chromium is not installed (apt-get install chromium); CI runs this test")
     shots = tmp_path_factory.mktemp("screens", numbered=False) if not (
         tmp_path_factory.getbasetemp() / "screens").exists() else \
         tmp_path_factory.getbasetemp() / "screens"
-    browser = PipeBrowser(binary, tmp_path_factory.mktemp(f"profile_{case}"))
-    try:
-        target = browser.send("Target.createTarget", {"url": "about:blank"})["targetId"]
-        session = browser.send("Target.attachToTarget",
-                               {"targetId": target, "flatten": True})["sessionId"]
-        browser.send("Page.enable", session=session)
-        browser.send("Runtime.enable", session=session)
-        browser.send("Emulation.setDeviceMetricsOverride",
-                     {"width": 1100, "height": 900, "deviceScaleFactor": 1, "mobile": False},
-                     session=session)
-        browser.send("Page.navigate", {"url": (folder / "report.html").as_uri()},
-                      session=session)
-        browser.wait_for("Page.loadEventFired", timeout=60)
-        page = json.loads(browser.send("Runtime.evaluate",
-                                       {"expression": PAGE, "returnByValue": True},
-                                       session=session)["result"]["value"])
-        height = min(int(page["height"]), 16000)
-        shot = browser.send("Page.captureScreenshot",
-                            {"format": "png", "captureBeyondViewport": True,
-                             "clip": {"x": 0, "y": 0, "width": 1100, "height": height,
-                                      "scale": 1}}, session=session)
-    finally:
-        browser.close()
+    shown = render(folder / "report.html", PAGE, tmp_path_factory.mktemp(f"profile_{case}"),
+                   width=1100)
+    page = shown.value
     path = shots / f"{case}.png"
-    path.write_bytes(base64.b64decode(shot["data"]))
+    path.write_bytes(shown.png)
     assert path.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert len(page["imgs"]) == len(drawn)
     for img in page["imgs"]:

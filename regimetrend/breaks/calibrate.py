@@ -31,11 +31,21 @@ break of any kind is the level.
 
 Everything is vectorised over replications and positions. The generator has a fixed seed, so a
 series always gets the same p-values.
+
+The null distribution depends on the design only (Z, kinds, degree, trimming, robust scaling,
+replications and seed), not on the data, so it is computed once per design and process and kept
+(``NullCache``, least recently used first out, bounded in bytes): every later series of the same
+length, shape and seasons (a portfolio; a shape whose design equals another's, as the
+exponential and linear shapes do on their own scales) reads the same simulated statistics and
+gets p-values identical to a fresh simulation. The key holds the exact bytes of Z.
 """
 
 from __future__ import annotations
 
+import hashlib
 import math
+import threading
+from collections import OrderedDict
 from dataclasses import dataclass
 
 import numpy as np
@@ -43,6 +53,7 @@ import numpy as np
 REPLICATIONS = 199
 SEED = 20261202
 MAX_LENGTH = 600  # longer series: the asymptotic table (memory grows as n^2)
+CACHE_BYTES = 64 * 2 ** 20  # simulated designs kept per process (the demo analysis: 30 designs, 8 MB)
 
 
 def break_columns(n: int, positions, kind: str, degree: int) -> np.ndarray:
@@ -156,42 +167,132 @@ class Calibration:
         return self.adjusted[kind] <= self.level
 
 
-def null_scaled_supf(scan: KindScan, E: np.ndarray, dof: int, robust: bool
+def null_scaled_supf(scan: KindScan, E: np.ndarray, dof: int, robust: bool, factor=None
                      ) -> tuple[np.ndarray, np.ndarray]:
-    """(sup-F scaled by the null residuals' factor, argmax position) per column of E."""
+    """(sup-F scaled by the null residuals' factor, argmax position) per column of E.
+    ``factor``: ``robust_factor_columns(E)`` when already computed (it does not depend on the
+    kind)."""
     sup, best = supf_paths(scan, E, dof)
     if robust:
-        sup = sup * robust_factor_columns(E)
+        sup = sup * (robust_factor_columns(E) if factor is None else factor)
     return sup, scan.positions[best]
 
 
-def calibrate(y: np.ndarray, Z: np.ndarray, kinds, degree: int, h: int, robust: bool = True,
-              level: float = 0.05, replications: int = REPLICATIONS, seed: int = SEED
-              ) -> Calibration:
-    """Run the calibrated first test on response y with null design Z (see the module text)."""
-    y = np.asarray(y, dtype=float)
+@dataclass(frozen=True, eq=False)
+class NullDesign:
+    """What a design's Monte Carlo test needs, data aside: the basis of Z, the kinds' scans and
+    the simulated statistics per kind with the replications' min-p over kinds."""
+
+    basis: np.ndarray  # orthonormal basis of Z
+    dof: int
+    scans: dict  # kind -> KindScan
+    boot: dict  # kind -> (replications,) simulated scaled sup-F
+    min_rep: np.ndarray  # (replications,) smallest per-kind p-value of each replication
+    critical95: dict  # kind -> simulated 95% quantile
+
+    @property
+    def nbytes(self) -> int:
+        return int(self.basis.nbytes + sum(s.basis.nbytes for s in self.scans.values())
+                   + sum(b.nbytes for b in self.boot.values()) + self.min_rep.nbytes)
+
+
+class NullCache:
+    """Simulated null designs by key, least recently used dropped beyond ``limit`` bytes.
+    Thread-safe; a process keeps one (``NULLS``)."""
+
+    def __init__(self, limit: int = CACHE_BYTES):
+        self.limit = int(limit)
+        self._items: OrderedDict = OrderedDict()
+        self._bytes = 0
+        self._lock = threading.Lock()
+        self.hits = self.misses = 0
+
+    def get(self, key):
+        with self._lock:
+            item = self._items.get(key)
+            if item is None:
+                self.misses += 1
+                return None
+            self._items.move_to_end(key)
+            self.hits += 1
+            return item
+
+    def put(self, key, item: NullDesign) -> None:
+        size = item.nbytes
+        if size > self.limit:
+            return
+        with self._lock:
+            if key in self._items:
+                return
+            self._items[key] = item
+            self._bytes += size
+            while self._bytes > self.limit:
+                _, old = self._items.popitem(last=False)
+                self._bytes -= old.nbytes
+
+    def clear(self) -> None:
+        with self._lock:
+            self._items.clear()
+            self._bytes = 0
+            self.hits = self.misses = 0
+
+
+NULLS = NullCache()
+
+
+def null_design(Z: np.ndarray, kinds, degree: int, h: int, robust: bool,
+                replications: int = REPLICATIONS, seed: int = SEED,
+                cache: NullCache | None = NULLS) -> NullDesign:
+    """The simulated null of the first test on design Z (computed, or read from ``cache``)."""
+    Z = np.ascontiguousarray(Z, dtype=float)
     kinds = tuple(kinds)
-    n = y.size
-    qb = _orthonormal_basis(np.asarray(Z, dtype=float))
+    key = (Z.shape, hashlib.sha1(Z.tobytes()).hexdigest(), kinds, int(degree), int(h),
+           bool(robust), int(replications), int(seed))
+    found = cache.get(key) if cache is not None else None
+    if found is not None:
+        return found
+    n = Z.shape[0]
+    qb = _orthonormal_basis(Z)
     dof = n - qb.shape[1]
-    e = y - qb @ (qb.T @ y)
     scans = {k: kind_scan(qb, k, degree, h) for k in kinds}
-    stats, where = {}, {}
-    for k, scan in scans.items():
-        s, b = null_scaled_supf(scan, e[:, None], dof, robust)
-        stats[k], where[k] = float(s[0]), int(b[0])
     rng = np.random.default_rng(seed)
     sims = residualise(qb, rng.standard_normal((n, replications)))
-    boot = {k: null_scaled_supf(scan, sims, dof, robust)[0] for k, scan in scans.items()}
-    p_values = {k: float(1 + np.sum(boot[k] >= stats[k] * (1 - 1e-12))) / (replications + 1)
-                for k in kinds}
+    factor = robust_factor_columns(sims) if robust else None
+    boot = {k: null_scaled_supf(scan, sims, dof, robust, factor)[0] for k, scan in scans.items()}
     # each replication's p-value against all replications, per kind; the smallest over kinds
     min_rep = np.ones(replications)
     for k in kinds:
         order = np.sort(boot[k])
         at_least = replications - np.searchsorted(order, boot[k], side="left")
         min_rep = np.minimum(min_rep, at_least / (replications + 1))
-    adjusted = {k: (float(1 + np.sum(min_rep <= p_values[k] * (1 + 1e-12)))
-                    / (replications + 1) if len(kinds) > 1 else p_values[k]) for k in kinds}
     crit = {k: float(np.quantile(boot[k], 0.95)) for k in kinds}
-    return Calibration(stats, where, p_values, adjusted, crit, replications, level)
+    for a in [qb, min_rep, *boot.values(), *(s.basis for s in scans.values())]:
+        a.setflags(write=False)  # shared between calls: read only
+    made = NullDesign(qb, dof, scans, boot, min_rep, crit)
+    if cache is not None:
+        cache.put(key, made)
+    return made
+
+
+def calibrate(y: np.ndarray, Z: np.ndarray, kinds, degree: int, h: int, robust: bool = True,
+              level: float = 0.05, replications: int = REPLICATIONS, seed: int = SEED,
+              cache: NullCache | None = NULLS) -> Calibration:
+    """Run the calibrated first test on response y with null design Z (see the module text).
+    ``cache=None`` simulates afresh (the results are the same either way)."""
+    y = np.asarray(y, dtype=float)
+    kinds = tuple(kinds)
+    null = null_design(Z, kinds, degree, h, robust, replications, seed, cache)
+    qb, dof = null.basis, null.dof
+    e = y - qb @ (qb.T @ y)
+    factor = robust_factor_columns(e[:, None]) if robust else None
+    stats, where = {}, {}
+    for k, scan in null.scans.items():
+        s, b = null_scaled_supf(scan, e[:, None], dof, robust, factor)
+        stats[k], where[k] = float(s[0]), int(b[0])
+    boot = null.boot
+    p_values = {k: float(1 + np.sum(boot[k] >= stats[k] * (1 - 1e-12))) / (replications + 1)
+                for k in kinds}
+    adjusted = {k: (float(1 + np.sum(null.min_rep <= p_values[k] * (1 + 1e-12)))
+                    / (replications + 1) if len(kinds) > 1 else p_values[k]) for k in kinds}
+    return Calibration(stats, where, p_values, adjusted, dict(null.critical95), replications,
+                       level)

@@ -91,9 +91,15 @@ def detect_breaks(series, settings: Settings | None = None, **choices) -> BreakS
     return find_breaks(series, settings.spec_for(series), settings.breaks)
 
 
-def find_breaks(series, spec: TrendSpec, options: BreakSettings) -> BreakSet:
+def find_breaks(series, spec: TrendSpec, options: BreakSettings, *, lean: bool = False
+                ) -> BreakSet:
     """``detect_breaks`` for a spec already resolved against ``series`` (one resolution per
     run: ``analyze`` and ``compare`` call this).
+
+    ``lean`` (for searches nobody reads in full, such as the verdict's stability reruns):
+    the same breaks, intervals and tests of the breaks, but where the sequential tests decide
+    the count the tied kinds' paths stop where the tests stop (``ssr_path`` and the criterion
+    paths of those kinds are shorter) and the CUSUM tests of the global trend are left out.
 
     The linear algebra here is many small tall-and-thin problems, which a multi-threaded BLAS
     only slows down (measured: a 3000 x 17 QR took 165 ms with threads on a busy two-core
@@ -109,12 +115,91 @@ def find_breaks(series, spec: TrendSpec, options: BreakSettings) -> BreakSet:
         if scale == 1.0:
             return _detect(series, spec, options.kind, options.max_breaks, options.trim,
                            options.criterion, options.events, options.seasonal_by_regime,
-                           options.method, options.serial_correlation)
+                           options.method, options.serial_correlation, lean)
         scaled = dataclasses.replace(series, values=series.values / scale)
         found = _detect(scaled, spec, options.kind, options.max_breaks, options.trim,
                         options.criterion, options.events, options.seasonal_by_regime,
-                        options.method, options.serial_correlation)
+                        options.method, options.serial_correlation, lean)
         return _rescaled(found, scale)
+
+
+def find_break_positions(series, spec: TrendSpec, options: BreakSettings) -> tuple[int, ...]:
+    """The break positions ``find_breaks`` gives, without the rest of its result (intervals,
+    tests of each break, CUSUM, segments): what the rolling origin needs at every origin.
+
+    With the sequential rule the tied kinds are searched only as deep as its tests reach (the
+    paths beyond a test that does not reject cannot change any count, kind or position); other
+    settings run ``find_breaks``. The positions are the same (``tests/test_origin_speed.py``
+    compares the two on real series at every origin)."""
+    with _one_blas_thread():
+        scale = _response_scale(series.values) if not spec.log_scale else 1.0
+        if scale != 1.0:  # positions do not change with the scale
+            series = dataclasses.replace(series, values=series.values / scale)
+        return _positions(series, spec, options)
+
+
+def _positions(series, spec, options: BreakSettings) -> tuple[int, ...]:
+    kind, criterion = options.kind, options.criterion
+    robust = options.serial_correlation == "allow"
+    problem, M, _, long_series, kinds = _prepared(series, spec, kind, options.max_breaks,
+                                                  options.trim, options.seasonal_by_regime,
+                                                  options.method)
+    if not _tests_decide(problem, criterion, long_series) or options.events \
+            or options.break_dates:
+        found = _detect(series, spec, kind, options.max_breaks, options.trim, criterion,
+                        options.events, options.seasonal_by_regime, options.method,
+                        options.serial_correlation)
+        return tuple(int(p) for p in found.positions)
+    paths: dict[str, KindPath] = {}
+    if "both" in kinds:
+        paths["both"] = search_both(problem, M, criterion, "exact")
+    first = _first_test(problem, kinds, robust, long_series)
+    if M == 0 or (first is not None and all(first.adjusted[k] >= select.SEQUENTIAL_LEVEL
+                                            for k in kinds)):
+        return ()  # no first test rejects: every kind's count is zero (nothing below raises)
+    values, counts, _ = _as_deep_as_tested(problem, kinds, M, robust, first, paths)
+    multi = kind == "auto" and robust and sum(1 for k in counts if counts[k] > 0) > 1
+    if multi:
+        scores = _quasi_gls_scores(problem, paths, counts)
+        chosen_kind, m = _choose(scores, kinds, counts)
+        chosen_kind, m = _nesting_kind_if_needed(problem, paths, scores, counts, chosen_kind,
+                                                 m, robust)
+    else:
+        chosen_kind, m = _choose(values, kinds, counts)
+    path = paths[chosen_kind]
+    positions = tuple(path.positions[m]) if m < len(path.positions) else ()
+    return tuple(int(p) for p in positions)
+
+
+def _tests_decide(problem: BreakProblem, criterion: str, long_series: bool) -> bool:
+    """The sequential tests decide the count of every kind (their p-values exist): then a tied
+    kind need not be searched deeper than its tests go."""
+    return criterion == "sequential" and not long_series and not problem.seasonal_by_regime
+
+
+def _as_deep_as_tested(problem: BreakProblem, kinds, M: int, robust: bool, first, paths):
+    """(criterion values, counts, sequential steps) per kind, in the order both, level, slope,
+    with the tied kinds' paths (added to ``paths``) searched to one break, and to all ``M``
+    only when the tests reject at every depth searched. The paths beyond a test that does not
+    reject change no count, no kind and no position, so the choice is the full search's."""
+    values, counts, steps_by_kind = {}, {}, {}
+    for k in ("both",) + tuple(k for k in kinds if k != "both"):
+        if k not in kinds:
+            continue
+        depth = min(M, 1)
+        while True:
+            if k != "both":
+                starts = paths["both"].positions if "both" in paths else None
+                paths[k] = search_tied(problem, k, depth, starts)
+            values[k] = _criterion_values(problem, paths[k], "bic")
+            counts[k], steps, _ = _sequential_count(problem, paths[k], values[k], M, robust,
+                                                    first)
+            steps_by_kind[k] = steps
+            last = steps[-1].p_value if steps else None
+            if k == "both" or depth >= M or last is None or not last < select.SEQUENTIAL_LEVEL:
+                break
+            depth = M  # the tests went as deep as the path: search it all
+    return values, counts, steps_by_kind
 
 
 def _response_scale(values) -> float:
@@ -185,9 +270,9 @@ def robust_factor(residuals, enabled: bool = True) -> float:
     return min(1.0, g0 / lrv) if lrv > 0 and g0 > 0 else 1.0
 
 
-def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, method,
-            serial_correlation) -> BreakSet:
-    robust = serial_correlation == "allow"
+def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method):
+    """(problem, M, capped, long series, kinds): the break problem and the number of breaks
+    searched, or an InputError when the series is too short for them."""
     problem = build_problem(series, spec, seasonal_by_regime, trim)
     n, h = problem.n, problem.h
     capped = None
@@ -208,26 +293,40 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
         raise InputError(f"{about('max_breaks')}: {M} breaks with regimes of at least {h} "
                          f"periods need at least {need} periods; the series has {n} (use "
                          f"{setting('max_breaks', most)}{smaller_trim})")
-    event_positions = [_event_position(series, e, h) for e in events]
     long_series = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
     kinds = KINDS if kind == "auto" else (kind,)
+    return problem, M, capped, long_series, kinds
+
+
+def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, method,
+            serial_correlation, lean: bool = False) -> BreakSet:
+    robust = serial_correlation == "allow"
+    problem, M, capped, long_series, kinds = _prepared(series, spec, kind, M, trim,
+                                                       seasonal_by_regime, method)
+    n, h = problem.n, problem.h
+    event_positions = [_event_position(series, e, h) for e in events]
+    lean = lean and _tests_decide(problem, criterion, long_series)
 
     paths: dict[str, KindPath] = {}
     if "both" in kinds or kind == "auto":
         paths["both"] = search_both(problem, M, criterion,
                                     (method if method == "auto" else "pelt") if long_series
                                     else "exact")
-    for k in kinds:
-        if k != "both":
-            starts = paths["both"].positions if "both" in paths else None
-            paths[k] = search_tied(problem, k, M, starts)
+    if not lean:
+        for k in kinds:
+            if k != "both":
+                starts = paths["both"].positions if "both" in paths else None
+                paths[k] = search_tied(problem, k, M, starts)
     score_name = "lwz" if criterion == "lwz" else "bic"
     values = {k: _criterion_values(problem, p, score_name) for k, p in paths.items()}
     first = _first_test(problem, kinds, robust, long_series)
     seq_by_kind: dict[str, list[SequentialStep]] = {}
     seq_fallback = False
     counts = None
-    if criterion == "sequential":
+    if lean:
+        values, counts, seq_by_kind = _as_deep_as_tested(problem, kinds, M, robust, first,
+                                                         paths)
+    elif criterion == "sequential":
         counts = {}
         for k, p in paths.items():
             m_k, steps, fell_back = _sequential_count(problem, p, values[k], M, robust, first)
@@ -318,9 +417,9 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
                        sequential=tuple(seq_steps),
                        chow=tuple(_chow(series, problem, chosen_kind, e, robust)
                                  for e in event_positions),
-                       cusum=_cusums(problem))
+                       cusum=() if lean else _cusums(problem))
     drift = _drift(series, tests.cusum)
-    if not tests.cusum:
+    if not tests.cusum and not lean:
         notes.append("The trend without breaks fits the series exactly: there is no drift and "
                      "nothing for the CUSUM to test.")
     segments = tuple(_segment(series, problem, chosen_kind, positions, j, fit)

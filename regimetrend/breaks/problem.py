@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -90,13 +91,28 @@ class BreakProblem:
         return self.regime_design(kind, positions).columns(seasonal=self.seasonal)
 
     def fit(self, kind: str, positions) -> ols.LeastSquaresFit:
+        """The joint fit with breaks of ``kind`` at ``positions``. One search asks for the same
+        fit many times (the seasonal back-and-forth, the sequential tests, the break
+        descriptions), so each is computed once per problem and kept, read only."""
+        key = (kind, tuple(int(p) for p in positions))
+        found = self._fits.get(key)
+        if found is not None:
+            return found
         X = self.design(kind, positions)
         try:
-            return ols.fit(X, self.y)
+            found = ols.fit(X, self.y)
         except ols.RankDeficient as exc:
             raise InputError(f"the break model with regimes starting at "
                              f"{', '.join(str(p) for p in positions)} cannot be fitted: {exc}; "
                              f"{self.remedy(len(positions))}") from None
+        for a in (found.beta, found.residuals, found.X, found.xtx_inv):
+            a.setflags(write=False)
+        self._fits[key] = found
+        return found
+
+    @cached_property
+    def _fits(self) -> dict:
+        return {}
 
     def remedy(self, m: int) -> str:
         """Which settings to change when a break model's columns are dependent: regimes too

@@ -31,10 +31,13 @@ from .scores import candidate_scores
 __all__ = ["Evaluation", "compare", "evaluate"]
 
 
-def history_breaks(history, spec: TrendSpec, options: BreakSettings):
+_PLAIN_ORIGINS = False  # benchmarks only: the whole break search at every origin (same result)
+
+
+def history_breaks(history, spec: TrendSpec, options: BreakSettings, *, lean: bool = False):
     """The break search on the history known at an origin: the analyst's events are left out
     (they are Chow-tested on the full series only and do not move the breaks) and the number of
-    breaks is capped at what this shorter history can hold."""
+    breaks is capped at what this shorter history can hold. ``lean``: see ``find_breaks``."""
     from ..breaks.detect import find_breaks
     from ..breaks.problem import resolve_trim
 
@@ -46,7 +49,25 @@ def history_breaks(history, spec: TrendSpec, options: BreakSettings):
     by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
     h = resolve_trim(options.trim, history.n, spec, by_regime)
     m = max(0, min(m, history.n // max(h, 1) - 1))
-    return find_breaks(history, spec, dataclasses.replace(options, events=(), max_breaks=m))
+    return find_breaks(history, spec, dataclasses.replace(options, events=(), max_breaks=m),
+                       lean=lean)
+
+
+def history_positions(history, spec: TrendSpec, options: BreakSettings) -> tuple[int, ...]:
+    """The positions of ``history_breaks`` (same settings, same cap on the number of breaks),
+    found without the rest of the break result (``breaks.detect.find_break_positions``)."""
+    from ..breaks.detect import find_break_positions
+    from ..breaks.problem import resolve_trim
+
+    if options.break_dates:
+        return breakinfo.positions(history_breaks(history, spec, options))
+    m = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
+    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
+    h = resolve_trim(options.trim, history.n, spec, by_regime)
+    m = max(0, min(m, history.n // max(h, 1) - 1))
+    found = find_break_positions(history, spec,
+                                 dataclasses.replace(options, events=(), max_breaks=m))
+    return tuple(sorted(found))
 
 
 def given_at_origin(full, spec: TrendSpec, options: BreakSettings):
@@ -110,7 +131,9 @@ def _origin_breaks(series, plan, full, spec: TrendSpec, options: BreakSettings,
 
     def search(o):
         try:
-            return breakinfo.positions(history_breaks(series.head(o), spec, options))
+            if _PLAIN_ORIGINS:
+                return breakinfo.positions(history_breaks(series.head(o), spec, options))
+            return history_positions(series.head(o), spec, options)
         except InputError:
             failed.append(o)  # too little history for a search here: no breaks known
             return ()

@@ -117,15 +117,18 @@ def overlap_lags(horizon: int, step: int) -> int:
     return max(0, int(math.ceil(horizon / max(step, 1))) - 1)
 
 
-def compare_errors(e_ref: np.ndarray, e_cand: np.ndarray, step: int) -> tuple[DMResult, list]:
-    """Pooled and per-horizon DM tests on squared-error loss.
+def compare_errors(e_ref: np.ndarray, e_cand: np.ndarray, step: int, per_horizon: bool = True
+                   ) -> tuple[DMResult, list]:
+    """Pooled and per-horizon DM tests on squared-error loss (the pooled test alone, and an
+    empty list, with ``per_horizon=False``: the stability reruns read only that one).
 
     ``e_ref`` and ``e_cand`` are (origins x horizons) arrays of forecast errors."""
     e_ref = np.asarray(e_ref, dtype=float)
     e_cand = np.asarray(e_cand, dtype=float)
     d = e_ref ** 2 - e_cand ** 2
     H = d.shape[1]
-    diffs = [d.mean(axis=1)] + [d[:, j] for j in range(H)]
-    lags = [overlap_lags(H, step)] + [overlap_lags(j + 1, step) for j in range(H)]
+    diffs = [d.mean(axis=1)] + ([d[:, j] for j in range(H)] if per_horizon else [])
+    lags = [overlap_lags(H, step)] + ([overlap_lags(j + 1, step) for j in range(H)]
+                                      if per_horizon else [])
     res = _tests(diffs, lags)
     return res[0], res[1:]

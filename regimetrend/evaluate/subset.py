@@ -49,7 +49,7 @@ def rescored(evaluation, mask: np.ndarray, names=None) -> dict:
         if name == ref_name:
             vs = {"p_value_better": None, "note": "the reference itself"}
         else:
-            pooled, _ = compare_errors(e_ref, table.errors(name)[keep], step)
+            pooled, _ = compare_errors(e_ref, table.errors(name)[keep], step, per_horizon=False)
             vs = pooled.to_dict()
         gain = 1.0 - m["rmse"] / ref_rmse if ref_rmse and ref_rmse > 0 else None
         out[name] = dataclasses.replace(base, metrics=m, per_horizon=(), vs_global=vs,

@@ -6,8 +6,8 @@ a Dask cluster, resumable, with one summary row per series and a triage page.
 ``store`` (per-series result files and resume keys), ``worker`` (a chunk of series -> records,
 on the worker), ``row`` (an analysis flattened into a summary row), ``ranking`` (the triage
 order and its written rule), ``engines`` (local and Dask), ``summary`` (CSV/Parquet/.xlsx),
-``page`` (the self-contained triage page), ``determinism``
-(fixed time stamps in workbooks).
+``page`` (the self-contained triage page); workbook time stamps are fixed by
+``regimetrend.determinism``.
 """
 
 from .runner import RunSummary, run_portfolio

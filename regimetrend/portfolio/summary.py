@@ -13,7 +13,7 @@ import csv
 import io
 
 from ..report.safety import inert_text
-from .determinism import steady_xlsx
+from ..determinism import steady_xlsx
 from .row import COLUMNS
 
 FORMATS = ("csv", "parquet", "xlsx")

@@ -163,7 +163,6 @@ def report_files(analysis) -> dict:
     """The report folder's files as {relative path: bytes}, built by the report writer in a
     private temporary folder (so the worker needs no shared file system)."""
     from ..report import write_report
-    from .determinism import steady_xlsx
 
     tmp = tempfile.mkdtemp(prefix="regimetrend-report-")
     try:
@@ -172,8 +171,7 @@ def report_files(analysis) -> dict:
         for path in sorted(Path(tmp).rglob("*")):
             if path.is_file():
                 rel = path.relative_to(tmp).as_posix()
-                data = path.read_bytes()
-                out[rel] = steady_xlsx(data) if rel.endswith(".xlsx") else data
+                out[rel] = path.read_bytes()  # the report's workbook is steady already
         return out
     finally:
         shutil.rmtree(tmp, ignore_errors=True)

@@ -30,6 +30,7 @@ import re
 from datetime import date
 from pathlib import Path
 
+from ..determinism import steady_xlsx
 from ..errors import InputError
 from ..output import check_targets, dumps
 from ..output_folder import publish_folder
@@ -109,30 +110,7 @@ def workbook_bytes(content: Content) -> bytes:
     wb.properties.creator = "regimetrend"
     buf = io.BytesIO()
     wb.save(buf)
-    return steady_zip(buf.getvalue())
-
-
-FIXED_ZIP_TIME = (1980, 1, 1, 0, 0, 0)  # the earliest time a zip entry can hold
-_STAMPS = re.compile(rb"(<dcterms:(created|modified)[^>]*>)[^<]*(</dcterms:\2>)")
-
-
-def steady_zip(data: bytes) -> bytes:
-    """A workbook (a zip archive) with every time stamp fixed (the entries' and the document
-    properties' creation and modification times), so identical reports are identical bytes."""
-    import zipfile
-
-    src = zipfile.ZipFile(io.BytesIO(data))
-    out = io.BytesIO()
-    with zipfile.ZipFile(out, "w", compression=zipfile.ZIP_DEFLATED) as dst:
-        for info in src.infolist():
-            body = src.read(info.filename)
-            if info.filename == "docProps/core.xml":
-                body = _STAMPS.sub(rb"\g<1>1980-01-01T00:00:00Z\g<3>", body)
-            entry = zipfile.ZipInfo(info.filename, date_time=FIXED_ZIP_TIME)
-            entry.compress_type = zipfile.ZIP_DEFLATED
-            entry.external_attr = 0o644 << 16
-            dst.writestr(entry, body)
-    return out.getvalue()
+    return steady_xlsx(buf.getvalue())
 
 
 def report_json(data, content: Content, files: list[str],

@@ -1,8 +1,9 @@
-"""Byte-identical files: the same content gives the same bytes on every run.
+"""Byte-identical workbooks: the same content gives the same bytes on every run.
 
 A workbook (.xlsx) is a zip archive whose entries carry the time they were written, and whose
 document properties carry the creation and modification times; both are set to one fixed
-moment here, so a rerun, another engine or another worker count writes the same bytes.
+moment here, so a rerun, another engine or another worker count writes the same bytes. The
+report's workbook and the portfolio's summary workbook both pass through ``steady_xlsx``.
 """
 
 from __future__ import annotations
@@ -27,6 +28,6 @@ def steady_xlsx(data: bytes) -> bytes:
                 body = _STAMPS.sub(rb"\g<1>" + FIXED_STAMP.encode() + rb"\g<3>", body)
             entry = zipfile.ZipInfo(info.filename, date_time=FIXED_ZIP_TIME)
             entry.compress_type = zipfile.ZIP_DEFLATED
-            entry.external_attr = 0o600 << 16
+            entry.external_attr = 0o644 << 16
             dst.writestr(entry, body)
     return out.getvalue()

@@ -1,0 +1,98 @@
+"""Benchmark: the cost of one whole analysis and of one scan, on one core, BLAS held to one thread.
+
+The demo series (120 monthly points, invented data) is analysed with the default settings
+(``analyze``: every shape's full-sample break search, the rolling origin with the breaks found
+again at each origin, the verdict's stability reruns), the work ``report`` does before it
+renders. Goals: whole analysis <= 150 ms, scan (``detect_breaks``) <= 15 ms, CPU time
+(``time.process_time``), best of several runs.
+
+Printed, all measured in this run:
+
+- warm: the simulated null of the first break test already kept for these designs
+  (``breaks.calibrate.NullCache``), as for every series after the first in a portfolio of
+  series of the same length, shape and seasons;
+- cold: that cache emptied before each run (a single series in a fresh process);
+- baseline: the plain path kept behind a private switch (``evaluate._PLAIN_ORIGINS``: the
+  whole break search at every origin) with the cache emptied, and the yardstick of one plain
+  least-squares fit of the global trend, so the figures can be compared across machines.
+
+Run: ``python benchmarks/bench_one_analysis.py [--repeats N]``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import time
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
+
+import numpy as np  # noqa: E402
+import scipy.linalg  # noqa: E402,F401  (loads scipy's BLAS before the limit is set)
+from threadpoolctl import threadpool_limits  # noqa: E402
+
+import regimetrend.evaluate as evaluation  # noqa: E402
+from regimetrend import analyze, demo_path, load_series  # noqa: E402
+from regimetrend.breaks import calibrate, detect_breaks  # noqa: E402
+from regimetrend.forecast import fit_history  # noqa: E402
+from regimetrend.settings import Settings  # noqa: E402
+
+GOAL_ANALYSIS_MS, GOAL_SCAN_MS = 150.0, 15.0
+
+
+def best_ms(fn, repeats: int, before=None) -> float:
+    """Least CPU milliseconds of ``repeats`` calls (``before`` runs untimed before each)."""
+    out = np.inf
+    for _ in range(repeats):
+        if before is not None:
+            before()
+        c0 = time.process_time()
+        fn()
+        out = min(out, time.process_time() - c0)
+    return 1000.0 * out
+
+
+def plain(fn):
+    def run():
+        evaluation._PLAIN_ORIGINS = True
+        try:
+            return fn()
+        finally:
+            evaluation._PLAIN_ORIGINS = False
+    return run
+
+
+def main(repeats: int) -> None:
+    series = load_series(str(demo_path()))
+    spec = Settings().spec_for(series)
+    whole = lambda: analyze(series)  # noqa: E731
+    scan = lambda: detect_breaks(series)  # noqa: E731
+    yardstick = lambda: fit_history(series, spec)  # noqa: E731
+    same = plain(whole)().to_dict() == whole().to_dict()
+    with threadpool_limits(limits=1):
+        fit_ms = best_ms(yardstick, 20 * repeats)
+        base = best_ms(plain(whole), max(2, repeats // 2), calibrate.NULLS.clear)
+        cold = best_ms(whole, repeats, calibrate.NULLS.clear)
+        warm = best_ms(whole, repeats)
+        scan_cold = best_ms(scan, 3 * repeats, calibrate.NULLS.clear)
+        scan_warm = best_ms(scan, 3 * repeats)
+    print(f"one analysis of the demo series ({series.n} monthly points), default settings, "
+          f"one core, BLAS held to one thread; CPU ms, best of {repeats}")
+    print(f"  yardstick: one least-squares fit of the global trend   {fit_ms:8.2f} ms")
+    print(f"  baseline (plain path: whole search at every origin, cold) {base:8.1f} ms  "
+          f"({base / fit_ms:.0f} fits)")
+    for label, ms in (("whole analysis, cold", cold), ("whole analysis, warm", warm)):
+        print(f"  {label:<50} {ms:8.1f} ms  ({ms / fit_ms:.0f} fits; baseline / this "
+              f"{base / ms:.2f}x; goal <= {GOAL_ANALYSIS_MS:.0f} ms: {ms / GOAL_ANALYSIS_MS:.2f}x "
+              f"the goal)")
+    for label, ms in (("scan (detect_breaks), cold", scan_cold), ("scan, warm", scan_warm)):
+        print(f"  {label:<50} {ms:8.1f} ms  (goal <= {GOAL_SCAN_MS:.0f} ms: "
+              f"{ms / GOAL_SCAN_MS:.2f}x the goal)")
+    print(f"  same result as the plain path: {'yes' if same else 'NO'}")
+
+
+if __name__ == "__main__":
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--repeats", type=int, default=5)
+    main(parser.parse_args().repeats)

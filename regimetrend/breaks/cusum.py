@@ -118,7 +118,7 @@ def recursive_residuals(y, X, block: int = 1024) -> tuple[np.ndarray, int]:
     n, k = X.shape
     norms = np.linalg.norm(X, axis=0)
     Xs = X / np.where(norms > 0, norms, 1.0)
-    top = np.linalg.qr(np.column_stack([Xs[:r0], y[:r0]]), mode="r")
+    top = np.asarray(np.linalg.qr(np.column_stack([Xs[:r0], y[:r0]]), mode="r"))
     R, z = top[:k, :k], top[:k, k]
     w = np.empty(n - r0)
     eye = np.eye(k)
@@ -140,8 +140,8 @@ def recursive_residuals(y, X, block: int = 1024) -> tuple[np.ndarray, int]:
         pred = np.einsum("ri,ri->r", Xt, sol[:, :, 0])
         lev = np.einsum("ri,ri->r", Xt, sol[:, :, 1])
         w[s - r0:e - r0] = (yb - pred) / np.sqrt(1.0 + lev)
-        top = np.linalg.qr(np.vstack([np.column_stack([R, z]), np.column_stack([Xb, yb])]),
-                           mode="r")
+        top = np.asarray(np.linalg.qr(np.vstack([np.column_stack([R, z]),
+                                                 np.column_stack([Xb, yb])]), mode="r"))
         R, z = top[:k, :k], top[:k, k]
         s = e
     return w, r0

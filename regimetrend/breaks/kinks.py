@@ -191,9 +191,9 @@ class OneBreakScan:
         for i in range(kw):
             for j in range(i, kw):
                 p = terms[i][1] + terms[j][1]
-                S = self._pair_sums(i, j, p, suffix)
-                if S is not None:
-                    A[:, i, j] = A[:, j, i] = self._expand(S, p, beta, cand)
+                pair = self._pair_sums(i, j, p, suffix)
+                if pair is not None:
+                    A[:, i, j] = A[:, j, i] = self._expand(pair, p, beta, cand)
         return r, QW, A
 
     def cross(self, b1: np.ndarray, b2: np.ndarray, pre1: np.ndarray, pre2: np.ndarray

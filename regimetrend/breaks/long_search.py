@@ -40,7 +40,7 @@ class GivenCost(BaseCost):
     def __init__(self, cost: SegmentCost, min_size: int):
         self.segment_cost = cost
         self.min_size = int(min_size)
-        self.signal = None
+        self.signal: np.ndarray | None = None
 
     def fit(self, signal) -> "GivenCost":
         self.signal = np.asarray(signal, dtype=float).reshape(self.segment_cost.n, -1)

@@ -40,6 +40,10 @@ import numpy as np
 from ..regime_design import break_powers
 
 GRID_LENGTH = 1500  # exact two-break grid up to this length
+# From this length on, a scan sums the power terms over its own stretch of candidates only
+# (the rest of the series enters as one total), instead of over the whole series twice: the
+# same sums in another order (equal to about 1e-13), about half the work and memory.
+WINDOW_LENGTH = 20_000
 MAX_SWEEPS = 20
 
 
@@ -87,7 +91,8 @@ class OneBreakScan:
     without changing the column space; breaks in the first half use those short prefixes.
     """
 
-    def __init__(self, y: np.ndarray, fixed: np.ndarray, terms, complete: bool = True):
+    def __init__(self, y: np.ndarray, fixed: np.ndarray, terms, complete: bool = True,
+                 pair_memo: dict | None = None):
         self.y = y = np.asarray(y, dtype=float)
         self.n = n = len(y)
         self.terms = terms
@@ -97,7 +102,9 @@ class OneBreakScan:
         self.ssr0 = float(self.e @ self.e)
         self.Q = Q
         self.t = np.arange(n, dtype=float)
-        self._pair_memo: dict = {}
+        # The sums of products of break columns depend on n and the terms only, so scans of
+        # one search may share them (``pair_memo``).
+        self._pair_memo: dict = pair_memo if pair_memo is not None else {}
 
     def _pair_sums(self, i: int, j: int, qmax: int, suffix: bool) -> np.ndarray | None:
         """``_sums`` of h_i h_j (term multipliers; None = all ones), once per scan: the
@@ -128,6 +135,25 @@ class OneBreakScan:
             out = np.concatenate([np.zeros_like(prod[:, :1, :]),
                                   np.cumsum(prod, axis=1)[:, :-1, :]], axis=1)
         return np.moveaxis(out, 1, -1)  # (q, m, n)
+
+    def _window_sums(self, w: np.ndarray, qmax: int, suffix: bool, lo: int, hi: int
+                     ) -> np.ndarray:
+        """``_sums`` for b = lo..hi only, S[q, m, b - lo]: the stretch cumulated, the rest of
+        the series (after hi for suffixes, before lo for prefixes) added as one total."""
+        w = w if w.ndim == 2 else w[:, None]
+        x = self.t - (self.n - 1) if suffix else self.t
+        qs = np.arange(qmax + 1)
+        seg = slice(lo, hi + 1)
+        prod = x[seg][None, :, None] ** qs[:, None, None] * w[None, seg, :]
+        if suffix:
+            rest = slice(hi + 1, self.n)
+            out = np.cumsum(prod[:, ::-1, :], axis=1)[:, ::-1, :]
+        else:
+            rest = slice(0, lo)
+            out = np.concatenate([np.zeros_like(prod[:, :1, :]),
+                                  np.cumsum(prod, axis=1)[:, :-1, :]], axis=1)
+        out += ((x[rest][None, :] ** qs[:, None]) @ w[rest])[:, None, :]
+        return np.moveaxis(out, 1, -1)  # (q, m, hi - lo + 1)
 
     def _nonzero_pairs(self, suffix: bool) -> list:
         """Term pairs whose product is not zero everywhere, grouped by their powers:
@@ -183,10 +209,15 @@ class OneBreakScan:
         kw = len(terms)
         r = np.empty((cand.size, kw))
         QW = np.empty((cand.size, Q.shape[1], kw))
+        windowed = n >= WINDOW_LENGTH and cand.size > 0
+        lo = int(cand.min()) if windowed else 0
+        at = cand - lo
         for j, (_h, p) in enumerate(terms):
-            S = self._sums(np.column_stack([hs[j] * self.e, Q * hs[j][:, None]]), p, suffix)
-            r[:, j] = self._expand(S[:, 0, :], p, beta, cand)
-            QW[:, :, j] = self._expand(S[:, 1:, :], p, beta[None, :], cand).T
+            cols = np.column_stack([hs[j] * self.e, Q * hs[j][:, None]])
+            S = (self._window_sums(cols, p, suffix, lo, int(cand.max())) if windowed
+                 else self._sums(cols, p, suffix))
+            r[:, j] = self._expand(S[:, 0, :], p, beta, at)
+            QW[:, :, j] = self._expand(S[:, 1:, :], p, beta[None, :], at).T
         A = np.zeros((cand.size, kw, kw))
         for i in range(kw):
             for j in range(i, kw):
@@ -297,11 +328,12 @@ def _admissible(lo: int, hi: int) -> np.ndarray:
     return np.arange(lo, hi + 1) if hi >= lo else np.zeros(0, dtype=np.intp)
 
 
-def best_single(y, Z, terms, lo: int, hi: int, others=()) -> tuple[int | None, float, np.ndarray,
-                                                                     np.ndarray]:
-    """Best position in [lo, hi] for one break with ``others`` fixed: (b, ssr, cands, profile)."""
+def best_single(y, Z, terms, lo: int, hi: int, others=(), pair_memo: dict | None = None
+                ) -> tuple[int | None, float, np.ndarray, np.ndarray]:
+    """Best position in [lo, hi] for one break with ``others`` fixed: (b, ssr, cands, profile).
+    ``pair_memo``: sums of break-column products shared by scans of the same n and terms."""
     fixed = design_with_breaks(Z, sorted(others), terms)
-    scan = OneBreakScan(y, fixed, terms)
+    scan = OneBreakScan(y, fixed, terms, pair_memo=pair_memo)
     cand = _admissible(lo, hi)
     if cand.size == 0:
         return None, scan.ssr0, cand, np.zeros(0)
@@ -323,11 +355,12 @@ class ScanMemo:
     def __init__(self, y, Z, terms):
         self.y, self.Z, self.terms = y, Z, terms
         self.memo: dict = {}
+        self.pair_memo: dict = {}  # shared by every scan of this memo (``OneBreakScan``)
 
     def best(self, lo: int, hi: int, others) -> tuple[int | None, float]:
         key = (lo, hi, tuple(sorted(others)))
         if key not in self.memo:
-            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2])
+            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2], self.pair_memo)
             self.memo[key] = (b, s)
         return self.memo[key]
 

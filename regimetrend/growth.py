@@ -14,8 +14,11 @@ The seasonal terms (when asked for) are shared by all regimes, or change at each
 the breaks were searched with seasonal terms per regime.
 
 Every figure is a smooth function of the coefficients, so its standard error comes from the
-Newey-West (HAC) covariance of the coefficients and the delta method (gradients carried exactly
-by forward-mode differentiation below). Intervals are value +/- 1.96 standard errors, except for
+autocorrelation-robust covariance of the coefficients (by default the HAC with AR(1)
+prewhitening and a data-driven bandwidth, ``ols.cov_hac_prewhitened``; Newey-West with a fixed
+number of lags when ``lags`` is given; ``GrowthTable.covariance`` says which) and the delta
+method (gradients carried exactly by forward-mode differentiation below). Intervals are value
++/- a t quantile times the standard error, except for
 figures that are monotone maps of a single log-growth coefficient (the exponential shape's
 growth rates and doubling time): those carry the interval of that coefficient through the map,
 which keeps them inside their natural bounds (never below -100%).
@@ -52,6 +55,7 @@ from collections.abc import Sequence
 import numpy as np
 from scipy import stats
 
+from . import growth_figures as gf
 from . import ols
 from .design import TrendSpec
 from .errors import InputError, about
@@ -190,9 +194,9 @@ class GrowthChange:
 
     def to_dict(self) -> dict:
         return {"break": self.break_index, "date": self.date, "label": self.label,
-                "annualised_pct_change": _clean(self.annualised_pct_change.value),
-                "annualised_pct_change_se": _clean(self.annualised_pct_change.se),
-                "annualised_pct_change_ci95": [_clean(self.annualised_pct_change.lower),
+                gf.CHANGE_PCT: _clean(self.annualised_pct_change.value),
+                gf.se(gf.CHANGE_PCT): _clean(self.annualised_pct_change.se),
+                gf.ci95(gf.CHANGE_PCT): [_clean(self.annualised_pct_change.lower),
                                                _clean(self.annualised_pct_change.upper)],
                 "wald": _clean(self.wald), "df": self.df, "p_value": _clean(self.p_value),
                 "test": "Wald test of the annualised % change (1 df), the same covariance as "
@@ -217,7 +221,7 @@ class GrowthTable:
     kind: str
     periods_per_year: float
     frequency: str
-    hac_lags: int
+    hac_lags: int  # Newey-West lags when asked for (``lags``); the rule's lag otherwise
     regimes: tuple[RegimeGrowth, ...]
     changes: tuple[GrowthChange, ...]
     headline: str  # which figure is the headline annualised growth, in words
@@ -225,6 +229,7 @@ class GrowthTable:
     trend: np.ndarray = field(default_factory=lambda: np.zeros(0))
     ssr: float | None = None
     seasonal_by_regime: bool = False
+    covariance: str = ""  # the covariance computed, in words (``covariance_words``)
 
     @property
     def last(self) -> RegimeGrowth:
@@ -241,8 +246,7 @@ class GrowthTable:
                 "spec": self.spec.to_dict(), "frequency": self.frequency,
                 "seasonal_by_regime": self.seasonal_by_regime,
                 "periods_per_year": self.periods_per_year,
-                "covariance": f"Newey-West HAC, Bartlett kernel, {self.hac_lags} lags, "
-                              f"small-sample factor n/(n-k)",
+                "covariance": self.covariance,
                 "intervals": "95%, delta method" + (
                     "; exponential growth rates and doubling time carry the interval of the "
                     "log-growth coefficient through the monotone map"
@@ -301,6 +305,19 @@ class _Model:
     lags: int
     fitted: np.ndarray  # in-sample fitted values, original units
     ssr: float | None = None  # joint fit's SSR on the model scale (None for separate fits)
+    covariance: str = ""  # what was computed, in words (``covariance_words``)
+
+
+def covariance_words(lags: int | None) -> str:
+    """The coefficient covariance behind every interval and test, as computed: the prewhitened
+    HAC (``ols.cov_hac_prewhitened``, the default) or Newey-West with the ``lags`` asked for
+    (``ols.cov_hac``)."""
+    if lags is None:
+        return ("HAC with AR(1) prewhitening (Andrews and Monahan, 1992), Bartlett kernel with "
+                "Andrews' (1991) data-driven bandwidth, small-sample factor n/(n-k), "
+                "t quantiles")
+    return (f"Newey-West HAC, Bartlett kernel, {lags} lags (as asked), small-sample factor "
+            f"n/(n-k), t quantiles")
 
 
 def _check_breaks(n: int, breaks: Sequence[int], spec: TrendSpec, kind: str) -> list[int]:
@@ -334,10 +351,11 @@ def _fit_joint(series: Series, spec: TrendSpec, breaks: list[int], kind: str,
         raise InputError(f"the regime model cannot be fitted as a {spec.describe()}: {exc}") from None
     L = ols.newey_west_lags(n) if lags is None else int(lags)
     cov = res.cov_hac(L, small_sample=True) if lags is not None else res.cov_hac_prewhitened()
+    words = covariance_words(None if lags is None else L)
     fitted = response.y - res.residuals + response.seasonal_offset()
     fitted = np.exp(fitted) if spec.log_scale else fitted
     regimes = tuple(_RegimeTrend(p.start, p.end, p.center, p.spread, p.A) for p in design.pieces)
-    return _Model(res.beta, cov, regimes, L, fitted, res.ssr)
+    return _Model(res.beta, cov, regimes, L, fitted, res.ssr, words)
 
 
 def _model_from_fits(fits) -> _Model:
@@ -363,15 +381,13 @@ def _model_from_fits(fits) -> _Model:
         cov[o:o + len(c), o:o + len(c)] = c
         o += len(c)
     fitted = np.concatenate([f.fitted() for f in fits])
-    return _Model(np.concatenate(betas), cov, tuple(regimes), max(lags), fitted)
+    words = covariance_words(None) + "; each regime fitted on its own, so the change across a " \
+        "break uses the sum of the two regimes' covariances"
+    return _Model(np.concatenate(betas), cov, tuple(regimes), max(lags), fitted, None, words)
 
 
 # ---------------------------------------------------------------------------------------------
 # figures
-
-
-def _z(level: float) -> float:
-    return float(stats.norm.ppf(0.5 + level / 2.0))
 
 
 def _delta(d: _Dual, cov: np.ndarray, z: float) -> Estimate:
@@ -412,7 +428,7 @@ def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z:
     f0, f1 = rt.level(beta, t0), rt.level(beta, t1)
     if spec.log_scale:
         b = rt.slope(beta, t1)  # log growth per period (constant within the regime)
-        figures["log_growth_per_period"] = _delta(b, cov, z)
+        figures[gf.LOG_GROWTH_PER_PERIOD] = _delta(b, cov, z)
 
         def per_period(x):
             return (x.exp() - 1.0) * 100.0 if isinstance(x, _Dual) else (math.exp(x) - 1) * 100
@@ -421,17 +437,17 @@ def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z:
             return ((x * ppy).exp() - 1.0) * 100.0 if isinstance(x, _Dual) else \
                 (math.exp(x * ppy) - 1) * 100
 
-        figures["per_period_pct"] = _mapped(b, per_period, cov, z)
-        figures["annualised_pct"] = _mapped(b, annual, cov, z)
+        figures[gf.PER_PERIOD_PCT] = _mapped(b, per_period, cov, z)
+        figures[gf.ANNUALISED_PCT] = _mapped(b, annual, cov, z)
         level_end, level_start = f1.exp(), f0.exp()
-        figures["level_start"] = _delta(level_start, cov, z)
-        figures["level_end"] = _delta(level_end, cov, z)
-        figures["per_period_units"] = _delta(level_end * (b.exp() - 1.0), cov, z)
-        figures["annualised_units"] = _delta(level_end * ((b * ppy).exp() - 1.0), cov, z)
+        figures[gf.LEVEL_START] = _delta(level_start, cov, z)
+        figures[gf.LEVEL_END] = _delta(level_end, cov, z)
+        figures[gf.PER_PERIOD_UNITS] = _delta(level_end * (b.exp() - 1.0), cov, z)
+        figures[gf.ANNUALISED_UNITS] = _delta(level_end * ((b * ppy).exp() - 1.0), cov, z)
         if b.value > 0:
             se_b = math.sqrt(max(float(b.grad @ cov @ b.grad), 0.0))
             lo_b, hi_b = b.value - z * se_b, b.value + z * se_b
-            for name, scale in (("doubling_time_periods", 1.0), ("doubling_time_years", ppy)):
+            for name, scale in ((gf.DOUBLING_TIME_PERIODS, 1.0), (gf.DOUBLING_TIME_YEARS, ppy)):
                 d = math.log(2.0) / (b * scale)
                 se = math.sqrt(max(float(d.grad @ cov @ d.grad), 0.0))
                 upper = math.log(2.0) / (lo_b * scale) if lo_b > 0 else None
@@ -442,44 +458,44 @@ def _regime_figures(rt: _RegimeTrend, beta, cov, spec: TrendSpec, ppy: float, z:
         else:
             notes.append("the trend is not growing, so it has no doubling time")
         return figures, notes
-    figures["level_start"] = _delta(f0, cov, z)
-    figures["level_end"] = _delta(f1, cov, z)
+    figures[gf.LEVEL_START] = _delta(f0, cov, z)
+    figures[gf.LEVEL_END] = _delta(f1, cov, z)
     slope_end = rt.slope(beta, t1)
-    figures["per_period_units"] = _delta(slope_end, cov, z)
-    figures["annualised_units"] = _delta(slope_end * ppy, cov, z)
+    figures[gf.PER_PERIOD_UNITS] = _delta(slope_end, cov, z)
+    figures[gf.ANNUALISED_UNITS] = _delta(slope_end * ppy, cov, z)
     pct = _ratio_pct(slope_end, f1, cov, z)
     if pct is None:
         notes.append("the fitted level at the regime's end is not positive, so growth in % is "
                      "undefined")
     else:
-        figures["per_period_pct"] = pct
-        figures["annualised_pct"] = _ratio_pct(slope_end * ppy, f1, cov, z)
+        figures[gf.PER_PERIOD_PCT] = pct
+        figures[gf.ANNUALISED_PCT] = _ratio_pct(slope_end * ppy, f1, cov, z)
     if spec.shape == "linear":
         start_pct = _ratio_pct(slope_end * ppy, f0, cov, z)
         if start_pct is not None:
-            figures["annualised_pct_of_start"] = start_pct
+            figures[gf.ANNUALISED_PCT_OF_START] = start_pct
         if pct is not None:
-            figures["annualised_pct_of_end"] = figures["annualised_pct"]
+            figures[gf.ANNUALISED_PCT_OF_END] = figures[gf.ANNUALISED_PCT]
         compound = _line_compound(f0, f1, t1 - t0, ppy, cov, z)
         if compound is not None:
-            figures["annualised_pct"] = compound
+            figures[gf.ANNUALISED_PCT] = compound
         elif pct is not None:
-            del figures["annualised_pct"]
+            del figures[gf.ANNUALISED_PCT]
             notes.append("the fitted line is not positive at both ends of the regime, so its "
                          "compound growth in % is undefined")
         return figures, notes
     # quadratic: growth at the end (above) and the average over the regime
     span = t1 - t0
     avg = (f1 - f0) / span
-    figures["average_per_period_units"] = _delta(avg, cov, z)
-    figures["average_annualised_units"] = _delta(avg * ppy, cov, z)
+    figures[gf.AVERAGE_PER_PERIOD_UNITS] = _delta(avg, cov, z)
+    figures[gf.AVERAGE_ANNUALISED_UNITS] = _delta(avg * ppy, cov, z)
     if f0.value > 0 and f1.value > 0:
         cagr = (((f1 / f0).log() * (ppy / span)).exp() - 1.0) * 100.0
-        figures["average_annualised_pct"] = _delta(cagr, cov, z)
+        figures[gf.AVERAGE_ANNUALISED_PCT] = _delta(cagr, cov, z)
     else:
         notes.append("the fitted level is not positive at both ends of the regime, so the "
                      "average growth in % is undefined")
-    figures["curvature_per_period"] = _delta(rt.curvature(beta), cov, z)
+    figures[gf.CURVATURE_PER_PERIOD] = _delta(rt.curvature(beta), cov, z)
     return figures, notes
 
 
@@ -579,7 +595,8 @@ def _table(series: Series, spec: TrendSpec, kind: str, model: _Model, level: flo
                                     wald, 1, p, note, slope_wald, slope_df, slope_p))
     return GrowthTable(series.name, spec, kind, ppy, series.frequency.name, model.lags,
                        tuple(regimes), tuple(changes), _headline_words(spec), model.fitted,
-                       _trend_line(model, spec), model.ssr, seasonal_by_regime)
+                       _trend_line(model, spec), model.ssr, seasonal_by_regime,
+                       model.covariance)
 
 
 def _trend_line(model: _Model, spec: TrendSpec) -> np.ndarray:
@@ -605,8 +622,8 @@ def regime_growth(series: Series, spec: TrendSpec, breaks: Sequence[int] = (), *
 
     ``breaks`` are positions of the first period of each new regime. ``kind`` says what a break
     may change (``both``, ``slope``, ``level``); ``seasonal_by_regime`` lets the seasonal
-    dummies change at each break as well; ``lags`` is the Newey-West truncation lag
-    (``floor(4 (n/100)^(2/9))`` by default).
+    dummies change at each break as well; ``lags`` asks for Newey-West with that truncation
+    lag instead of the default prewhitened HAC (``covariance_words``).
     """
     if kind not in KINDS:
         raise InputError(f"{about('kind')}: {kind!r} is not one of {', '.join(KINDS)}")

@@ -68,12 +68,15 @@ def check_targets(paths, what: str = "output") -> None:
                              f"overwrites; choose another name")
 
 
-def write_atomic(path, data, what: str = "output", make_folders: bool = True) -> Path:
+def write_atomic(path, data, what: str = "output", make_folders: bool = True,
+                 sweep: bool = True) -> Path:
     """Write text or bytes to ``path`` through a temporary file renamed into place.
 
     Refuses folders and protected inputs (see ``protecting``); with ``make_folders`` False the
     target's folder must exist already (for file names the user typed). Problems writing are
-    reported as ``InputError`` naming ``what`` (an option such as ``--errors``)."""
+    reported as ``InputError`` naming ``what`` (an option such as ``--errors``). ``sweep``
+    False: the caller already removed a killed run's temporaries from the folder once (the
+    portfolio's thousands of result files in one folder: a sweep per write scans them all)."""
     path = Path(path)
     check_targets([path], what)
     if not path.parent.is_dir():
@@ -87,7 +90,8 @@ def write_atomic(path, data, what: str = "output", make_folders: bool = True) ->
     mode = "wb" if isinstance(data, (bytes, bytearray)) else "w"
     from .output_folder import remove_orphans, temp_prefix
 
-    remove_orphans(path.parent, {Path(path.name)})  # left by a run that was killed
+    if sweep:
+        remove_orphans(path.parent, {Path(path.name)})  # left by a run that was killed
     try:
         fd, tmp = tempfile.mkstemp(prefix=temp_prefix(path.name), dir=path.parent)
     except OSError as exc:

@@ -11,6 +11,7 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING
 
+from . import growth_figures as gf
 from . import numformat, words
 
 if TYPE_CHECKING:
@@ -49,7 +50,7 @@ def _label(series: Series | None, position: int, iso: str) -> str:
 
 
 def _interval(g: dict, key: str) -> str:
-    lo, hi = g.get(key + "_ci95") or (None, None)
+    lo, hi = g.get(gf.ci95(key)) or (None, None)
     return numformat.interval(lo, hi, numformat.percent, missing="-")
 
 
@@ -58,6 +59,27 @@ def _slope_text(x, log: bool) -> str:
     if log and x.slope_change_pct is not None:
         return f"{numformat.points(x.slope_change_pct, '-')} pp/period"
     return f"{numformat.signed(x.slope_change, '-')}/period"
+
+
+def kind_note(kind: str, log: bool) -> str | None:
+    """What a break of ``kind`` leaves unchanged, said once under the break table."""
+    if kind == "level":
+        shared = "growth rate" if log else "slope (growth in units a period)"
+        return (f"level-only breaks: the level shifts at each break and all regimes share one "
+                f"{shared}, so no growth change is shown")
+    if kind == "slope":
+        return ("slope-only breaks: the trend bends at each break without a jump, so no level "
+                "shift is shown")
+    return None
+
+
+def _change_columns(kind: str, log: bool):
+    """The headings and cells of what a break of ``kind`` changes: the level shift (in units)
+    and the growth change; a level-only break changes no growth, a slope-only one no level."""
+    shift = ("level shift (units)", lambda x: numformat.signed(x.jump, "-"))
+    growth = ("growth change", lambda x: _slope_text(x, log))
+    parts = [shift] if kind == "level" else [growth] if kind == "slope" else [shift, growth]
+    return [h for h, _ in parts], (lambda x: [f(x) for _, f in parts])
 
 
 def series_line(series: Series) -> str:
@@ -76,26 +98,25 @@ def breaks_text(b: BreakSet, series: Series | None = None,
            else f"number chosen by {b.criterion}")
     lines += [f"model: {spec.describe()}; breaks of kind '{b.kind}' (asked: {b.kind_requested}); "
               f"{how}; shortest regime {b.trim_periods} periods", ""]
+    heads, cells = _change_columns(b.kind, log)
     if b.breaks and b.given:
-        rows = [[x.label, numformat.signed(x.jump, "-"), _slope_text(x, log),
-                 numformat.statistic(x.f_statistic, "-"), words.p_phrase(x.p_value)]
-                for x in b.breaks]
+        rows = [[x.label, *cells(x), numformat.statistic(x.f_statistic, "-"),
+                 words.p_phrase(x.p_value)] for x in b.breaks]
         lines.append(f"breaks given by the analyst: {len(b.breaks)} (each is the first period "
                      f"of a new regime; dates not estimated, so no date interval applies)")
-        lines.append(table(["break", "jump (units)", "growth change",
-                            "F, given the others", "p"], rows))
+        lines.append(table(["break", *heads, "F, given the others", "p"], rows))
     elif b.breaks:
         rows = []
         for x in b.breaks:
             lo90, hi90 = (_label(series, p, d) for p, d in zip(x.ci90, x.ci90_dates))
             lo95, hi95 = (_label(series, p, d) for p, d in zip(x.ci95, x.ci95_dates))
-            rows.append([x.label, f"{lo90} to {hi90}", f"{lo95} to {hi95}",
-                         numformat.signed(x.jump, "-"), _slope_text(x, log),
+            rows.append([x.label, f"{lo90} to {hi90}", f"{lo95} to {hi95}", *cells(x),
                          numformat.statistic(x.f_statistic, "-")])
         lines.append(f"breaks found: {len(b.breaks)} (each is the first period of a new regime)")
-        lines.append(table(["break", "90% interval", "95% interval", "jump (units)",
-                            "growth change", "F"], rows))
-    else:
+        lines.append(table(["break", "90% interval", "95% interval", *heads, "F"], rows))
+    if b.breaks and kind_note(b.kind, log):
+        lines.append(str(kind_note(b.kind, log)))
+    if not b.breaks:
         lines.append("breaks found: none")
     t = b.tests
     if t is not None:
@@ -140,14 +161,14 @@ def breaks_text(b: BreakSet, series: Series | None = None,
         gr = gs.get("growth", {})
         step_text = (numformat.percent(s.growth_pct, sign=True) if s.growth_pct is not None
                      else numformat.signed(s.slope, "-"))
-        year = gr.get("annualised_pct")
+        year = gr.get(gf.ANNUALISED_PCT)
         rows.append([f"{s.start_label} to {s.end_label}", str(s.n), fmt(s.level), step_text,
-                     numformat.percent(year, "-", sign=True), _interval(gr, "annualised_pct")])
+                     numformat.percent(year, "-", sign=True), _interval(gr, gf.ANNUALISED_PCT)])
     lines.append(table(["regime", "periods", "trend level at start",
                         "growth per period" if log else "slope per period",
                         "growth a year", "95% interval (%)"], rows))
     for c in g.get("changes", []):
-        ch = c.get("annualised_pct_change")
+        ch = c.get(gf.CHANGE_PCT)
         if ch is not None:
             lines.append(f"  growth change at {c['label']}: {numformat.points(ch)} points a year "
                          f"(95% interval {_interval(c, 'annualised_pct_change')}), Wald "
@@ -172,8 +193,8 @@ def growth_text(g: GrowthTable) -> str:
     for s in d["segments"]:
         gr = s["growth"]
         rows.append([f"{s['start_label']} to {s['end_label']}", str(s["periods"]),
-                     numformat.percent(gr.get("annualised_pct"), "-", sign=True),
-                     _interval(gr, "annualised_pct")])
+                     numformat.percent(gr.get(gf.ANNUALISED_PCT), "-", sign=True),
+                     _interval(gr, gf.ANNUALISED_PCT)])
     lines.append(table(["regime", "periods", "growth a year", "95% interval (%)"], rows))
     for c in d["changes"]:
         lines.append(f"  change at {c['label']}: {numformat.points(c['annualised_pct_change'], '-')} points a "
@@ -215,12 +236,13 @@ def evaluation_text(ev: Evaluation, series: Series | None = None) -> str:
     rows = []
     for c in ev.candidates:
         m, vs = c.metrics, c.vs_global
-        rows.append([c.name, str(c.rank), fmt(m["rmse"]), fmt(m["mae"]),
+        rows.append([c.name, "chosen" if c.name == ev.recommended.name else "", str(c.rank),
+                     fmt(m["rmse"]), fmt(m["mae"]),
                      fmt(m["mape"]) if m["mape"] is not None else "-", fmt(m["mase"]),
                      fmt(m["me"]), _pct(m["coverage80"]), _pct(m["coverage95"]),
                      _pct(c.gain) if c.name != ev.reference else "reference",
                      numformat.pvalue(vs.get("p_value_better"), "-")])
-    lines.append(table(["candidate", "rank", "RMSE", "MAE", "MAPE %", "MASE", "ME",
+    lines.append(table(["candidate", "verdict", "rank by RMSE", "RMSE", "MAE", "MAPE %", "MASE", "ME",
                         "80% cover", "95% cover", "gain vs global", "DM p (better)"], rows))
     if ev.same_as:
         lines.append("not ranked (same forecasts as another candidate): " + "; ".join(

@@ -291,10 +291,27 @@ class OriginFits:
         if spec.seasonality == "adjust":
             first_need = last_need = max(last_need, 2)
         knots = usable_breaks(self.breaks, self.origin, first_need, last_need)
-        if not knots:
-            fit = self.trend(last_shape)
-            self._trends[key] = fit
-            return fit
+        while True:
+            if not knots:
+                fit = self.trend(last_shape)
+                self._trends[key] = fit
+                return fit
+            try:
+                fit = self._joint_fit(spec, layout, knots, last_shape)
+                break
+            except ols.RankDeficient as exc:
+                if spec.seasonality != "dummies":
+                    raise InputError(f"the {layout} {shape} trend cannot be fitted to the "
+                                     f"history up to position {self.origin}: {exc}") from None
+                # Regimes each at most one season long: their trends are confounded with the
+                # shared seasonal pattern (a sawtooth is both); the oldest break goes first.
+                knots = knots[1:]
+        self._trends[key] = fit
+        return fit
+
+    def _joint_fit(self, spec: TrendSpec, layout: str, knots, last_shape: str) -> PiecewiseFit:
+        """The joint fit of the regime design with ``knots`` (``ols.RankDeficient`` when its
+        columns are dependent)."""
         response = self._response(spec)
         design = RegimeDesign(spec, LAYOUTS[layout], knots, self.origin, self.first_season,
                               last_shape=last_shape if layout == "separate" else None)
@@ -304,15 +321,9 @@ class OriginFits:
                              response.pattern,
                              design)
         X = self._joint_design(proto, positions, 0, self.origin)
-        try:
-            result = ols.fit(X, response.y)
-        except ols.RankDeficient as exc:
-            raise InputError(f"the {layout} {shape} trend cannot be fitted to the history up to "
-                             f"position {self.origin}: {exc}") from None
-        fit = PiecewiseFit(spec, positions, self.first_season, scale, result, response.pattern,
-                           design)
-        self._trends[key] = fit
-        return fit
+        result = ols.fit(X, response.y)
+        return PiecewiseFit(spec, positions, self.first_season, scale, result, response.pattern,
+                            design)
 
     def _joint_design(self, fit: PiecewiseFit, positions, start: int, stop: int) -> np.ndarray:
         """Design rows ``start..stop-1`` of a joint fit, cached: linear and exponential pieces

@@ -70,3 +70,12 @@ def significance(p: float | None, level: float = LEVEL) -> str:
         return "not tested"
     return (f"significant at the {level_text(level)} level" if significant(p, level)
             else f"not significant at the {level_text(level)} level")
+
+
+def auto_shape_note(command: str, shape: str, flag: str = "--shape") -> str:
+    """What the automatic shape means for a command that fits one shape (``forecast``,
+    ``scan``): the shape it fitted and why, so an automatic choice is never a silent one."""
+    return (f"shape: {shape}, because {flag} auto lets the verdict choose the shape only in "
+            f"compare and report (from rolling-origin forecasts under every shape); {command} "
+            f"fits one shape and uses the {shape} one, the verdict's reference. Run compare to "
+            f"let the verdict choose, or give {flag} exponential or quadratic.")

@@ -83,3 +83,17 @@ def test_forecast_cautions_speak_only_of_what_it_computed(capsys):
     assert ONE_TREND in cautions
     for text in cautions:
         assert "last regime" not in text and "break near the end" not in text
+
+
+def test_forecast_says_which_shape_auto_fitted_and_why(capsys):
+    # --shape auto (the default) fits the linear shape here, and says so, never silently
+    code, out, _ = run(capsys, "forecast", str(demo_path()), "--horizon", "3")
+    assert code == 0
+    lines = out.splitlines()
+    assert "model: global linear trend" in lines[1]
+    assert lines[2].startswith("shape: linear, because --shape auto") and "compare" in lines[2]
+    code, out, _ = run(capsys, "forecast", str(demo_path()), "--horizon", "3", "--json")
+    assert json.loads(out)["shape_note"].startswith("shape: linear")
+    code, out, _ = run(capsys, "forecast", str(demo_path()), "--horizon", "3", "--shape",
+                       "exponential", "--json")
+    assert json.loads(out)["shape_note"] is None

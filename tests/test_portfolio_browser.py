@@ -27,8 +27,10 @@ CHECK = r"""
   const triage = tables[tables.length - 1];
   const ranks = [...triage.tBodies[0].rows].map(r => r.cells[0].innerText);
   const ids = [...triage.tBodies[0].rows].map(r => r.cells[1].innerText);
+  const why = [...triage.tBodies[0].rows].map(r => r.cells[4].innerText);
   return JSON.stringify({
-    ranks, ids, triage: shown(triage),
+    ranks, ids, why, triage: shown(triage),
+    ticks: [...document.querySelectorAll('figure svg text')].map(t => t.textContent),
     rule: shown(document.querySelector('p.rule')),
     ruleText: document.querySelector('p.rule').innerText,
     charts: [...document.querySelectorAll('figure svg')].map(shown),
@@ -67,5 +69,11 @@ def test_portfolio_page_renders_in_headless_chromium(page, tmp_path):
     assert len(got["charts"]) == 3 and all(got["charts"])  # the three series analysed
     assert got["polylines"] == 6  # values and regime fit in each
     assert got["causes"] >= 2 and "could not be analysed" in got["text"]
+    # each row names the rule's step that placed it; the steps run down the table in order
+    steps = [int(w.split(":")[0]) for w in got["why"]]
+    assert steps == sorted(steps) and steps[-2:] == [4, 4]  # the two bad series last
+    assert all(w.startswith(("1: recent break", "2: CUSUM", "3: sup-F p")) for w in
+               got["why"][:-2])
+    assert not any("e+" in t or "e-" in t for t in got["ticks"])  # no exponents on axes
     requests = [e for e in shown.events if e.get("method") == "Network.requestWillBeSent"]
     assert all(e["params"]["request"]["url"].startswith("file:") for e in requests)

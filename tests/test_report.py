@@ -249,7 +249,7 @@ def test_growth_numbers_in_html_and_csv_match_the_json(demo_report):
         assert row["from"] == seg["start_label"] and row["to"] == seg["end_label"]
 
 
-def test_forecast_and_ranking_tables_match_the_json(demo_report):
+def test_forecast_and_ranking_tables_match_the_json(demo_report, hostile_analysis):
     folder, _ = demo_report
     result = json.loads((folder / "report.json").read_text())
     parsed = _parse((folder / "report.html").read_text())
@@ -279,7 +279,8 @@ def test_forecast_and_ranking_tables_match_the_json(demo_report):
         assert _close_to_shown(r["rmse"], c["metrics"]["rmse"], "num")
         assert r["candidate"] and r["candidate"] != c["name"]  # words, not the key
         assert " before the end" not in r["candidate"]
-    assert sum(r["recommended"] == "yes" for r in ranking) == 1
+    assert [r["Name in report.json"] for r in csv_rows if r["Verdict"] == "chosen"] == [
+        hostile_analysis.verdict.model.name]
 
 
 def test_hostile_names_show_as_text_and_stay_inert_in_spreadsheets(demo_report):

@@ -277,7 +277,7 @@ def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method):
     n, h = problem.n, problem.h
     capped = None
     if M is None:  # default: up to DEFAULT_MAX_BREAKS, as many as the series can hold
-        M = min(DEFAULT_MAX_BREAKS, exact.max_feasible_breaks(n, h))
+        M = min(DEFAULT_MAX_BREAKS, problem.most_breaks())
         capped = M if M < DEFAULT_MAX_BREAKS else None
     if n < max(2 * h, spec.minimum_points()):
         if trim is not None and n < 2 * h:
@@ -293,6 +293,12 @@ def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method):
         raise InputError(f"{about('max_breaks')}: {M} breaks with regimes of at least {h} "
                          f"periods need at least {need} periods; the series has {n} (use "
                          f"{setting('max_breaks', most)}{smaller_trim})")
+    if M > problem.most_breaks():  # n == need, every regime exactly one season or shorter
+        raise InputError(f"{about('max_breaks')}: {M} breaks in {n} periods leave every regime "
+                         f"exactly {h} periods long, and regimes that short cannot be told from "
+                         f"the {problem.spec.season_length}-period seasonal pattern (use "
+                         f"{setting('max_breaks', problem.most_breaks())}, "
+                         f"{setting('seasonality', 'none')} or a longer {option('trim')})")
     long_series = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
     kinds = KINDS if kind == "auto" else (kind,)
     return problem, M, capped, long_series, kinds

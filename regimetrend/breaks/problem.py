@@ -126,6 +126,24 @@ class BreakProblem:
                 f"{self.spec.season_length}-period seasonal pattern: use {', '.join(ways[:-1])} "
                 f"or {ways[-1]}")
 
+    def most_breaks(self) -> int:
+        """Most breaks the joint model can be fitted with. Regimes of at least ``h`` points fit
+        ``n // h - 1`` breaks, but with a shared seasonal pattern and ``h`` at most one season,
+        regimes all exactly ``h`` long (possible when ``h`` divides ``n``) cannot be told from
+        the seasonal pattern: the regime trends then form a sawtooth that repeats every
+        season, which the seasonal dummies also fit (48 monthly points, breaks at 12, 24, 36).
+        One break fewer leaves some regime longer than a season, which settles it."""
+        most = max(self.n // self.h - 1, 0)
+        if self.confounded_regimes() and self.n % self.h == 0:
+            most = max(most - 1, 0)
+        return most
+
+    def confounded_regimes(self) -> bool:
+        """Whether regimes of ``h`` points can be confounded with the shared seasonal pattern
+        (shared seasonal dummies and ``h`` at most one season)."""
+        return (self.seasonal is not None and not self.seasonal_by_regime
+                and self.h <= self.spec.season_length)
+
     def seasonal_part(self, fit: ols.LeastSquaresFit) -> np.ndarray:
         """The shared seasonal component of a joint fit (zero when there is none): the regime
         design puts the shared seasonal columns right after the first regime's trend terms."""

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import InputError
 from . import exact, kinks, long_search, select
 from .costs import SegmentCost
 from .problem import BreakProblem
@@ -52,6 +53,20 @@ def _joint_ssr(problem: BreakProblem, kind: str, positions) -> tuple[float, np.n
     return fit.ssr, problem.seasonal_part(fit)
 
 
+def _candidate_ssr(problem: BreakProblem, positions) -> tuple[float, np.ndarray | None]:
+    """``_joint_ssr`` of a break set the segment search proposed, or (inf, None) when the joint
+    model cannot be fitted there. The segment costs fit each regime on its own, so they cannot
+    see that a shared seasonal pattern and the regime trends are confounded: when every regime
+    is exactly one season long (n = (m + 1) s with trim s), the regime trends' sawtooth is itself
+    a seasonal pattern. Such a break set is no candidate (infinite SSR, never chosen), rather
+    than a failure of the whole analysis."""
+    try:
+        fit = problem.fit("both", positions)  # kept by the problem, like every joint fit
+    except InputError:  # raised by ``fit`` only for dependent columns
+        return np.inf, None
+    return fit.ssr, problem.seasonal_part(fit)
+
+
 def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: str = "auto"
                 ) -> KindPath:
     n, h = problem.n, problem.h
@@ -77,9 +92,9 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
             flags = [True] + [not shared] * (len(sets) - 1)
         ssr, seasons = [], []
         for pos in sets:
-            s, part = _joint_ssr(problem, "both", pos)
+            s, part = _candidate_ssr(problem, pos) if pos else _joint_ssr(problem, "both", pos)
             ssr.append(s)
-            seasons.append(part)
+            seasons.append(season if part is None else part)  # inf SSR: never picked
         floor = select.exact_fit_floor(problem.y)
         if use_pelt:
             values = [select.bic(max(s, floor), n, select.parameter_count(base, changing, len(p)))

@@ -23,7 +23,9 @@ class _Parser(argparse.ArgumentParser):
     """argparse that reports a bad option as one line and exit code 2."""
 
     def error(self, message):  # noqa: D401 - argparse API
-        raise InputError(f"{self.prog}: {message}")
+        # main() prints the one "regimetrend: error: " prefix; a command's parser adds its name
+        command = self.prog.removeprefix("regimetrend").strip()
+        raise InputError(f"{command}: {message}" if command else message)
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -32,7 +32,8 @@ def run(args) -> int:
             raise InputError(f"option --errors: folder {Path(args.errors).parent} does not exist")
     settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
-    budget.check_evaluation(series, settings.evaluation)  # refuse hours, announce minutes
+    budget.check_evaluation(series, settings.evaluation,  # refuse hours, announce minutes
+                            shape=settings.model.shape)
     from ..analysis import analyze
 
     analysis = analyze(series, settings,

@@ -50,7 +50,8 @@ def run(args) -> int:
         options.check_output_folder(args.output)
     held = holdout_check(series, spec, k)
     fc = trend_forecast(series, spec, h)
-    result = {"series": series.to_dict(), "model": spec.to_dict(),
+    note = options.shape_note(args, "forecast", spec.shape)
+    result = {"series": series.to_dict(), "model": spec.to_dict(), "shape_note": note,
               "forecast": fc.rows(), "point_forecast": "mean",
               "holdout": held.to_dict(), "cautions": caution_lines()}
     outputs = {}
@@ -70,7 +71,7 @@ def run(args) -> int:
     if args.json:
         print(options.dumps(result))
     else:
-        print(render(series, spec, held, fc, outputs))
+        print(render(series, spec, held, fc, outputs, note))
     return 0
 
 
@@ -84,11 +85,11 @@ def forecast_csv(fc) -> str:
     return buf.getvalue()
 
 
-def render(series, spec, held, fc, outputs) -> str:
+def render(series, spec, held, fc, outputs, shape_note: str | None = None) -> str:
     m = held.metrics
     lines = [f"{series.name}: {series.n} {series.frequency.name} periods, "
              f"{series.label(0)} to {series.label(series.n - 1)}",
-             f"model: global {spec.describe()}", ""]
+             f"model: global {spec.describe()}"] + ([shape_note] if shape_note else []) + [""]
     for note in series.notes:
         lines.append(f"note: {note}")
     lines.append(f"holdout: fitted on the first {series.n - held.k} periods, scored on the last "

@@ -187,6 +187,18 @@ def load_from_args(args):
                        date_format=args.date_format)
 
 
+def shape_note(args, command: str, shape: str) -> str | None:
+    """The line saying which shape a one-shape command fitted under ``--shape auto`` and why
+    (``words.auto_shape_note``); None when the analyst gave the shape."""
+    from ..words import auto_shape_note
+
+    if settings_from_args(args).model.shape != "auto":
+        return None
+    from ..errors import option
+
+    return auto_shape_note(command, shape, option("shape"))
+
+
 def model_from_args(args, series):
     """The TrendSpec the options ask for, with season length and 'auto' resolved."""
     return settings_from_args(args).spec_for(series)

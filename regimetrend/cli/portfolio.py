@@ -27,7 +27,11 @@ def register(sub) -> None:
     p.add_argument("--value-column", help="name of the value column (long tables, files of a "
                                           "folder)")
     p.add_argument("--frequency", help="calendar of every series (inferred by default)")
-    p.add_argument("--decimal", default=".", help="decimal mark of text values: '.' or ','")
+    p.add_argument("--decimal", help="decimal mark of the values: '.' or ',' (by default '.', "
+                                     "or what the numbers show in a file not separated by "
+                                     "commas)")
+    p.add_argument("--date-format", help="how the dates are written, in strftime codes, e.g. "
+                                         "%%d.%%m.%%Y (common forms are read without it)")
     p.add_argument("--fill-missing", action="store_true",
                    help="fill missing values and calendar gaps by linear interpolation")
     p.add_argument("--sheet", help="sheet of an Excel workbook (first sheet by default)")
@@ -84,7 +88,7 @@ def run(args) -> int:
         args.file, args.output, id_columns=args.id_column, date_column=args.date_column,
         value_column=args.value_column, sheet=args.sheet,
         load_options={"frequency": args.frequency, "decimal": args.decimal,
-                      "fill_missing": args.fill_missing},
+                      "date_format": args.date_format, "fill_missing": args.fill_missing},
         settings=settings_from_args(args), settings_file=args.settings_file, level=args.level,
         engine=args.engine, workers=args.workers, scheduler=args.scheduler,
         reports=args.reports, formats=_formats(args.summary_formats),

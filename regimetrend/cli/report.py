@@ -52,7 +52,8 @@ def run(args) -> int:
     settings = options.settings_from_args(args)  # checked before the file is read
     series = options.load_from_args(args)
     options.check_log_scale(args, series)
-    budget.check_evaluation(series, settings.evaluation)  # refuse hours, announce minutes
+    budget.check_evaluation(series, settings.evaluation,  # refuse hours, announce minutes
+                            shape=settings.model.shape)
     written = produce_report(series, folder, settings, source_name=Path(args.file).name,
                              units=args.units, log_scale=args.log_scale, quiet=args.quiet)
     if args.json:

@@ -29,18 +29,21 @@ def run(args) -> int:
     budget.check_scan(series)  # refuse hours, announce minutes
     result = scan(series, args)
     table = growth_table(series, result.spec, result)
+    note = options.shape_note(args, "scan", result.spec.shape)
     if args.json:
         growth = table.to_dict()
         out = result.to_dict()
         for seg, g in zip(out["segments"], growth["segments"]):
             seg["growth"] = g["growth"]
         out["growth_changes"] = growth["changes"]
-        print(options.dumps(dict(out, series=series.to_dict())))
+        print(options.dumps(dict(out, series=series.to_dict(), shape_note=note)))
     else:
-        print(render(series, result, table))
+        print(render(series, result, table, note))
     return 0
 
 
-def render(series, b, growth=None) -> str:
-    """The readable scan: ``BreakSet.summary`` (breaks, tests, regimes with growth, notes)."""
-    return b.summary(series, growth)
+def render(series, b, growth=None, shape_note: str | None = None) -> str:
+    """The readable scan: ``BreakSet.summary`` (breaks, tests, regimes with growth, notes),
+    after the line saying which shape ``--shape auto`` fitted and why."""
+    text = b.summary(series, growth)
+    return f"{shape_note}\n\n{text}" if shape_note else text

@@ -21,6 +21,7 @@ Files are only read; nothing here models or writes.
 from __future__ import annotations
 
 import hashlib
+import io
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -52,11 +53,16 @@ class Portfolio:
     layout: str  # long, wide or folder
     id_columns: tuple[str, ...]
     tasks: tuple[SeriesTask, ...]
+    decimal: str | None = None  # the decimal mark of a text file's numbers (None: intake's own)
 
 
 def read_portfolio(path, *, id_columns=(), date_column=None, value_column=None,
-                   sheet=None) -> Portfolio:
-    """All series of the portfolio at ``path`` (a file or a folder), in input order."""
+                   sheet=None, decimal=None) -> Portfolio:
+    """All series of the portfolio at ``path`` (a file or a folder), in input order.
+
+    ``decimal``: the decimal mark the analyst gave, or None to find it as single-series intake
+    does; for a text file it is decided once for the whole file (``file_decimal``), as every
+    series' cells are handed to intake apart from the file."""
     path = Path(path)
     if path.is_dir():
         if id_columns:
@@ -66,10 +72,38 @@ def read_portfolio(path, *, id_columns=(), date_column=None, value_column=None,
                                                                 value_column, sheet)))
     frame = read_table(path, sheet)
     if id_columns:
-        return Portfolio("long", tuple(id_columns),
-                         tuple(_long_tasks(frame, path, list(id_columns), date_column,
-                                           value_column)))
-    return Portfolio("wide", ("id",), tuple(_wide_tasks(frame, path, date_column)))
+        tasks = tuple(_long_tasks(frame, path, list(id_columns), date_column, value_column))
+        mark = file_decimal(path, decimal, skip=[_column(frame, c, "--id-column", path)
+                                                 for c in id_columns])
+        return Portfolio("long", tuple(id_columns), tasks, mark)
+    tasks = tuple(_wide_tasks(frame, path, date_column))
+    return Portfolio("wide", ("id",), tasks, file_decimal(path, decimal, skip=[]))
+
+
+def file_decimal(path: Path, decimal, skip) -> str | None:
+    """The decimal mark of every series of a text file when the analyst gave none, decided as
+    single-series intake decides it for one file: the point in comma-separated files, else what
+    the numbers show (``intake.marks``); when nothing tells, the point, after refusing any cell
+    that reads either way (``200,002``), naming its file row. Tables that are not text files
+    keep intake's own rule (None). ``skip``: id columns, whose text is no number."""
+    if decimal is not None or path.suffix.lower() not in (".csv", ".txt"):
+        return decimal
+    from ..intake.marks import decimal_mark, refuse_either_reading
+    from ..intake.text_file import decode, guess_delimiter, read_text
+
+    if guess_delimiter(decode(path.read_bytes(), path.name), None) == ",":
+        return "."  # the common case, without parsing the file a second time
+    table = read_text(path, None)
+    for column in skip:  # id columns (e.g. product codes 1.234) say nothing about the numbers
+        if column in table.cells:
+            table.cells[column] = []
+    mark = decimal_mark(table)
+    if mark is None:
+        for column in table.columns:
+            if column not in skip:
+                refuse_either_reading(table, column)
+        mark = "."
+    return mark
 
 
 def read_table(path: Path, sheet=None) -> pd.DataFrame:
@@ -84,8 +118,7 @@ def read_table(path: Path, sheet=None) -> pd.DataFrame:
         raise InputError(f"option --sheet: {path.name!r} is not an Excel workbook")
     try:
         if ext in (".csv", ".txt"):
-            frame = pd.read_csv(path, dtype=str, keep_default_na=False, sep=None,
-                                engine="python", encoding="utf-8-sig")
+            frame = _read_text_table(path)
         elif ext == ".xlsx":
             frame = pd.read_excel(path, sheet_name=sheet if sheet is not None else 0,
                                   dtype=object, engine="openpyxl")
@@ -105,10 +138,27 @@ def read_table(path: Path, sheet=None) -> pd.DataFrame:
     return frame.reset_index(drop=True)
 
 
-def _digest(frame: pd.DataFrame, extra: str = "") -> str:
+def _read_text_table(path: Path) -> pd.DataFrame:
+    """A delimited text file as text cells: decoded and its separator found as single-series
+    intake does (``intake.text_file``), then parsed by pandas' C reader (the Python reader's
+    separator sniffing took a second for 120,000 rows)."""
+    from ..intake.text_file import decode, guess_delimiter
+
+    text = decode(path.read_bytes(), path.name)
+    if not text.strip():
+        raise InputError(f"file {path.name!r} is empty")
+    return pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False,
+                       sep=guess_delimiter(text, None), engine="c")
+
+
+def _digest(frame: pd.DataFrame, extra: str = "", row_hashes=None) -> str:
+    """sha256 of the cells of ``frame`` (``row_hashes``: its rows' pandas hashes, when already
+    computed for the whole table)."""
     h = hashlib.sha256()
     h.update(repr((list(frame.columns), [str(t) for t in frame.dtypes], extra)).encode())
-    h.update(pd.util.hash_pandas_object(frame, index=False).to_numpy().tobytes())
+    if row_hashes is None:
+        row_hashes = pd.util.hash_pandas_object(frame, index=False).to_numpy()
+    h.update(np.ascontiguousarray(row_hashes).tobytes())
     return h.hexdigest()
 
 
@@ -130,6 +180,13 @@ def _id_text(value) -> str:
     return str(value).strip()
 
 
+def _id_texts(column: pd.Series) -> pd.Series:
+    """``_id_text`` of every cell; text cells (every cell of a text file) in one pass."""
+    if pd.api.types.is_string_dtype(column) and not column.isna().any():
+        return column.astype(str).str.strip()
+    return column.map(_id_text)
+
+
 def _long_tasks(frame, path, id_columns, date_column, value_column):
     ids = [_column(frame, c, "--id-column", path) for c in id_columns]
     if len(set(ids)) < len(ids):
@@ -142,18 +199,23 @@ def _long_tasks(frame, path, id_columns, date_column, value_column):
     if len(rest) < 2:
         raise InputError(f"{path.name!r}: besides the id column(s) there must be a date column "
                          f"and a value column; found {', '.join(map(repr, rest)) or 'none'}")
-    keys = [frame[c].map(_id_text) for c in ids]
+    keys = [_id_texts(frame[c]) for c in ids]
     joined = keys[0] if len(keys) == 1 else pd.Series(
         [ID_SEPARATOR.join(t) for t in zip(*keys)], index=frame.index)
     rows_all = np.arange(2, len(frame) + 2)
-    order = pd.unique(joined.to_numpy())
-    groups = joined.groupby(joined, sort=False).indices
-    body = frame[rest]
+    codes, order = pd.factorize(joined, sort=False)  # ids in order of first appearance
+    # rows grouped by series once (stable: each series keeps its file order), so that every
+    # series is a contiguous slice: slicing is cheap where picking rows per series is not
+    by_series = np.argsort(codes, kind="stable")
+    bounds = np.searchsorted(codes[by_series], np.arange(len(order) + 1))
+    body = frame[rest].take(by_series)
+    hashes = pd.util.hash_pandas_object(body, index=False).to_numpy()  # one pass, all rows
     load = {"date_column": date_column, "value_column": value_column}
-    for key in order:
-        index = groups[key]
+    for g, key in enumerate(order):
+        a, b = int(bounds[g]), int(bounds[g + 1])
+        index = by_series[a:b]
         parts = tuple(k.iat[index[0]] for k in keys)
-        sub = body.iloc[index].reset_index(drop=True)
+        sub = body.iloc[a:b].reset_index(drop=True)
         rows = rows_all[index]
         problem = None
         if any(p == "" for p in parts):
@@ -161,7 +223,8 @@ def _long_tasks(frame, path, id_columns, date_column, value_column):
             problem = (f"rows {_rows_text(rows)}: column {empty!r} (an id column) is empty; "
                        f"give every row its id")
         yield SeriesTask(id=str(key), parts=parts, source=sub, rows=rows,
-                         digest=_digest(sub, repr(rows[[0, -1]].tolist()) + str(len(rows))),
+                         digest=_digest(sub, repr(rows[[0, -1]].tolist()) + str(len(rows)),
+                                        hashes[a:b]),
                          problem=problem, load=load)
 
 

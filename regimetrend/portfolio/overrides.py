@@ -2,10 +2,11 @@
 
 The override file (CSV, .xlsx or JSON) has one row per series to change. CSV/.xlsx: an ``id``
 column (or the portfolio's own id columns) and one column per setting to override, named as the
-command-line options without dashes (``shape``, ``seasonality``, ``season_length``, ``kind``,
-``max_breaks``, ``trim``, ``criterion``, ``events`` (dates separated by ``;``),
-``seasonal_by_regime``, ``serial_correlation``, ``horizon``, ``first_origin``, ``step``,
-``reuse_breaks``); an empty cell keeps the portfolio's setting. JSON: an object mapping each id
+settings in Python (``shape``, ``seasonality``, ``season_length``, ``kind``, ``max_breaks``,
+``trim``, ``criterion``, ``events`` (dates separated by ``;``), ``seasonal_by_regime``,
+``serial_correlation``, ``horizon``, ``first_origin``, ``step``, ``reuse_breaks``, ...) or as
+their command-line options without the leading dashes (``max-breaks``, ``event``); an empty
+cell keeps the portfolio's setting. JSON: an object mapping each id
 to an object of settings. Every value is checked here, so a typo stops the run before any
 series is analysed, with the row and column named.
 """
@@ -32,6 +33,7 @@ def parse_setting(name: str, value, where: str):
     """The typed value of one override cell, checked by the settings' table
     (``settings.RULES``, the same rules as the command line and Python); ``where`` names the
     row and column for errors. Cells are text: yes/no for switches, dates separated by ``;``."""
+    name = setting_name(name)
     if name not in RULES:
         raise InputError(f"{where}: unknown setting {name!r}; settings are "
                          f"{', '.join(SETTING_NAMES)}")
@@ -53,6 +55,18 @@ def parse_setting(name: str, value, where: str):
         return rule.check(name, text)
     except InputError as exc:  # the rule's reason, after the row and column
         raise InputError(f"{where}: {str(exc).split(': ', 1)[-1]}") from None
+
+
+def setting_name(name: str) -> str:
+    """The setting a column names: the setting itself (``max_breaks``) or its command-line
+    option without dashes (``max-breaks``, ``event`` for ``events``)."""
+    from ..cli.names import FLAGS
+
+    word = str(name).strip()
+    if word in RULES:
+        return word
+    by_flag = {flag.lstrip("-"): setting for setting, flag in FLAGS.items() if setting in RULES}
+    return by_flag.get(word.lstrip("-"), by_flag.get(word.replace("_", "-"), word))
 
 
 def with_changes(base: Settings, changes: dict) -> Settings:
@@ -83,7 +97,7 @@ def read_overrides(path, id_columns: tuple[str, ...], ids) -> dict[str, dict]:
                 raise InputError(f"{where}: no series with this id in the portfolio")
             if not isinstance(changes, dict):
                 raise InputError(f"{where}: expected an object of settings")
-            out[ident] = {k: parse_setting(k, v, f"{where}, setting {k!r}")
+            out[ident] = {setting_name(k): parse_setting(k, v, f"{where}, setting {k!r}")
                           for k, v in changes.items() if v is not None}
         return out
     if ext in (".csv", ".txt"):
@@ -98,6 +112,15 @@ def read_overrides(path, id_columns: tuple[str, ...], ids) -> dict[str, dict]:
     if not id_cols or (id_cols != ["id"] and len(id_cols) != len(id_columns)):
         raise InputError(f"option --settings-file: {path.name!r} needs an 'id' column (or the "
                          f"id columns {', '.join(map(repr, id_columns))})")
+    for column in frame.columns:  # a misspelt column stops the run even when it is empty
+        if column not in id_cols and setting_name(column) not in RULES:
+            raise InputError(f"{path.name} column {column!r}: unknown setting; settings are "
+                             f"{', '.join(SETTING_NAMES)}")
+    named = [setting_name(c) for c in frame.columns if c not in id_cols]
+    twice = sorted({c for c in named if named.count(c) > 1})
+    if twice:
+        raise InputError(f"option --settings-file: {path.name!r} has two columns for the "
+                         f"setting {twice[0]!r}")
     out = {}
     for k, record in enumerate(frame.to_dict("records")):
         row = k + 2
@@ -113,7 +136,7 @@ def read_overrides(path, id_columns: tuple[str, ...], ids) -> dict[str, dict]:
                 continue
             if isinstance(value, float) and math.isnan(value):
                 continue
-            changes[str(name)] = parse_setting(str(name), value,
-                                               f"{path.name} row {row}, column {name!r}")
+            changes[setting_name(str(name))] = parse_setting(
+                str(name), value, f"{path.name} row {row}, column {name!r}")
         out[ident] = changes
     return out

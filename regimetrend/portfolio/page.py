@@ -12,12 +12,14 @@ from collections import Counter
 
 from ..output import write_atomic
 from ..report.safety import esc
-from .ranking import RULE
+from ..numformat import number, percent
+from .ranking import RULE, evidence
 from .store import file_id
 
 SMALL_MULTIPLES = 12
 TABLE_ROWS = 500
 INK, FIT, BREAK = "#000000", "#0072B2", "#D55E00"  # Okabe-Ito black, blue, vermillion
+UNUSED = "#888888"  # a break the search found that the chosen model does not use
 CAUTIONS = (
     ("A forecast from the regime that holds now assumes that regime goes on; a new change "
      "would make it wrong."),
@@ -46,22 +48,25 @@ figcaption{font-size:12px;margin-bottom:4px;overflow-wrap:anywhere}
 def _fmt(v, digits=1, suffix=""):
     if v is None:
         return "-"
-    return f"{v:+.{digits}f}{suffix}" if suffix == "%" else f"{v:.{digits}f}{suffix}"
+    if suffix == "%":  # the number rule: one decimal, no "-0.0"
+        return percent(v, sign=True)
+    return f"{v:.{digits}f}{suffix}"
 
 
 def _interval(lo, hi, digits=1):
     if lo is None or hi is None:
         return ""
-    return f" ({lo:+.{digits}f} to {hi:+.{digits}f})"
+    return f" ({percent(lo, sign=True, symbol=False)} to {percent(hi, sign=True, symbol=False)})"
 
 
 def sparkline(chart: dict, width=248, height=120) -> str:
-    """An inline SVG of one series: values (black), regime fit (blue, dashed), breaks (red)."""
+    """An inline SVG of one series: values (black), regime fit (blue, dashed), the breaks the
+    chosen model uses (vermillion) and other breaks the search found (grey, dotted)."""
     values, fitted = chart.get("values") or [], chart.get("fitted") or []
     n = len(values)
     if n < 2:
         return ""
-    left, right, top, bottom = 44, 6, 6, 22
+    left, right, top, bottom = 50, 6, 6, 22
     pool = [v for v in values + fitted if v is not None]
     lo, hi = min(pool), max(pool)
     if hi == lo:
@@ -86,9 +91,9 @@ def sparkline(chart: dict, width=248, height=120) -> str:
         (f'<line x1="{left}" y1="{height - bottom}" x2="{width - right}" '
          f'y2="{height - bottom}" stroke="#999"/>'),
         (f'<text x="{left - 3}" y="{top + 8}" font-size="9" text-anchor="end">'
-         f'{esc(f"{hi:.4g}")}</text>'),
+         f'{esc(number(hi))}</text>'),
         (f'<text x="{left - 3}" y="{height - bottom}" font-size="9" text-anchor="end">'
-         f'{esc(f"{lo:.4g}")}</text>'),
+         f'{esc(number(lo))}</text>'),
         (f'<text x="{left}" y="{height - 10}" font-size="9">'
          f'{esc(chart.get("start_label"))}</text>'),
         (f'<text x="{width - right}" y="{height - 10}" font-size="9" text-anchor="end">'
@@ -98,9 +103,13 @@ def sparkline(chart: dict, width=248, height=120) -> str:
         (f'<text x="9" y="{mid_y:.0f}" font-size="9" text-anchor="middle" '
          f'transform="rotate(-90 9 {mid_y:.0f})">value (series units)</text>'),
     ]
-    for b in chart.get("breaks") or []:
+    found = chart.get("breaks") or []
+    used = chart.get("used", found)  # results stored before "used" existed: every break
+    for b in sorted(set(found) | set(used)):
+        style = (f'stroke="{BREAK}" stroke-width="1.2"' if b in used else
+                 f'stroke="{UNUSED}" stroke-width="1" stroke-dasharray="2 2"')
         parts.append(f'<line x1="{x(b):.1f}" y1="{top}" x2="{x(b):.1f}" y2="{height - bottom}" '
-                     f'stroke="{BREAK}" stroke-width="1"/>')
+                     f'{style}/>')
     parts.append(line(values, INK))
     if len(fitted) == n:
         parts.append(line(fitted, FIT, "4 2"))
@@ -122,8 +131,8 @@ def cause_counts(recs) -> list[tuple[str, int]]:
 
 
 def _table(recs, order, store, tasks) -> str:
-    head = ["rank", "id", "n", "calendar", "latest break (95% interval)", "recent",
-            "F of latest break", "growth now, % a year (95%)", "growth before, % a year",
+    head = ["rank", "id", "n", "calendar", "why this rank (rule step: evidence)",
+            "latest break (95% interval)", "F of latest break", "growth now, % a year (95%)", "growth before, % a year",
             "cause", "forecast model", "gain over global", "status"]
     out = ["<table><thead><tr>" + "".join(f"<th>{esc(h)}</th>" for h in head) +
            "</tr></thead><tbody>"]
@@ -141,8 +150,8 @@ def _table(recs, order, store, tasks) -> str:
         gain = r.get("gain_over_global")
         cells = [f'<td class="num">{r["rank"]}</td>', f"<td>{ident}</td>",
                  f'<td class="num">{"" if r.get("n") is None else r["n"]}</td>',
-                 f"<td>{esc(r.get('calendar') or '')}</td>", f"<td>{esc(last)}</td>",
-                 f"<td>{'yes' if r.get('recent_change') else ''}</td>",
+                 f"<td>{esc(r.get('calendar') or '')}</td>",
+                 f"<td>{esc(evidence(r))}</td>", f"<td>{esc(last)}</td>",
                  f'<td class="num">{_fmt(r.get("last_break_f")) if last else ""}</td>',
                  (f'<td class="num">{_fmt(r.get("growth_now_pct_a_year"), 1, "%")}'
                   f'{_interval(r.get("growth_now_low"), r.get("growth_now_high"))}</td>'),
@@ -186,7 +195,8 @@ def build_page(recs, order, store, tasks, level: str) -> str:
         "<h2>Counts by cause</h2><table><thead><tr><th>cause</th><th>series</th></tr></thead>"
         f"<tbody>{counts}</tbody></table>"
         f"<h2>Leading series</h2><p>The first {len(lead)} series in triage order: values in "
-        "black, the regime fit dashed blue, breaks as red lines.</p>"
+        "black, the regime fit dashed blue, the breaks the chosen model uses as solid orange "
+        "lines and other breaks the search found as dotted grey lines.</p>"
         f"<div class=\"grid\">{''.join(figures)}</div>"
         "<h2>Triage table</h2>"
         f"<p class=\"rule\">{esc(RULE)}</p>"

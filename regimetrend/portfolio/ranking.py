@@ -43,6 +43,28 @@ def sort_key(position: int, row: dict):
     return (3, supf, position)
 
 
+def step(row: dict) -> int:
+    """The rule's step (1 to 4) that places ``row``."""
+    return sort_key(0, row)[0]
+
+
+def evidence(row: dict) -> str:
+    """Why ``row`` stands where it does: the rule's step and the figure it is ordered by, in
+    words (written beside each series on the page, so the order can be checked by eye)."""
+    from ..numformat import pvalue
+
+    p = pvalue(row.get("supf_p"), "not tested")
+    where = step(row)
+    if where == 1:
+        f = row.get("last_break_f")
+        return f"1: recent break, F {f:.1f}" if f is not None else "1: recent break"
+    if where == 2:
+        return f"2: CUSUM left its band {row.get('cusum_crossing')}; sup-F p {p}"
+    if where == 3:
+        return f"3: sup-F p {p}"
+    return "4: not analysed"
+
+
 def rank(rows: list[dict]) -> list[int]:
     """Positions of ``rows`` in triage order."""
     return sorted(range(len(rows)), key=lambda k: sort_key(k, rows[k]))

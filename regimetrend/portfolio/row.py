@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import math
 
+from ..growth_figures import ANNUALISED_PCT
+
 # Columns of the summary, in order (the id columns come first; see summary.py).
 COLUMNS = (
     "id", "status", "reason", "level", "n", "calendar", "start", "end", "model",
@@ -23,7 +25,7 @@ COLUMNS = (
     "supf_p", "cusum_crossing",
 )
 
-GROWTH_FIGURE = "annualised_pct"  # yearly growth in % (see growth.py for its definition)
+GROWTH_FIGURE = ANNUALISED_PCT  # yearly growth in % (see growth.py for its definition)
 
 
 def recent_window(n: int, periods_per_year: float) -> int:
@@ -115,7 +117,7 @@ def _from_verdict(row: dict, analysis, verdict) -> dict:
     row["keep_history_from"] = v.get("keep_history_from")
     now = v.get("growth_now") or {}
     ci = now.get("ci95") or [None, None]
-    row["growth_now_pct_a_year"] = _num(now.get("annualised_pct"))
+    row["growth_now_pct_a_year"] = _num(now.get(GROWTH_FIGURE))
     row["growth_now_low"], row["growth_now_high"] = _num(ci[0]), _num(ci[1])
     fm = v.get("forecast_model") or {}
     row["forecast_model"] = " ".join(x for x in (fm.get("strategy"), fm.get("shape")) if x)

@@ -82,7 +82,9 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
     """Analyse every series of ``source`` into the folder ``output``; see the module docstring.
 
     ``load_options``: ``load_series`` options shared by every series (frequency, decimal,
-    fill_missing). ``settings``: one ``Settings`` for all; ``settings_file`` overrides it per id.
+    date_format, fill_missing); decimal None is found from the file
+    (``inputs.file_decimal``). ``settings``: one ``Settings`` for all; ``settings_file``
+    overrides it per id.
     ``progress(done, total)``: called as series finish (the command passes its progress bar).
     ``engine_object``: an engine already made (tests pass a Dask cluster of threads)."""
     from .page import write_page
@@ -99,7 +101,10 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
     base = settings or Settings()
     load = dict(load_options or {})
     portfolio = read_portfolio(source, id_columns=tuple(id_columns), date_column=date_column,
-                               value_column=value_column, sheet=sheet)
+                               value_column=value_column, sheet=sheet,
+                               decimal=load.get("decimal"))
+    if portfolio.decimal is not None:
+        load["decimal"] = portfolio.decimal
     tasks = portfolio.tasks
     overrides = (read_overrides(settings_file, portfolio.id_columns, [t.id for t in tasks])
                  if settings_file else {})

@@ -66,7 +66,8 @@ class Store:
         return m.group(1) if m else None
 
     def write_result(self, ident: str, text: str) -> Path:
-        return write_atomic(self.result_path(ident), text, "--output")
+        # no sweep per write: ``remove_leftovers`` swept the folder once at the start
+        return write_atomic(self.result_path(ident), text, "--output", sweep=False)
 
     def read_result(self, ident: str) -> dict:
         return json.loads(self.result_path(ident).read_text(encoding="utf-8"))
@@ -85,5 +86,5 @@ class Store:
             marker.unlink()
         for rel, data in sorted(files.items()):
             write_atomic(folder / rel, data, "--output")
-        write_atomic(marker, key + "\n", "--output")
+        write_atomic(marker, key + "\n", "--output", sweep=False)
         return folder

@@ -82,11 +82,18 @@ def load(task: SeriesTask, shared: dict):
         raise InputError(file_rows_message(str(exc), task.rows)) from None
 
 
-def chart_data(series, fitted, breaks) -> dict:
-    """What the portfolio page draws for one series: values, regime fit and breaks."""
+def chart_data(series, fitted, breaks, used_dates=None) -> dict:
+    """What the portfolio page draws for one series: values, regime fit, the breaks the search
+    found and those the chosen model uses (``used_dates``, the verdict's; None: all found)."""
+    found = [int(p) for p in breaks.positions]
+    if used_dates is None:
+        used = found
+    else:
+        where = {series.iso(i): i for i in range(series.n)}
+        used = sorted(where[d] for d in used_dates if d in where)
     return {"values": [float(v) for v in series.values],
             "fitted": [float(v) for v in np.asarray(fitted, dtype=float)],
-            "breaks": [int(p) for p in breaks.positions],
+            "breaks": found, "used": used,
             "start_label": series.label(0), "end_label": series.label(series.n - 1)}
 
 
@@ -118,8 +125,10 @@ def analyse(job: Job, series):
     analysis = analyze(series, settings)
     detail = analysis.to_dict()
     detail["evaluation"] = _compact_evaluation(detail["evaluation"])
-    return (row_from_analysis(analysis), detail,
-            chart_data(series, analysis.growth.fitted, analysis.breaks), analysis)
+    row = row_from_analysis(analysis)
+    used = [d for d in (row.get("breaks") or "").split("; ") if d]  # the verdict's breaks
+    return (row, detail, chart_data(series, analysis.growth.fitted, analysis.breaks, used),
+            analysis)
 
 
 def one_line(exc: BaseException) -> str:
@@ -157,6 +166,26 @@ def run_chunk(jobs: list[Job]) -> list[Record]:
     """The unit of work sent to a worker."""
     hold_blas()
     return [run_job(job) for job in jobs]
+
+
+def worker_facts(hold: float = 0.0) -> dict:
+    """What a worker process says about itself (for benchmarks and checks): its pid, the thread
+    count of every BLAS it has loaded once held, its peak resident memory and CPU seconds so
+    far (``resource.getrusage``). ``hold``: seconds to wait first, so that calls sent together
+    land on different workers."""
+    import os
+    import resource
+    import time
+
+    from threadpoolctl import threadpool_info
+
+    time.sleep(hold)
+    hold_blas()
+    usage = resource.getrusage(resource.RUSAGE_SELF)
+    return {"pid": os.getpid(),
+            "blas_threads": sorted({i["num_threads"] for i in threadpool_info()
+                                    if i["user_api"] == "blas"}),
+            "peak_mb": usage.ru_maxrss / 1024, "cpu_s": usage.ru_utime + usage.ru_stime}
 
 
 def report_files(analysis) -> dict:

@@ -2,9 +2,10 @@
 
 Each function only plots what it is given (no statistics here). Colours follow the Okabe and
 Ito (2008) colour-blind-safe palette, one meaning per colour across the charts: black for the
-actual values, blue for the trend of each regime, reddish purple (dashed) for the one global
-trend, vermillion for the recommended forecast and its bands, orange for break dates. Line styles
-differ too, so the charts read in grey print.
+actual values, blue for the chosen model's trend (of each regime), reddish purple (dashed) for
+the one global trend, vermillion for the chosen model's forecast and its bands, orange for the
+dates of the breaks it uses, grey (dashed) for break dates a search found that the chosen model
+does not use. Line styles differ too, so the charts read in grey print.
 
 Layout rules every chart keeps: the legend sits below the plot area, outside it (never over a
 line), with six entries or fewer; date axes carry the series' own calendar labels (2019, 1992Q1,
@@ -265,18 +266,23 @@ def _break_marks(ax, breaks, spans):
 
 
 def series_figure(dates, values, *, units: str, frequency, breaks=(), break_spans=(),
-                  regime_trends=(), global_trend: Band | None = None,
+                  search_breaks=(), regime_trends=(), global_trend: Band | None = None,
                   seasonal_fit: Band | None = None, forecast: Band | None = None,
                   global_forecast: Band | None = None, zoom_from=None, log_scale: bool = False,
                   labels: dict | None = None, title: str = ""):
     """The series over all history (left) and zoomed on the latest regime with the forecast
     (right). ``regime_trends`` are Bands, one per regime (the trend with seasonal terms at their
     average); ``seasonal_fit`` is the regime model with its seasonal pattern, drawn in the zoom
-    only; ``breaks`` are break dates and ``break_spans`` their 95% intervals as (low, high)."""
+    only; ``breaks`` are the dates of the breaks the drawn model uses and ``break_spans`` their
+    95% intervals as (low, high); ``search_breaks`` other break dates (found by a search, not
+    used by the model), drawn grey and dashed. ``labels`` may rename any legend entry and the
+    zoom panel's title (``zoom``)."""
     words = {"actual": "actual", "regime": "trend of each regime", "global": "one global trend",
              "seasonal": "regime model with its seasonal pattern",
              "breaks": "break date, 95% interval",
-             "forecast": "recommended forecast, 80% and 95% intervals"}
+             "search": "break found by the search, not used",
+             "forecast": "recommended forecast, 80% and 95% intervals",
+             "zoom": "latest regime and forecast"}
     words.update(labels or {})
     d = _dates(dates)
     values = np.asarray(values, dtype=float)
@@ -293,6 +299,10 @@ def series_figure(dates, values, *, units: str, frequency, breaks=(), break_span
         first = _dates([zoom_from])[0] if zoomed else d[0]
         _break_marks(ax, [b for b in breaks if first <= _dates([b])[0]],
                      [s for s in break_spans if s[1] is not None and _dates([s[1]])[0] >= first])
+        for b in search_breaks:
+            if first <= _dates([b])[0]:
+                handles.setdefault("search", ax.axvline(_dates([b])[0], color=SHADE, lw=1.2,
+                                                        ls="--"))
         keep = d >= first
         (h,) = ax.plot(d[keep], values[keep], color=ACTUAL, lw=1.1 if not zoomed else 1.4,
                        marker="o" if keep.sum() <= 40 else None, ms=2.5)
@@ -339,12 +349,14 @@ def series_figure(dates, values, *, units: str, frequency, breaks=(), break_span
                    most=(4 if long_labels else 6) if zoomed else (6 if long_labels else 8))
         ax.set_xlabel(f"period start ({_period_word(frequency)})")
         if zoom:
-            ax.set_title(_plain(f"from {calendar(frequency).label(first)}: latest regime and "
-                                "forecast" if zoomed else "all history"), loc="left", fontsize=9,
+            ax.set_title(_plain(f"from {calendar(frequency).label(first)}: {words['zoom']}"
+                                if zoomed else "all history"), loc="left", fontsize=9,
                          color="#444444")
     fig.suptitle(_plain(title), x=0.01, ha="left", fontsize=11)
-    order = ["actual", "regime", "seasonal", "global", "breaks", "forecast"]
+    order = ["actual", "regime", "seasonal", "global", "breaks", "search", "forecast"]
     keys = [k for k in order if k in handles]
+    if len(keys) > MAX_LEGEND:  # the dotted seasonal fit is named in the caption instead
+        keys.remove("seasonal")
     _legend(fig, [handles[k] for k in keys], [words[k] for k in keys], ncol=3)
     return fig
 
@@ -408,7 +420,7 @@ def history_figure(dates, scores, *, metric: str, frequency, chosen=None, points
                    title: str = ""):
     """Forecast accuracy against the first period of the history kept (the history sweep).
     ``points`` are extra (date, score, label) marks, e.g. fits that start at a break;
-    ``chosen`` the recommended start, drawn as a dashed vertical line."""
+    ``chosen`` the start the verdict keeps, drawn as a dashed vertical line."""
     fig, (ax,) = _figure()
     fig.set_label("history")
     d = _dates(dates)
@@ -429,7 +441,7 @@ def history_figure(dates, scores, *, metric: str, frequency, chosen=None, points
     cal = calendar(frequency)
     if chosen is not None:
         c = _dates([chosen])[0]
-        ax.axvline(c, color=FORECAST, lw=1.2, ls="--", label=f"recommended start {cal.label(c)}")
+        ax.axvline(c, color=FORECAST, lw=1.2, ls="--", label=f"start kept {cal.label(c)}")
         every.append(c)
     _date_axis(ax, min(every), max(every), frequency)
     ax.set_xlabel(f"first period of the history used for fitting ({_period_word(frequency)})")
@@ -446,7 +458,7 @@ def history_chart(dates, scores, **kwargs) -> bytes:
 def horizon_figure(horizons, lines: dict, *, metric: str, highlight: str | None = None,
                    reference: str | None = None, title: str = ""):
     """Accuracy by forecast horizon for each candidate strategy; the reference (global trend)
-    is drawn dashed in its own colour, the recommended one thicker in the forecast colour.
+    is drawn dashed in its own colour, the chosen one thicker in the forecast colour.
     At most six lines (the legend's limit)."""
     from matplotlib.ticker import MaxNLocator
 
@@ -460,7 +472,7 @@ def horizon_figure(horizons, lines: dict, *, metric: str, highlight: str | None 
             continue
         if label == highlight:
             ax.plot(horizons, values, color=FORECAST, lw=2.6, marker="o", ms=3.5,
-                    label=_plain(label + " (recommended)"))
+                    label=_plain(label + " (chosen)"))
             continue
         ax.plot(horizons, values, color=CANDIDATE_COLOURS[k % len(CANDIDATE_COLOURS)],
                 lw=1.2, ls=STYLES[(k + 1) % len(STYLES)], marker="o", ms=3, label=_plain(label))

@@ -7,6 +7,7 @@ from itertools import pairwise
 
 import numpy as np
 
+from .. import growth_figures as gf
 from .. import numformat
 from ..cautions import assemble
 from . import charts
@@ -66,72 +67,126 @@ def zoom_start(n: int, last_break: int | None, horizon: int, season: int) -> int
 
 
 def _regime_bands(d: ReportData, line) -> list:
+    """The chosen model's trend cut at the breaks it uses (NaN where it was not fitted)."""
     s = d.series
-    edges = [0] + [b.position for b in d.breaks] + [s.n]
+    edges = [0] + [b.position for b in d.model_breaks] + [s.n]
     return [charts.Band("regime", s.starts[a:b], line[a:b]) for a, b in pairwise(edges)
-            if b > a]
+            if b > a and np.isfinite(line[a:b]).any()]
+
+
+def _trend_words(d: ReportData, at_average: str) -> tuple[str, str]:
+    """(legend label, caption words) of the solid blue line: the chosen model's fitted trend,
+    or, for a window average (which has no single fit), the trend growth now describes."""
+    shape = (d.growth or {}).get("shape") or "trend"
+    v = d.verdict
+    if v is None:
+        label = f"{shape} trend of each regime" if d.breaks else f"{shape} trend"
+        return label + at_average, label
+    strategy, start = v.model.strategy, v.history.keep_from_label
+    if strategy == "window-average":
+        label = f"one {shape} trend over all history (growth now)"
+        return (label + at_average, f"one {shape} trend over all history, which the growth "
+                "figures describe (the chosen average of trends from several starts has no "
+                "single fitted line)")
+    if strategy == "truncated":
+        label = f"chosen: {shape} trend fitted from {start}" if start else \
+            f"chosen: one {shape} trend"
+    elif strategy == "global":
+        label = f"chosen: one {shape} trend over all history"
+    elif strategy == "continuous":
+        label = f"chosen: {shape} trend joined at the breaks"
+    else:
+        label = (f"chosen: {shape} trend of each regime" if d.model_breaks
+                 else f"chosen: {shape} trend")
+    return label + at_average, label.replace("chosen: ", "the chosen model's fitted line, ")
 
 
 def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
+    """The series with the chosen model: its fitted trend, the breaks it uses and its
+    forecast; the global trend of the reference shape for comparison; the search's breaks that
+    the chosen model does not use, only as such."""
     s = d.series
     seasonal = _seasonal(d)
     trend = d.regime_trend if d.regime_trend is not None else d.regime_fitted
     regime_bands = _regime_bands(d, trend) if trend is not None else []
     gline = d.global_trend if d.global_trend is not None else d.global_fitted
-    # with no break the trend of the one regime is the global trend: drawn once, in blue
+    chosen_is_global = _same(d.global_forecast, d.forecast)
+    # the chosen model is one trend over all history of the reference shape: drawn once, in blue
     global_trend = (charts.Band("global", s.starts, gline)
-                    if gline is not None and (d.breaks or not regime_bands) else None)
+                    if gline is not None and (not chosen_is_global or not regime_bands)
+                    else None)
     seasonal_fit = (charts.Band("seasonal", s.starts, d.regime_fitted)
                     if seasonal and d.regime_fitted is not None and d.regime_trend is not None
                     else None)
     forecast = _band("forecast", d.forecast) if d.forecast is not None else None
     global_forecast = (_band("global", d.global_forecast)
-                       if d.global_forecast is not None and not _same(d.global_forecast,
-                                                                      d.forecast)
-                       else None)
+                       if d.global_forecast is not None and not chosen_is_global else None)
     horizon = d.forecast.horizon if d.forecast is not None else 4
-    first = zoom_start(s.n, d.breaks[-1].position if d.breaks else None, horizon,
-                       s.frequency.season_length)
-    shape = (d.growth or {}).get("shape") or "trend"
-    at_average = " (seasonal terms at their average)" if seasonal else ""
-    at_average = " (seasonal terms at average)" if seasonal else ""
-    labels = {"regime": f"{shape} trend of each regime{at_average}" if d.breaks else
-              f"{shape} trend{at_average}",
-              "global": ("one global trend" if global_trend is not None else
-                         "one global trend's forecast")
+    last = d.model_breaks[-1].position if d.model_breaks else (
+        d.forecast.fitted_from if d.forecast is not None and d.forecast.fitted_from else None)
+    first = zoom_start(s.n, last, horizon, s.frequency.season_length)
+    ref_shape = d.global_forecast.spec.shape if d.global_forecast is not None else "global"
+    at_average = " (seasons averaged)" if seasonal else ""
+    trend_label, trend_caption = _trend_words(d, at_average)
+    search_shape = d.verdict.model.search_shape if d.verdict is not None else ""
+    labels = {"regime": trend_label, "seasonal": "the blue line with its seasonal pattern",
+              "global": (f"one {ref_shape} trend over all history (reference)"
+                         if global_trend is not None else
+                         f"one {ref_shape} trend's forecast (reference)")
               + (", its forecast on the right" if first is not None and global_trend is not None
-                 and global_forecast is not None else "")}
+                 and global_forecast is not None else ""),
+              "breaks": ("break used by the chosen model, 95% interval" if d.verdict is not None
+                         else "break date, 95% interval"),
+              "search": f"break found by the {search_shape} search, not used".replace("  ", " "),
+              "forecast": ("chosen model's forecast, 80% and 95% intervals"
+                           if d.verdict is not None else
+                           "recommended forecast, 80% and 95% intervals"),
+              "zoom": "latest regime and forecast" if d.model_breaks else
+                      "recent periods and forecast"}
     png = charts.series_chart(
         s.starts, s.values, units=d.units, frequency=s.frequency,
-        breaks=[s.starts[b.position] for b in d.breaks],
-        break_spans=[(s.starts[b.low], s.starts[b.high]) for b in d.breaks
+        breaks=[s.starts[b.position] for b in d.model_breaks],
+        break_spans=[(s.starts[b.low], s.starts[b.high]) for b in d.model_breaks
                      if b.low is not None and b.high is not None],
-        regime_trends=regime_bands if d.breaks or d.regime_trend is not None else [],
+        search_breaks=[s.starts[b.position] for b in d.unused_breaks],
+        regime_trends=regime_bands,
         global_trend=global_trend, seasonal_fit=seasonal_fit, forecast=forecast,
         global_forecast=global_forecast, zoom_from=None if first is None else s.starts[first],
         labels=labels, log_scale=log_scale, title=f"{s.name}: regimes, trends and forecast")
     parts = ["Actual values in black."]
-    if d.breaks:
-        parts.append(f"Solid blue lines: the {shape} trend of each regime"
-                     + (", with the seasonal terms at their average" if seasonal else "") + "; "
-                     "orange lines mark the breaks (the first period of a new regime), hatched "
-                     "spans the 95% intervals of their dates.")
-    elif d.regime_trend is not None:
-        parts.append(f"Solid blue line: the {shape} trend"
+    if regime_bands:
+        parts.append(f"Solid blue: {trend_caption}"
                      + (", with the seasonal terms at their average" if seasonal else "") + ".")
+    if d.model_breaks:
+        parts.append("Orange lines mark the breaks the chosen model uses (the first period of "
+                     "a new regime), hatched spans the 95% intervals of their dates.")
+    if d.unused_breaks:
+        dates = ", ".join(b.label for b in d.unused_breaks)
+        parts.append(f"Grey dashed lines: the break search's dates ({dates}), which the chosen "
+                     "model does not use.")
     if global_trend is None and global_forecast is not None:
-        parts.append("Dashed purple: the forecast of one trend over all history.")
+        parts.append(f"Dashed purple: the forecast of one {ref_shape} trend over all history, "
+                     "the reference.")
     if global_trend is not None:
-        parts.append("Dashed purple: one trend over all history"
+        parts.append(f"Dashed purple: one {ref_shape} trend over all history, the reference"
                      + (" (with its forecast in the right panel)." if first is not None
-                        and global_forecast is not None else " and its forecast."))
+                        and global_forecast is not None else
+                        " and its forecast." if global_forecast is not None else "."))
     if forecast is not None and d.forecast is not None:
-        words = strategy_words(recommended_candidate(d.evaluation)) or d.forecast.model
-        parts.append(f"Vermillion: the recommended forecast ({words}) with 80% and 95% "
+        if d.verdict is not None:
+            from ..verdict import strategy_words as chosen_words
+
+            m = d.verdict.model
+            words = chosen_words(m.strategy, m.shape, d.verdict.history.keep_from_label)
+            which = "the chosen model's forecast"
+        else:
+            words = strategy_words(recommended_candidate(d.evaluation)) or d.forecast.model
+            which = "the recommended forecast"
+        parts.append(f"Vermillion: {which} ({words}) with 80% and 95% "
                      "prediction intervals (darker and lighter bands).")
     if first is not None:
         parts.append(f"The right panel zooms on the periods from {s.label(first)}"
-                     + (" and adds the regime model with its seasonal pattern (dotted)."
+                     + (" and adds the chosen model with its seasonal pattern (dotted)."
                         if seasonal_fit is not None else "."))
     return Chart("series_regimes", "The series, its regimes, trends and forecast",
                  " ".join(parts), png)
@@ -145,14 +200,14 @@ def _error_chart(d: ReportData) -> Chart | None:
     targets = np.asarray(t.targets)[:, 0]
     lines = {f"reference: {_name(d, d.reference)}": t.errors(d.reference)[:, 0]}
     if d.recommended != d.reference:
-        lines[f"recommended: {_name(d, d.recommended)}"] = t.errors(d.recommended)[:, 0]
+        lines[f"chosen: {_name(d, d.recommended)}"] = t.errors(d.recommended)[:, 0]
     png = charts.error_chart(s.starts[targets], lines, units=d.units,
                              frequency=s.frequency, horizon_note=", one period ahead",
                              title="Forecast errors on the rolling origin (actual minus "
                                    "forecast)")
-    which = ("of the global trend (dashed purple) and of the recommended strategy (solid "
+    which = ("of the global trend (dashed purple) and of the chosen model (solid "
              "vermillion)" if len(lines) == 2 else
-             "of the global trend, which is also the recommended strategy")
+             "of the global trend, which is also the chosen model")
     return Chart("forecast_errors", "Forecast errors over time",
                  f"One-period-ahead errors (actual minus forecast) {which}, each fitted only on "
                  "the history before the period it forecasts. Errors drifting away from zero "
@@ -223,7 +278,7 @@ def _history_chart(d: ReportData) -> Chart | None:
         caption += " and from the breaks (separate marks)"
     caption += ". Lower is better."
     if keep is not None:
-        caption += (f" The dashed vertical line marks the recommended start, "
+        caption += (f" The dashed vertical line marks the start the verdict keeps, "
                     f"{d.series.frequency.label(keep)}.")
     else:
         caption += " All history is kept, so no start is marked."
@@ -231,21 +286,22 @@ def _history_chart(d: ReportData) -> Chart | None:
 
 
 def _horizon_chart(d: ReportData) -> Chart | None:
+    """The best-ranked candidates by horizon, always with the chosen model and the reference
+    (at most six lines)."""
     cands = (d.evaluation or {}).get("candidates") or []
-    lines = {}
+    must = [n for n in (d.recommended, d.reference) if n]
+    lines: dict = {}
     horizons = None
-    for c in cands[:6]:
+    ordered = [c for c in cands if c.get("name") in must] + \
+        [c for c in cands if c.get("name") not in must]
+    for c in ordered:
         ph = c.get("per_horizon") or []
         vals = [m.get("rmse") for m in ph]
-        if not vals or any(v is None for v in vals):
+        if len(lines) >= charts.MAX_LEGEND or not vals or any(v is None for v in vals):
             continue
         horizons = [m.get("horizon", i + 1) for i, m in enumerate(ph)]
         lines[c["name"]] = vals
-    if d.reference and d.reference not in lines:
-        ref = next((c for c in cands if c.get("name") == d.reference), None)
-        if ref and ref.get("per_horizon"):
-            lines = dict(list(lines.items())[:charts.MAX_LEGEND - 1])
-            lines[d.reference] = [m.get("rmse") for m in ref["per_horizon"]]
+    lines = {c["name"]: lines[c["name"]] for c in cands if c.get("name") in lines}  # rank order
     if not lines or horizons is None:
         return None
     lines = {_name(d, k): v for k, v in lines.items()}
@@ -255,7 +311,7 @@ def _horizon_chart(d: ReportData) -> Chart | None:
                                title="Accuracy by forecast horizon")
     return Chart("accuracy_by_horizon", "Accuracy by horizon for the candidates",
                  "Rolling-origin RMSE at each horizon for the best-ranked candidates and the "
-                 "global trend (dashed purple); the recommended strategy is drawn thicker in "
+                 "global trend (dashed purple); the chosen model is drawn thicker in "
                  "vermillion.", png)
 
 
@@ -265,10 +321,10 @@ def _growth_chart(d: ReportData) -> Chart | None:
         return None
     segs = g["segments"]
     labels = [f"{s['start_label']} to {s['end_label']}" for s in segs]
-    vals = [s["growth"].get("annualised_pct") for s in segs]
+    vals = [s["growth"].get(gf.ANNUALISED_PCT) for s in segs]
     if all(v is None for v in vals):
         return None
-    ci = [s["growth"].get("annualised_pct_ci95") or [None, None] for s in segs]
+    ci = [s["growth"].get(gf.ci95(gf.ANNUALISED_PCT)) or [None, None] for s in segs]
     png = charts.growth_chart(labels, vals, [c[0] for c in ci], [c[1] for c in ci],
                               quantity="growth (% a year)",
                               title="Growth by regime")
@@ -276,7 +332,8 @@ def _growth_chart(d: ReportData) -> Chart | None:
     model_text = f" Model: {model}, as in the growth table." if model else ""
     return Chart("growth_by_regime", "Annualised growth by regime",
                  f"Bars: {g.get('headline', 'annualised growth')}; whiskers: 95% intervals "
-                 f"(Newey-West covariance, delta method).{model_text} "
+                 "(autocorrelation-robust covariance as the growth table's note says, delta "
+                 f"method).{model_text} "
                  "The current regime is coloured.", png)
 
 
@@ -331,8 +388,8 @@ def _facts(d: ReportData) -> list[Fact]:
     g = d.growth
     if g and g.get("segments"):
         last = g["segments"][-1]
-        v = last["growth"].get("annualised_pct")
-        ci = last["growth"].get("annualised_pct_ci95") or [None, None]
+        v = last["growth"].get(gf.ANNUALISED_PCT)
+        ci = last["growth"].get(gf.ci95(gf.ANNUALISED_PCT)) or [None, None]
         if v is not None:
             sub = (f"95%: {numformat.interval(ci[0], ci[1], numformat.percent)}"
                    if None not in ci else "")
@@ -391,10 +448,18 @@ def build(d: ReportData, *, log_scale: bool = False, progress=None) -> Content:
                             f"Model: {words}." if words else ft.note))
     if d.breaks_dict and d.breaks_dict.get("breaks"):
         bt = break_rows(d.breaks_dict)
-        bt = Table(bt.name, bt.title, bt.columns,
+        title, note = bt.title, bt.note
+        if d.verdict is not None:  # the search's breaks, said to be the search's
+            title = f"Breaks found by the {d.verdict.model.search_shape} break search"
+            used = len(d.model_breaks)
+            note = (f"{note} The chosen model uses "
+                    + ("these breaks." if used and not d.unused_breaks else
+                       "none of them; they are shown as the search found them." if not used
+                       else f"{used} of them.")).strip()
+        bt = Table(bt.name, title, bt.columns,
                    tuple(dict(r, label=b.label, low=d.label(b.low), high=d.label(b.high))
                          if b.low is not None else dict(r, label=b.label)
-                         for r, b in zip(bt.rows, d.breaks)), bt.note)
+                         for r, b in zip(bt.rows, d.breaks)), note)
         tables.append(bt)
     cautions = list(assemble(d.cautions))  # the analysis's cautions; standing ones always
     spec_text = d.spec.describe() if d.spec is not None else ""

@@ -58,6 +58,10 @@ class ReportData:
     break_test: str = "sup-F test"  # the test behind ``sup_f_p`` (``breakinfo.test_name``)
     breaks_given: bool = False  # the break dates were given by the analyst, not searched for
     verdict: Verdict | None = None  # the chosen model and its sentences
+    # the breaks the chosen model uses (``Verdict.breaks``; the search's without a verdict)
+    # and the search's breaks it does not use (drawn only labelled as the search's)
+    model_breaks: tuple[BreakInfo, ...] = ()
+    unused_breaks: tuple[BreakInfo, ...] = ()
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -75,11 +79,28 @@ def _breaks(breakset: BreakSet | None, series: Series) -> tuple[BreakInfo, ...]:
     return tuple(sorted(out, key=lambda b: b.position))
 
 
-def _fitted(line, n: int):
+def _fitted(line, n: int, start: int = 0):
+    """A fitted line over all ``n`` periods; a line fitted from ``start`` on (a truncated
+    trend) is padded with NaN before it, so it is drawn only where it was fitted."""
     if line is None:
         return None
     arr = np.asarray(line, dtype=float)
+    if arr.ndim == 1 and 0 < start and arr.size == n - start:
+        return np.concatenate([np.full(start, np.nan), arr])
     return arr if arr.shape == (n,) else None
+
+
+def _model_breaks(verdict, found: tuple[BreakInfo, ...]):
+    """(the breaks the chosen model uses, the search's breaks it does not use): the verdict's
+    break dates with their 95% intervals; every break found when there is no verdict."""
+    if verdict is None:
+        return found, ()
+    given = {b.position for b in found if b.low is None}  # the analyst's dates: no interval
+    used = tuple(BreakInfo(b.position, b.label, b.date, None, None) if b.position in given
+                 else BreakInfo(b.position, b.label, b.date, int(b.ci95_positions[0]),
+                                int(b.ci95_positions[1])) for b in verdict.breaks)
+    at = {b.position for b in used}
+    return used, tuple(b for b in found if b.position not in at)
 
 
 def gather(analysis: Analysis, source_name: str | None = None,
@@ -94,11 +115,15 @@ def gather(analysis: Analysis, source_name: str | None = None,
         raise TypeError("write_report needs an Analysis (with its series)")
     breakset, evaluation, growth = analysis.breaks, analysis.evaluation, analysis.growth
     cusum = analysis.cusum if analysis.cusum and "path" in analysis.cusum else None
+    found = _breaks(breakset, series)
+    verdict = getattr(analysis, "verdict", None)
+    used, unused = _model_breaks(verdict, found)
+    start = growth.regimes[0].start if growth is not None and growth.regimes else 0
     return ReportData(
         series=series, spec=analysis.spec, source_name=source_name or "",
         units=units or series.name,
         result=analysis.to_dict(), growth=growth.to_dict() if growth is not None else None,
-        breaks=_breaks(breakset, series),
+        breaks=found,
         breaks_dict=breakset.to_dict() if breakset is not None else None,
         sup_f_p=breakinfo.supf_pvalue(breakset) if breakset is not None else None,
         cusum=cusum, evaluation=evaluation.to_dict() if evaluation is not None else None,
@@ -106,11 +131,11 @@ def gather(analysis: Analysis, source_name: str | None = None,
         reference=evaluation.reference if evaluation is not None else None,
         recommended=evaluation.recommended.name if evaluation is not None else None,
         forecast=analysis.forecast, global_forecast=analysis.global_forecast,
-        regime_fitted=_fitted(growth.fitted if growth is not None else None, series.n),
+        regime_fitted=_fitted(growth.fitted if growth is not None else None, series.n, start),
         global_fitted=_fitted(analysis.global_fitted, series.n),
         cautions=tuple(str(c) for c in analysis.cautions),
-        regime_trend=_fitted(growth.trend if growth is not None else None, series.n),
+        regime_trend=_fitted(growth.trend if growth is not None else None, series.n, start),
         global_trend=_fitted(analysis.global_trend, series.n),
         break_test=breakinfo.test_name(breakset),
         breaks_given=bool(breakset is not None and breakset.given),
-        verdict=getattr(analysis, "verdict", None))
+        verdict=verdict, model_breaks=used, unused_breaks=unused)

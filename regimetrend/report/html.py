@@ -102,7 +102,10 @@ def _table_html(table: Table) -> str:
     head = "".join(f'<th class="{"t" if g[0].kind in ("text", "date") else "n"}" scope="col">'
                    f'{esc("95% interval" if len(g) == 2 else g[0].heading)}</th>'
                    for g in groups)
-    shown = table.rows if table.fold_after is None else table.rows[:table.fold_after]
+    # the chosen row is never folded away: the leading rows run down to it at least
+    chosen = [i + 1 for i, r in enumerate(table.rows) if r.get("chosen")]
+    shown = table.rows if table.fold_after is None else \
+        table.rows[:max([table.fold_after, *chosen])]
     rest = table.rows[len(shown):]
 
     def grid(rows) -> str:
@@ -118,7 +121,7 @@ def _table_html(table: Table) -> str:
 
 def _row_html(groups, row) -> str:
     """One table row; a ``*_low``/``*_high`` pair shows as one interval cell."""
-    cls = ' class="rec"' if row.get("recommended") == "yes" else ""
+    cls = ' class="rec"' if row.get("chosen") else ""
     cells = []
     for g in groups:
         kind = "t" if g[0].kind in ("text", "date") else "n"

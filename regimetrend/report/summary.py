@@ -16,6 +16,7 @@ names its model in plain words, and the forecast sentence says so when the two s
 
 from __future__ import annotations
 
+from .. import growth_figures as gf
 from .. import words
 from .extract import ReportData
 from .models import (forecast_shape, growth_measure, growth_model, recommended_candidate,
@@ -130,7 +131,7 @@ def _growth(data: ReportData) -> str | None:
 
     def piece(seg):
         gr = seg["growth"]
-        v, ci = gr.get("annualised_pct"), gr.get("annualised_pct_ci95") or [None, None]
+        v, ci = gr.get(gf.ANNUALISED_PCT), gr.get(gf.ci95(gf.ANNUALISED_PCT)) or [None, None]
         if v is None:
             return None
         ci_text = (f" (95% interval {ci[0]:.1f}% to {ci[1]:.1f}%)"

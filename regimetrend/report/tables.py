@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from .. import growth_figures as gf
 from .. import numformat
 
 # how a column reads (rounded by ``regimetrend.numformat``): text, int, pct (percent), num (plain
@@ -56,7 +57,7 @@ def dig(obj, *keys, default=None):
 
 
 def _ci(growth: dict, name: str, i: int):
-    ci = growth.get(f"{name}_ci95") or [None, None]
+    ci = growth.get(gf.ci95(name)) or [None, None]
     return ci[i]
 
 
@@ -78,11 +79,11 @@ def growth_rows(growth: dict) -> Table:
     annual = float(growth.get("periods_per_year") or 0) == 1.0
     cols = [Column("regime", "Regime", "int"), Column("from", "From", "text"),
             Column("to", "To", "text"), Column("periods", "Periods", "int")]
-    figures = [] if annual else [("per_period_pct", "Growth per period, %", "pct")]
-    figures += [("annualised_pct", "Growth a year, %", "pct"),
-                ("annualised_units", "Increase a year, units", "num")]
+    figures = [] if annual else [(gf.PER_PERIOD_PCT, "Growth per period, %", "pct")]
+    figures += [(gf.ANNUALISED_PCT, "Growth a year, %", "pct"),
+                (gf.ANNUALISED_UNITS, "Increase a year, units", "num")]
     if shape == "exponential":
-        figures.append(("doubling_time_years", "Doubling time, years", "num"))
+        figures.append((gf.DOUBLING_TIME_YEARS, "Doubling time, years", "num"))
     for key, heading, kind in figures:
         cols += _interval_columns(key, heading, kind)
     cols += [Column("change_points", "Change of growth a year from the regime before, points",
@@ -99,7 +100,7 @@ def growth_rows(growth: dict) -> Table:
             row[f"{key}_low"] = _ci(g, key, 0)
             row[f"{key}_high"] = _ci(g, key, 1)
         change = changes.get(seg.get("index"))
-        row["change_points"] = change.get("annualised_pct_change") if change else None
+        row["change_points"] = change.get(gf.CHANGE_PCT) if change else None
         row["change_p_value"] = change.get("p_value") if change else None
         rows.append(row)
     note = (f"Every % here: {growth.get('headline', 'annualised growth')}. "
@@ -111,14 +112,19 @@ def growth_rows(growth: dict) -> Table:
 LEADING = 5  # candidates shown before the rest of the ranking is folded away
 
 
+CHOSEN = "chosen"  # the ranking row of the verdict's model
+
+
 def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
     """The candidate ranking (``Evaluation.to_dict()['candidates']``); ``names`` maps each
-    candidate's key to the words a manager reads. The page shows the leading candidates and
-    folds the rest; the CSV and the workbook keep every row."""
-    recommended = dig(evaluation, "recommended", "name")
+    candidate's key to the words a manager reads. The rank orders by rolling-origin RMSE only;
+    the row of the verdict's model (the evaluation's ``recommended``, set from the verdict) is
+    marked "chosen", and when it does not rank first the note says why. The page shows the
+    leading candidates and folds the rest; the CSV and the workbook keep every row."""
+    chosen = dig(evaluation, "recommended", "name")
     names = names or {}
-    cols = (Column("rank", "Rank", "int"), Column("candidate", "Candidate", "text"),
-            Column("recommended", "Recommended", "text"), Column("rmse", "RMSE", "num"),
+    cols = (Column("rank", "Rank by RMSE", "int"), Column("candidate", "Candidate", "text"),
+            Column("chosen", "Verdict", "text"), Column("rmse", "RMSE", "num"),
             Column("mae", "MAE", "num"), Column("mape", "MAPE, %", "pct"),
             Column("mase", "MASE", "num"), Column("coverage95", "95% interval coverage, %", "pct"),
             Column("gain_pct", "RMSE gain over global, %", "pct"),
@@ -132,7 +138,7 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
         vs = c.get("vs_global") or {}
         p = vs.get("p_value_better", vs.get("p_value"))
         rows.append({"rank": c.get("rank"), "candidate": names.get(c.get("name"), c.get("name")),
-                     "recommended": "yes" if c.get("name") == recommended else "",
+                     "chosen": CHOSEN if c.get("name") == chosen else "",
                      "rmse": m.get("rmse"), "mae": m.get("mae"), "mape": m.get("mape"),
                      "mase": m.get("mase"), "coverage95": None if cov is None else 100.0 * cov,
                      "gain_pct": None if gain is None else 100.0 * gain, "dm_p_value": p,
@@ -142,6 +148,13 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
            "of the global trend's RMSE. p-value: one-sided Diebold-Mariano test (with the " \
            "Harvey-Leybourne-Newbold correction) that the candidate forecasts better than the " \
            "global trend."
+    rank = next((r["rank"] for r in rows if r["chosen"]), None)
+    if rank is not None and rank != 1:
+        note += (f" The rank orders by RMSE alone; the chosen model (rank {rank}) is the "
+                 "verdict's: its rule keeps one trend over all history, or the model using "
+                 "fewer breaks, unless a test or a significant break backs a more accurate one, "
+                 "and weighs a break-aware candidate only under the shape its breaks were "
+                 "searched with.")
     if evaluation.get("optimistic_note"):
         note += " " + str(evaluation["optimistic_note"]).capitalize() + "."
     return Table("candidate_ranking", "Candidate ranking", cols, tuple(rows), note,

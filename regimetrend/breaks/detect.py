@@ -807,8 +807,9 @@ def _profile_interval(problem: BreakProblem, kind: str, positions, i: int, fit,
     terms = problem.terms(kind)
     others = list(positions[:i]) + list(positions[i + 1:])
     lo, hi = _admissible_window(problem, positions, i)
+    memo = problem.scans(kind)
     _, _, cand, prof = kinks.best_single(problem.y, problem.base, terms, lo, hi, others,
-                                         problem.scans(kind).pair_memo)
+                                         memo.pair_memo, memo.base)
     # With autocorrelated errors the SSR profile is scaled by the long-run variance
     # (the eta^2 scaling of Hansen's likelihood ratio), which widens the set.
     sigma2 = fit.ssr / max(fit.df_resid, 1) / robust_factor(fit.residuals, robust)

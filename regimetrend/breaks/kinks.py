@@ -81,6 +81,31 @@ def _orthonormal(X: np.ndarray) -> np.ndarray:
     return q[:, keep]
 
 
+def _extend_orthonormal(base_q: np.ndarray, extra: np.ndarray) -> np.ndarray:
+    """An orthonormal basis of [span(base_q), extra] from the basis ``base_q`` already known:
+    the extra columns (scaled to unit length) are projected off it twice (classical
+    Gram-Schmidt with reorthogonalisation) and factorised on their own, dropping those left
+    with no new direction, as ``_orthonormal`` does. On long series this replaces a QR of the
+    whole design at every scan by one of the few break columns."""
+    if extra.shape[1] == 0:
+        return base_q
+    norms = np.linalg.norm(extra, axis=0)
+    E = extra / np.where(norms > 0, norms, 1.0)
+    for _ in range(2):
+        E = E - base_q @ (base_q.T @ E)
+    q, r = np.linalg.qr(E)
+    keep = np.abs(np.diag(r)) > 1e-10
+    return np.hstack([base_q, q[:, keep]])
+
+
+def _basis(fixed: np.ndarray, base: tuple[int, np.ndarray] | None) -> np.ndarray:
+    """Orthonormal basis of ``fixed``; with ``base`` = (k, basis of its first k columns) the
+    known basis is extended instead of factorising all columns again."""
+    if base is None:
+        return _orthonormal(fixed)
+    return _extend_orthonormal(base[1], fixed[:, base[0]:])
+
+
 class OneBreakScan:
     """SSR of ``y`` on the fixed design plus one break, for every candidate position at once.
 
@@ -92,12 +117,12 @@ class OneBreakScan:
     """
 
     def __init__(self, y: np.ndarray, fixed: np.ndarray, terms, complete: bool = True,
-                 pair_memo: dict | None = None):
+                 pair_memo: dict | None = None, base: tuple[int, np.ndarray] | None = None):
         self.y = y = np.asarray(y, dtype=float)
         self.n = n = len(y)
         self.terms = terms
         self.complete = complete
-        Q = _orthonormal(fixed)
+        Q = _basis(fixed, base)
         self.e = y - Q @ (Q.T @ y)
         self.ssr0 = float(self.e @ self.e)
         self.Q = Q
@@ -328,12 +353,14 @@ def _admissible(lo: int, hi: int) -> np.ndarray:
     return np.arange(lo, hi + 1) if hi >= lo else np.zeros(0, dtype=np.intp)
 
 
-def best_single(y, Z, terms, lo: int, hi: int, others=(), pair_memo: dict | None = None
+def best_single(y, Z, terms, lo: int, hi: int, others=(), pair_memo: dict | None = None,
+                base: tuple[int, np.ndarray] | None = None
                 ) -> tuple[int | None, float, np.ndarray, np.ndarray]:
     """Best position in [lo, hi] for one break with ``others`` fixed: (b, ssr, cands, profile).
-    ``pair_memo``: sums of break-column products shared by scans of the same n and terms."""
+    ``pair_memo``: sums of break-column products shared by scans of the same n and terms;
+    ``base``: (columns of Z, orthonormal basis of Z) to extend (``ScanMemo.base``)."""
     fixed = design_with_breaks(Z, sorted(others), terms)
-    scan = OneBreakScan(y, fixed, terms, pair_memo=pair_memo)
+    scan = OneBreakScan(y, fixed, terms, pair_memo=pair_memo, base=base)
     cand = _admissible(lo, hi)
     if cand.size == 0:
         return None, scan.ssr0, cand, np.zeros(0)
@@ -342,9 +369,9 @@ def best_single(y, Z, terms, lo: int, hi: int, others=(), pair_memo: dict | None
     return int(cand[k]), float(prof[k]), cand, prof
 
 
-def ssr_with(y, Z, terms, positions) -> float:
+def ssr_with(y, Z, terms, positions, base: tuple[int, np.ndarray] | None = None) -> float:
     X = design_with_breaks(Z, sorted(positions), terms)
-    Q = _orthonormal(X)
+    Q = _basis(X, base)
     e = y - Q @ (Q.T @ y)
     return float(e @ e)
 
@@ -356,11 +383,23 @@ class ScanMemo:
         self.y, self.Z, self.terms = y, Z, terms
         self.memo: dict = {}
         self.pair_memo: dict = {}  # shared by every scan of this memo (``OneBreakScan``)
+        self._base: list = []
+
+    @property
+    def base(self) -> tuple[int, np.ndarray] | None:
+        """(columns of Z, orthonormal basis of Z), factorised once, for series of
+        ``WINDOW_LENGTH`` points or more (shorter ones keep one QR per scan, and today's
+        numbers to the last bit)."""
+        if not self._base:
+            long = len(self.y) >= WINDOW_LENGTH
+            self._base.append((self.Z.shape[1], _orthonormal(self.Z)) if long else None)
+        return self._base[0]
 
     def best(self, lo: int, hi: int, others) -> tuple[int | None, float]:
         key = (lo, hi, tuple(sorted(others)))
         if key not in self.memo:
-            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2], self.pair_memo)
+            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2], self.pair_memo,
+                                     self.base)
             self.memo[key] = (b, s)
         return self.memo[key]
 
@@ -370,7 +409,7 @@ def refine(y, Z, terms, positions, n, h, scans: ScanMemo | None = None
     """Move one break at a time to its best position given the others, to a local optimum."""
     scans = scans or ScanMemo(y, Z, terms)
     pos = sorted(int(p) for p in positions)
-    current = ssr_with(y, Z, terms, pos)
+    current = ssr_with(y, Z, terms, pos, scans.base)
     for _ in range(MAX_SWEEPS):
         moved = False
         for i in range(len(pos)):
@@ -395,7 +434,7 @@ def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None,
     y = np.asarray(y, dtype=float)
     n = len(y)
     scans = scans if scans is not None else ScanMemo(y, Z, terms)
-    ssr = [ssr_with(y, Z, terms, ())]
+    ssr = [ssr_with(y, Z, terms, (), scans.base)]
     positions: list[tuple[int, ...]] = [()]
     exact = [True]
     if max_breaks >= 1:

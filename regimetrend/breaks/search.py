@@ -156,7 +156,8 @@ def best_added_break(problem: BreakProblem, kind: str, positions, y_adjusted=Non
                 best, where = total, int(taus[k])
         return before, best, where
     terms = problem.terms(kind)
-    before = kinks.ssr_with(problem.y, problem.base, terms, sorted(positions))
+    before = kinks.ssr_with(problem.y, problem.base, terms, sorted(positions),
+                            problem.scans(kind).base)
     scans = problem.scans(kind)
     for a, b in zip(bounds[:-1], bounds[1:]):
         pos, s = scans.best(a + h, b - h, sorted(positions))

@@ -54,6 +54,16 @@ def near_end(series, position: int | None, ci_high: int | None) -> str | None:
     return None
 
 
+def near_end_unused(series, position: int, how: str) -> str:
+    """The caution for a break near the end that the chosen model does not use (``how``: 'found
+    by the break search' or 'given by the analyst')."""
+    tail = series.n - int(position)
+    return (f"A break at {series.label(int(position))}, {how}, leaves only {tail} "
+            f"{series.frequency.name} periods after it; the chosen model does not use it, but a "
+            f"change this recent can be neither confirmed nor ruled out yet, so the forecast may "
+            f"miss it if it is real.")
+
+
 def history_sentence(keep_from_label: str | None, reason: str) -> str:
     """The history decision as one sentence: 'Keep the history from 2019-04: <reason>.' or
     'Keep all history: <reason>.' (``reason`` is the evidence the decision rests on)."""

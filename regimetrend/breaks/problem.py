@@ -31,6 +31,9 @@ from . import kinks
 
 
 
+KEPT_DESIGN_VALUES = 30_000_000  # joint fits kept per problem, by the size of their designs
+
+
 @dataclass(frozen=True, eq=False)
 class BreakProblem:
     spec: TrendSpec
@@ -107,7 +110,12 @@ class BreakProblem:
                              f"{self.remedy(len(positions))}") from None
         for a in (found.beta, found.residuals, found.X, found.xtx_inv):
             a.setflags(write=False)
-        self._fits[key] = found
+        kept = self._fits
+        kept[key] = found
+        # Long series: each kept fit holds its n x k design, so the oldest are let go once the
+        # designs kept pass KEPT_DESIGN_VALUES (a million points kept about 20 of them, 2 GB).
+        while len(kept) > 1 and sum(f.X.size for f in kept.values()) > KEPT_DESIGN_VALUES:
+            del kept[next(iter(kept))]
         return found
 
     @cached_property

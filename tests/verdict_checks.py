@@ -71,6 +71,9 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
         assert f"{percent(g.annualised_pct)} a year" in growth
     if g.per_year_units is not None:
         assert f"{number(g.per_year_units)} units a year" in growth
+    if v.model.strategy == "truncated" and keep:  # the growth names the history it is fitted on
+        assert f"fitted on the history from {keep}" in growth
+        assert "from the last break" not in growth
     if g.shape == "linear" and g.per_year_units is not None and g.annualised_pct is not None:
         assert growth.index("units a year") < growth.index("% a year")  # units first
     if g.shared:

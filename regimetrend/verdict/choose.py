@@ -4,10 +4,15 @@ RULE (``RULE`` below, shown with every verdict)
 
 1. Break searches. With ``--shape auto`` (the default) the full-sample break search runs under
    every shape the series allows (exponential only for positive values). The rolling-origin
-   evaluation runs under the linear shape and, when another shape needs fewer breaks than the
-   linear one, under that shape too (the one needing fewest; ties go to the exponential shape,
-   which has as few terms as the linear one). Both evaluations use the same origins. An explicit
-   ``--shape`` runs one evaluation under that shape, and only models of that shape are chosen.
+   evaluation runs under the linear shape; under the other shape that needs fewest breaks when
+   it needs fewer than the linear one (ties go to the exponential shape, which has as few terms
+   as the linear one); and under every other shape that needs as many breaks as the linear one
+   when that is at least one (an exponential series with one break in its growth rate would
+   otherwise be judged only with breaks dated by the linear search). All evaluations use
+   the same origins. An explicit ``--shape`` runs one evaluation under that shape, and only
+   models of that shape are chosen. An evaluation run for a shape needing as many breaks as
+   the linear one takes part in step 3 only when its winner uses breaks (its break-free
+   candidates were already judged in the linear evaluation).
 2. Within one evaluation the candidates considered are the global trend and the window average
    (of any shape under ``auto``; they use no breaks) and the break-aware strategies of the
    evaluation's own shape (so their breaks come from their own shape's search). The global
@@ -18,11 +23,14 @@ RULE (``RULE`` below, shown with every verdict)
    series wanders (the break search's wandering flag) and it is at least 10% better (with a
    wandering series break tests cannot separate a break from the wandering, so accuracy alone
    decides). Among the candidates that qualify the lowest RMSE wins.
-3. Between the two evaluations' winners (``auto`` only), the one using fewer breaks (global
+3. Between the evaluations' winners (``auto`` only; taken in the order linear, exponential,
+   quadratic, the survivor against the next), the one using fewer breaks (global
    trends and window averages use none) is kept unless the other has a lower RMSE and either
    the Diebold-Mariano test on the shared origins finds it more accurate at the 5% level or it
-   is at least 10% better with a significant break in its own search; with equally many breaks
-   the lower RMSE wins. Parsimony, then evidence.
+   is at least 10% better with a significant break in its own search. With equally many breaks
+   a quadratic trend (one term more) must likewise be more accurate by the test or at least 10%
+   better than a linear or exponential one; otherwise the lower RMSE wins. Parsimony, then
+   evidence.
 """
 
 from __future__ import annotations
@@ -42,10 +50,13 @@ RULE = ("One model is chosen per series. Each rolling-origin evaluation keeps th
         f"{LARGE_GAIN:.0%} better and the sup-F test (for break dates given by the analyst, the F "
         f"test of those dates) finds a break at the {ALPHA:.0%} level, or "
         f"the series wanders and it is at least {LARGE_GAIN:.0%} better. Under the automatic "
-        "shape, the linear evaluation and (when another shape needs fewer breaks) that shape's "
-        "evaluation each give a winner; the one using fewer breaks is kept unless the other is "
+        "shape, the linear evaluation, that of the shape needing fewest breaks when fewer, and "
+        "that of every shape needing as many breaks (at least one) each give a winner; of two "
+        "winners "
+        "the one using fewer breaks is kept unless the other is "
         f"more accurate by the Diebold-Mariano test or at least {LARGE_GAIN:.0%} better with a "
-        "significant break.")
+        "significant break; with as many breaks, a quadratic trend must be more accurate by the "
+        f"test or at least {LARGE_GAIN:.0%} better than a linear or exponential one.")
 
 
 def search_shapes(searches: dict, explicit: str | None) -> tuple[str, ...]:
@@ -55,12 +66,12 @@ def search_shapes(searches: dict, explicit: str | None) -> tuple[str, ...]:
         return (explicit,)
     base = "linear"
     count = {s: len(b.positions) for s, b in searches.items()}
-    fewer = [s for s in searches if s != base and count[s] < count[base]]
-    if not fewer:
-        return (base,)
     order = {"exponential": 0, "quadratic": 1}
-    alt = min(fewer, key=lambda s: (count[s], order.get(s, 2)))
-    return (base, alt)
+    fewer = [s for s in searches if s != base and count[s] < count[base]]
+    others = [s for s in searches if s != base and count[s] == count[base] > 0]
+    if fewer:
+        others.append(min(fewer, key=lambda s: (count[s], order.get(s, 2))))
+    return (base, *sorted(others, key=lambda s: order.get(s, 2)))
 
 
 def supf(breakset):
@@ -104,6 +115,12 @@ def uses_breaks(candidate, run: Run) -> int:
     return 0 if candidate.strategy.name in BREAK_FREE else len(run.breaks.positions)
 
 
+def _complexity(candidate, run: Run) -> tuple[int, int]:
+    """(breaks used, extra trend terms): a quadratic trend has one term more than a linear or
+    exponential one; parsimony compares breaks first, then terms."""
+    return uses_breaks(candidate, run), int(candidate.strategy.shape == "quadratic")
+
+
 def _errors(run: Run, name: str, mask=None):
     e = run.evaluation.errors.errors(name)
     return e if mask is None else e[np.flatnonzero(mask)]
@@ -120,17 +137,21 @@ def choose(runs: list[Run], explicit: str | None, wandering: bool = False, resco
     for i, run in enumerate(runs):
         pool = rescored[i] if rescored is not None else None
         best, basis = _within(run, pool, explicit, wandering, ps[i])
+        if i and uses_breaks(best, run) == 0 and \
+                len(run.breaks.positions) >= len(runs[0].breaks.positions):
+            continue  # a run kept for its own break dates that wins with none adds nothing
         winners.append((i, best, basis, run))
     i, best, basis, run = winners[0]
     for j, other, obasis, orun in winners[1:]:
-        a, b = uses_breaks(best, run), uses_breaks(other, orun)
+        ka, kb = _complexity(best, run), _complexity(other, orun)
         ra, rb = best.metrics["rmse"], other.metrics["rmse"]
-        if a == b:
+        if ka == kb:
             if rb < ra:
                 i, best, basis, run = j, other, f"{obasis}; lower RMSE than {best.name}", orun
             continue
-        simple, complex_ = ((i, best, basis, run), (j, other, obasis, orun)) if a < b else \
+        simple, complex_ = ((i, best, basis, run), (j, other, obasis, orun)) if ka < kb else \
             ((j, other, obasis, orun), (i, best, basis, run))
+        more_breaks = max(ka, kb)[0] > min(ka, kb)[0]
         mask = masks[0] if masks is not None else None
         dm, _ = compare_errors(_errors(simple[3], simple[1].name, mask),
                                _errors(complex_[3], complex_[1].name, mask),
@@ -139,14 +160,16 @@ def choose(runs: list[Run], explicit: str | None, wandering: bool = False, resco
         rs, rc = simple[1].metrics["rmse"], complex_[1].metrics["rmse"]
         gain = 1.0 - rc / rs if rs > 0 else 0.0
         bp = ps[complex_[0]]
-        if rc < rs and ((p is not None and p < ALPHA)
-                        or (gain >= LARGE_GAIN and bp is not None and bp < ALPHA)):
+        backed = not more_breaks or (bp is not None and bp < ALPHA)
+        what = "more breaks" if more_breaks else "a curved trend"
+        if rc < rs and ((p is not None and p < ALPHA) or (gain >= LARGE_GAIN and backed)):
             i, best, basis, run = complex_[0], complex_[1], \
-                f"{complex_[2]}; more breaks, but more accurate than {simple[1].name}", \
+                f"{complex_[2]}; {what}, but more accurate than {simple[1].name}", \
                 complex_[3]
         else:
+            fewer = "fewer breaks" if more_breaks else "a straight or exponential trend"
             i, best, basis, run = simple[0], simple[1], \
-                f"{simple[2]}; fewer breaks than {complex_[1].name}", simple[3]
+                f"{simple[2]}; {fewer} than {complex_[1].name}", simple[3]
     return i, best, basis
 
 

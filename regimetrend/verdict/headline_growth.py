@@ -19,7 +19,8 @@ def growth_now(growth, model: Model) -> GrowthNow | None:
         base = ("compound growth of the fitted line from its level at the regime's start to "
                 "its level at the end")
     else:
-        base = "growth at the regime's end, a year's worth, as a share of the fitted level there"
+        base = ("the curve's slope at the last period over a year, as a share of the fitted "
+                "level there")
     strategy = "global" if model.strategy == "window-average" else model.strategy
     shared = growth.kind == "level" and len(growth.regimes) > 1
     since = last.start_label if last.start > 0 else None

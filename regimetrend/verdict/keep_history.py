@@ -64,10 +64,10 @@ def history_advice(series, model: Model, forecast, evaluation, breaks, evidence)
             source = ("the latest of the analyst's break dates known there"
                       if evidence is not None and evidence.breaks_given
                       else "the break re-detected there")
+            how = (f"{percent(abs(100 * g))} {'better' if g >= 0 else 'worse'} than"
+                   if abs(100 * g) >= 0.5 else "about as accurate as")  # no "0% better"
             leak_text = (f"; the leak-free trend refitted at each origin from {source}, "
-                         f"which a forecaster could have used, was "
-                         f"{percent(abs(100 * g))} {'better' if g >= 0 else 'worse'} "
-                         f"than all history")
+                         f"which a forecaster could have used, was {how} all history")
         declined = (f"that start was picked with hindsight as the best of {n_starts} fixed "
                     f"starts scored on the same origins, so its gain flatters it{leak_text}, "
                     f"and the chosen model is what the rule accepts on leak-free evidence")

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
+from ..evaluate.recommend import ALPHA, LARGE_GAIN
 from ..numformat import number, percent
 from ..words import p_phrase, significance
 from .breaks_used import break_words, judged_by
@@ -37,7 +38,26 @@ def _model_sentence(series, model: Model, ev: Evidence, start_label) -> str:
     return (text + f": on past periods it forecast {percent(abs(100 * g))} {better} than "
             f"one {ev.reference.split()[-1]} trend over all history (rolling-origin RMSE "
             f"{number(ev.rmse)} against {number(ev.reference_rmse)} over {ev.origins} "
-            f"origins; {test}).")
+            f"origins; {test}).{_without_test(ev)}")
+
+
+def _without_test(ev: Evidence) -> str:
+    """Why the rule kept a model whose accuracy test against the reference is not significant
+    (the rule's other steps, read from the basis it recorded)."""
+    if ev.p_better is not None and ev.p_better < ALPHA:
+        return ""
+    large = f"at least {LARGE_GAIN:.0%} better"
+    if "significant break" in ev.basis:
+        why = f"it is {large} and the break test is significant"
+    elif "wandering" in ev.basis:
+        why = f"it is {large} on a series that wanders, where break tests cannot decide"
+    elif "a curved trend" in ev.basis:
+        why = f"a curved trend {large} than a straight or exponential one is accepted"
+    elif "lower RMSE" in ev.basis:
+        why = "of models equally simple the more accurate is kept"
+    else:
+        return ""
+    return f" The rule keeps it without a significant accuracy test: {why}."
 
 
 def _and(parts) -> str:
@@ -84,8 +104,9 @@ def _growth_sentence(g: GrowthNow | None, chosen: str = "", units: str = "") -> 
     lo, hi = g.ci95
     ci = (f" (95% interval {percent(lo)} to {percent(hi)})"
           if lo is not None and hi is not None else "")
-    model = strategy_words(g.strategy, g.shape)
-    if g.since_label:
+    truncated = g.strategy == "truncated"  # its words name where its history starts
+    model = strategy_words(g.strategy, g.shape, g.since_label if truncated else None)
+    if g.since_label and not truncated:
         model += f", since {g.since_label}"
     amount = ""
     if g.per_year_units is not None:

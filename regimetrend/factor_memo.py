@@ -4,20 +4,22 @@ One analysis factorises the same design many times: the same history at an origi
 for every break kind, the linear and exponential shapes share their designs (only the response
 differs), and the tests and stability reruns fit break sets already fitted. A factorisation
 depends on the design alone, so it is computed once and reused; the key is the design's shape
-and bytes, so a hit returns exactly what the computation would (results stay identical). Only
-small designs are kept (``MAX_CELLS``) and at most ``MAX_ENTRIES`` of them, oldest dropped
-first; the kept arrays are read only.
+, layout and a 128-bit digest of its bytes, so a hit returns what the computation would
+(results stay identical). Only small designs are kept (``MAX_CELLS``, e.g. 120 monthly points
+with up to 50 columns) and at most ``MAX_ENTRIES`` of them, least recently used dropped first
+(a few tens of MB at most); the kept arrays are read only.
 """
 
 from __future__ import annotations
 
+import hashlib
 import threading
 from collections import OrderedDict
 from collections.abc import Callable
 
 import numpy as np
 
-MAX_CELLS = 20_000  # designs with more cells are factorised afresh every time
+MAX_CELLS = 6_000  # designs with more cells are factorised afresh every time
 MAX_ENTRIES = 512
 
 
@@ -32,7 +34,8 @@ class FactorMemo:
     def get(self, name: str, X: np.ndarray, compute: Callable):
         if X.size > self.max_cells or X.dtype != np.float64:
             return compute(X)
-        key = (name, X.shape, np.ascontiguousarray(X).tobytes())
+        digest = hashlib.blake2b(X.tobytes(order="A"), digest_size=16).digest()
+        key = (name, X.shape, X.strides, digest)  # the layout too: BLAS sums by it
         with self._lock:
             found = self._kept.get(key)
             if found is not None:

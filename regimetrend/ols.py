@@ -273,7 +273,7 @@ def _scaled(X: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _qr_factors(X: np.ndarray, inverse: bool = True) -> tuple:
-    """(norms, scaled design, Q, R, R^-1 or None) of the column-scaled design; raises
+    """(norms, Q, R, R^-1 or None) of the design scaled by its column norms; raises
     ``RankDeficient`` when R shows dependent columns."""
     n, k = X.shape
     norms, Xs = _scaled(X)
@@ -282,7 +282,7 @@ def _qr_factors(X: np.ndarray, inverse: bool = True) -> tuple:
     if diag.min() <= diag.max() * 1e-12 * max(n, k):
         raise RankDeficient("design columns are linearly dependent")
     r_inv = solve_triangular(r, np.eye(k), check_finite=False) if inverse else None
-    return norms, Xs, q, r, r_inv
+    return norms, q, r, r_inv
 
 
 def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
@@ -298,7 +298,8 @@ def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
     if n < k:
         raise RankDeficient(f"{n} observations for {k} coefficients")
     if n < TALL:  # the QR factors depend on the design alone: kept for the next fit of it
-        norms, Xs, q, r, r_inv = FACTORS.get("ols-qr", X, _qr_factors)
+        norms, q, r, r_inv = FACTORS.get("ols-qr", X, _qr_factors)
+        Xs = X / norms
         beta_s = solve_triangular(r, q.T @ y, check_finite=False) if k else np.zeros(0)
         # One step of iterative refinement recovers digits lost on ill-conditioned designs.
         resid = y - Xs @ beta_s
@@ -313,7 +314,7 @@ def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
             beta_s = _semi_normal(r, Xs.T @ y)
             beta_s = beta_s + _semi_normal(r, Xs.T @ (y - Xs @ beta_s))
         else:
-            _, _, q, r, _ = _qr_factors(X, inverse=False)
+            _, q, r, _ = _qr_factors(X, inverse=False)
             beta_s = solve_triangular(r, q.T @ y, check_finite=False) if k else np.zeros(0)
             resid = y - Xs @ beta_s
             beta_s = beta_s + solve_triangular(r, q.T @ resid, check_finite=False)

@@ -79,10 +79,10 @@ def _orthonormal(X: np.ndarray) -> np.ndarray:
     """An orthonormal basis of the columns of X (dependent columns dropped). The same fixed
     design recurs across break kinks, shapes and reruns, so the basis is kept per exact design
     (``factor_memo``)."""
-    return FACTORS.get("kinks-basis", np.asarray(X, dtype=float), _basis)
+    return FACTORS.get("kinks-basis", np.asarray(X, dtype=float), _qr_basis)
 
 
-def _basis(X: np.ndarray) -> np.ndarray:
+def _qr_basis(X: np.ndarray) -> np.ndarray:
     norms = np.linalg.norm(X, axis=0)
     q, r = np.linalg.qr(X / np.where(norms > 0, norms, 1.0))
     keep = np.abs(np.diag(r)) > 1e-10

@@ -16,6 +16,11 @@ Printed, all measured in this run:
   whole break search at every origin) with the cache emptied, and the yardstick of one plain
   least-squares fit of the global trend, so the figures can be compared across machines.
 
+Figures (busy shared 2-core machine, best of 5, after the design factor memo): cold 1069 ms,
+warm 950 ms (baseline 1905 ms), scan 19 ms cold / 13 ms warm; far above the goal since three
+shapes are evaluated (see DEVELOPERS.md, performance notes). The factor memo
+(``factor_memo.FACTORS``) is emptied with the nulls before the cold runs and the yardstick.
+
 Run: ``python benchmarks/bench_one_analysis.py [--repeats N]``.
 """
 

@@ -155,9 +155,11 @@ def engine_costs(src, workers: int) -> dict:
           f"{', '.join(str(f['blas_threads']) for f in facts)}; workers: {len(facts)}")
     settings = Settings()
     count = len(read_portfolio(src, id_columns=("store",)).tasks)
-    size = chunk_size(count, workers)
-    print(f"   chunks: {count} series on {workers} workers -> {size} series a chunk, "
-          f"{-(-count // size)} chunks (at most {2 * workers} queued)")
+    for level in ("scan", "full"):
+        size = chunk_size(1000, workers, level)
+        print(f"   chunks, {level} level: 1000 series on {workers} workers -> {size} series a "
+              f"chunk, {-(-1000 // size)} chunks (at most {2 * workers} in flight); 1,000,000 "
+              f"series -> {chunk_size(1_000_000, 256, level)} a chunk")
     t0 = time.perf_counter()
     jobs = jobs_of(src, "scan", settings)
     read_s = (time.perf_counter() - t0) / count
@@ -322,8 +324,7 @@ def projection(one: dict, costs: dict, dask: dict | None, runs: dict) -> None:
     """Section 5: T(N) = start-up + max(S c / N, S client, K task) + one chunk's tail."""
     print("\n5. projection: 1,000,000 series of 120 monthly points on a Dask cluster of N "
           "workers (one core each)")
-    series, size = 1_000_000, 25
-    chunks = series // size
+    series = 1_000_000
     per_task = dask["per_task"] if dask else 0.005
     startup = dask["startup"] if dask else costs["startup"]
     client = costs["client"]
@@ -332,8 +333,10 @@ def projection(one: dict, costs: dict, dask: dict | None, runs: dict) -> None:
         levels[level] = run["two"]["cpu_per_series"]
     print(f"   inputs: CPU per series {', '.join(f'{k} {1000 * v:.1f} ms' for k, v in levels.items())}"
           f" (section 3, or 1); client {1000 * client:.2f} ms a series (2); "
-          f"{1000 * per_task:.2f} ms a task of {size} series (4); start-up {startup:.1f} s")
+          f"{1000 * per_task:.2f} ms a task (4); start-up {startup:.1f} s")
     for level, cpu in levels.items():
+        size = chunk_size(series, 256, level)
+        chunks = series // size
         for workers in (16, 64, 256, 1024):
             compute = series * cpu / workers
             serial_client = series * client

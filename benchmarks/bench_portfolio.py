@@ -213,15 +213,20 @@ def timed_run(src, level, workers, settings) -> dict:
         t0 = time.perf_counter()
         with LocalEngine(workers) as engine:
             before = facts_of_workers(engine, workers)
-            t1 = time.perf_counter()
+            t1, c1 = time.perf_counter(), time.process_time()
             result = run_portfolio(src, out, id_columns=["store"], level=level,
                                    settings=settings, engine_object=engine, formats=("csv",))
-            t2 = time.perf_counter()
+            t2, c2 = time.perf_counter(), time.process_time()
             after = facts_of_workers(engine, workers)
         assert result.computed == result.total
         cpu = sum(a["cpu_s"] for a in after) - sum(b["cpu_s"] for b in before)
+        busiest = max(a["cpu_s"] - b["cpu_s"] for a, b in zip(
+            sorted(after, key=lambda f: f["pid"]), sorted(before, key=lambda f: f["pid"])))
         return {"seconds": t2 - t1, "with_startup": t2 - t0, "cpu_per_series":
-                cpu / result.total, "peaks": [a["peak_mb"] for a in after]}
+                cpu / result.total, "peaks": [a["peak_mb"] for a in after],
+                "client_cpu": c2 - c1, "busiest_worker_cpu": busiest,
+                # two cores shared by the workers and the client, none waiting for another
+                "idle_estimate": max(busiest, c2 - c1, (cpu + c2 - c1) / 2)}
     finally:
         shutil.rmtree(out, ignore_errors=True)
 
@@ -265,6 +270,11 @@ def portfolio_runs(files: dict, target: int, compare: int) -> dict:
         peaks = one["peaks"] + two_small["peaks"] + two["peaks"]
         print(f"        peak resident memory per worker (getrusage): {max(peaks):.0f} MB "
               f"(workers: {', '.join(f'{p:.0f}' for p in peaks)} MB)")
+        print(f"        CPU seconds of the {count}-series run on 2 workers: busiest worker "
+              f"{two['busiest_worker_cpu']:.1f} s, client {two['client_cpu']:.1f} s: on an idle "
+              f"two-core machine the run would take about {two['idle_estimate']:.1f} s (all "
+              f"CPU over two cores, at least the busiest process; wall above "
+              f"{two['seconds']:.1f} s, the rest is waiting for the shared cores)")
         label = "measured" if count >= target else f"projected from {count} series"
         total = two["with_startup"] if count >= target else (
             two["seconds"] * target / count + two["with_startup"] - two["seconds"])

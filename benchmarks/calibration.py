@@ -19,6 +19,11 @@ Rows (each against the method used before, measured in the same run where one ex
 - growth intervals: the 95% interval of a regime's slope (40, 60, 120 points; rho 0, 0.3, 0.6)
   with ``ols.cov_hac_prewhitened`` and t quantiles ("now") and Newey-West with the fixed lag
   rule and normal quantiles ("before"); goal 92-97%.
+- wandering: share of series read as wandering (``breaks/wandering.py``) by the first reading
+  alone ("before") and with the second reading (one trend's residuals wander and the breaks
+  leave AR(1) at least 0.6; "now"), linear shape, quarterly, 60/120/240 points: random walks
+  with drift (should be flagged), a jump or a kink at 60% of the series with white errors and
+  a jump with AR(1) errors of rho 0.5 (should not).
 - time: ``detect_breaks`` plus ``growth_table`` (what ``scan`` computes) on a 120-point monthly
   series with seasonal dummies, median of 15 runs; goal <= 100 ms.
 
@@ -112,6 +117,38 @@ def size_rows(reps: int) -> list[str]:
                               for k in KINDS + ("auto",))
             extra = f"  wandering {flagged / reps:4.2f}" if rho >= 0.9 else ""
             rows.append(f"size      rho {rho:3.1f} n {n:3d}  {cells}{extra}")
+    return rows
+
+
+def wandering_rows(reps: int) -> list[str]:
+    from regimetrend.breaks.detect import find_breaks
+    from regimetrend.design import TrendSpec
+    from regimetrend.settings import BreakSettings
+
+    rows = []
+    spec = TrendSpec("linear", "none", 4)
+    for n in (60, 120, 240):
+        for kind in ("random walk", "jump", "kink", "jump, rho 0.5"):
+            rng = np.random.default_rng(n)
+            first = both = 0
+            for _ in range(reps):
+                t = np.arange(n)
+                e = rng.standard_normal(n)
+                if kind == "random walk":
+                    y = np.cumsum(0.3 + e)
+                else:
+                    u = lfilter([1.0], [1.0, -0.5], e) if "rho" in kind else e
+                    y = 0.3 * t + u
+                    y = y + (5.0 * (t >= 0.6 * n) if kind.startswith("jump")
+                             else 0.5 * np.maximum(t - 0.6 * n, 0))
+                starts = (np.datetime64("1990-01", "M") + 3 * np.arange(n)).astype(
+                    "datetime64[D]")
+                s = Series("sim", starts, 100 + y, Frequency("quarter"))
+                w = find_breaks(s, spec, BreakSettings()).wandering
+                first += w.wandering
+                both += w.wandering or w.trend_reading()
+            rows.append(f"wandering n {n:3d} {kind:14s} now {both / reps:4.2f} "
+                        f"(before {first / reps:4.2f})")
     return rows
 
 
@@ -236,7 +273,7 @@ def main(argv=None) -> int:
               f"size cell, {power} per power cell, {dates} per date cell, {growth} per growth "
               f"cell); size: now (before)")
         for row in (size_rows(size) + power_rows(power) + date_rows(dates) + growth_rows(growth)
-                    + [time_row()]):
+                    + wandering_rows(dates) + [time_row()]):
             print(row, flush=True)
     return 0
 

@@ -102,6 +102,7 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
     from . import verdict as verdicts
     from .breaks import cusum as cusum_paths
     from .breaks.detect import find_breaks
+    from .breaks.wandering import wanders_under_every_shape
     from .design import SHAPES
     from .evaluate import evaluate
     from .growth import growth_from_fits, growth_table
@@ -126,7 +127,11 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
                                                   progress=progress, place_after=place_after))
             for s in run_shapes]
     lag1 = runs[0].evaluation.diagnosis.data.get("residual_lag1")
-    wandering = bool(runs[0].breaks.is_wandering)  # KPSS and AR(1) of the break model's residuals
+    # KPSS and AR(1) of the break models' residuals (``breaks/wandering.py``); under the
+    # automatic shape read across shapes (a shape whose model leaves little persistence explains
+    # it as a curve); one shape alone cannot tell a curve from a random walk by the second reading
+    wandering = (bool(runs[0].breaks.is_wandering) if explicit else
+                 wanders_under_every_shape([s.wandering for s in searches.values()]))
     index, chosen, basis = verdicts.choose(runs, explicit, wandering)
     run = runs[index]
     spec = TrendSpec(chosen.strategy.shape, base.seasonality, base.season_length)
@@ -149,9 +154,10 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
                     growth=growth, forecast=forecast,
                     global_forecast=global_forecast, global_fitted=global_fit.fitted(),
                     cusum=cusum,
-                    cautions=cautions.for_analysis(series, run.breaks if verdict.breaks
-                                                   else None,
-                                                   tuple(run.evaluation.cautions) + extra),
+                    cautions=cautions.for_analysis(
+                        series, run.breaks if verdict.breaks else None,
+                        tuple(run.evaluation.cautions) + extra,
+                        unused=() if verdict.breaks else (run.breaks, runs[0].breaks)),
                     global_trend=global_fit.trend(), verdict=verdict, searches=searches,
                     evaluations={r.shape: r.evaluation for r in runs})
 
@@ -176,15 +182,31 @@ def _as_decided(evaluation, reference_evaluation, verdict):
 
 def _model_growth(series, spec, strategy, breakset, forecast, growth_table, growth_from_fits):
     """The growth table of the chosen model: one trend (global), the trend of the kept history
-    (truncated), the regime model of the break search (separate) or the trend joined at the
-    breaks (continuous); a window average is described by one trend over all history (its
-    windows all end at the last period; the growth table says which model it shows)."""
+    (truncated), a trend per regime with its own level and growth at the breaks the separate
+    fit uses (separate; whatever kind of break the search found, since that is what the
+    strategy fits) or the trend joined at the breaks (continuous); a window average is
+    described by one trend over all history (its windows all end at the last period; the
+    growth table says which model it shows)."""
     from .errors import InputError
 
     if strategy.name in ("global", "window-average") or not breakset.positions:
         return growth_table(series, spec, ())
     if strategy.name == "truncated":
         return growth_from_fits(series, [fit_history(series, spec, int(forecast.fitted_from))])
+    if strategy.name == "separate":  # each regime its own level and growth, as it is fitted
+        from .regimes import joint_knots
+
+        knots = joint_knots(breakset.positions, series.n, strategy.shape, spec.seasonality,
+                            strategy.last_shape)
+
+        while knots:
+            try:
+                return growth_table(series, spec, list(knots), kind="both")
+            except InputError:  # regimes confounded with the seasonal dummies: like the joint
+                if spec.seasonality != "dummies":  # fit (``OriginFits.piecewise``), drop
+                    break  # the oldest break first; otherwise one trend
+                knots = knots[1:]
+        return growth_table(series, spec, ())
     kind = "slope" if strategy.name == "continuous" else None
     try:
         return growth_table(series, spec, breakset, **({"kind": kind} if kind else {}))

@@ -9,7 +9,7 @@ The report and the CLI show these texts; they do not write their own.
 
 from __future__ import annotations
 
-from .words import near_end
+from .words import near_end, near_end_unused
 
 EXTRAPOLATION = ("Extrapolation assumes the last regime holds: the forecast continues the trend "
                  "of the most recent regime, and a new change of regime after the end of the "
@@ -51,9 +51,20 @@ def assemble(*groups) -> tuple[str, ...]:
     return tuple(out)
 
 
-def for_analysis(series, breaks, evaluation_cautions=()) -> tuple[str, ...]:
-    """Standing cautions, the last break's own, then the evaluation's."""
-    extra = []
+def for_analysis(series, breaks, evaluation_cautions=(), unused=()) -> tuple[str, ...]:
+    """Standing cautions, the last break's own, then the evaluation's. ``breaks``: the break
+    search whose breaks the chosen model uses (None when it uses none); ``unused``: break
+    searches whose breaks the chosen model does not use; the latest of their breaks still gets
+    the near-end caution, because a recent change the model ignores is the one that may show."""
+    extra: list[str | None] = []
+    latest = max((b for s in unused if s is not None for b in s.breaks),
+                 key=lambda b: b.position, default=None)
+    if (breaks is None or not breaks.breaks) and latest is not None:
+        hi = int(latest.position) if latest.given else int(latest.ci95[1])
+        if near_end(series, latest.position, hi):
+            extra.append(near_end_unused(series, latest.position,
+                                         "given by the analyst" if latest.given
+                                         else "found by the break search"))
     if breaks is not None and breaks.breaks:
         last = breaks.breaks[-1]
         if last.given:

@@ -123,11 +123,14 @@ def points(x, missing: str = MISSING) -> str:
 
 
 def pvalue(x, missing: str = MISSING) -> str:
-    """A p-value: three decimals, ``< 0.001`` below that."""
+    """A p-value: three decimals, ``< 0.001`` below that and ``> 0.999`` above (a simulated
+    p-value of 1 means no simulated statistic was smaller, not certainty)."""
     v = _finite(x)
     if v is None:
         return missing
-    return "< 0.001" if v < 0.001 else f"{min(v, 1.0):.3f}"
+    if v < 0.001:
+        return "< 0.001"
+    return "> 0.999" if v > 0.999 else f"{v:.3f}"
 
 
 def statistic(x, missing: str = MISSING) -> str:

@@ -166,6 +166,18 @@ def usable_breaks(breaks, origin: int, first_need: int, last_need: int) -> tuple
     return tuple(kept)
 
 
+def joint_knots(breaks, origin: int, shape: str, seasonality: str,
+                last_shape: str | None = None) -> tuple[int, ...]:
+    """The breaks a joint fit (separate or continuous) of ``shape`` uses up to ``origin``:
+    every regime keeps one point more than the shape's trend terms, the last one two more (of
+    ``last_shape``); with seasonal adjustment at least two."""
+    first_need = TERMS[shape] + 1
+    last_need = TERMS[last_shape or shape] + 2
+    if seasonality == "adjust":
+        first_need = last_need = max(last_need, 2)
+    return usable_breaks(breaks, origin, first_need, last_need)
+
+
 @dataclass(frozen=True, eq=False)
 class PiecewiseFit(TrendFit):
     """A joint least-squares fit of the regime design (``regime_design.RegimeDesign``: kind
@@ -286,11 +298,7 @@ class OriginFits:
         if key in self._trends:
             return self._trends[key]
         spec = self.spec_for(shape)
-        first_need = TERMS[shape] + 1
-        last_need = TERMS[last_shape] + 2
-        if spec.seasonality == "adjust":
-            first_need = last_need = max(last_need, 2)
-        knots = usable_breaks(self.breaks, self.origin, first_need, last_need)
+        knots = joint_knots(self.breaks, self.origin, shape, spec.seasonality, last_shape)
         while True:
             if not knots:
                 fit = self.trend(last_shape)

@@ -34,7 +34,7 @@ def p_phrase(p: float | None) -> str:
     text = numformat.pvalue(p, missing="")
     if not text:
         return "p not available"
-    return f"p {text}" if text.startswith("<") else f"p = {text}"
+    return f"p {text}" if text[0] in "<>" else f"p = {text}"
 
 
 def near_end(series, position: int | None, ci_high: int | None) -> str | None:
@@ -52,6 +52,16 @@ def near_end(series, position: int | None, ci_high: int | None) -> str | None:
                 f"{series.frequency.name} periods in the last regime; its growth figures and the "
                 f"forecast from it are less certain than the intervals alone suggest.")
     return None
+
+
+def near_end_unused(series, position: int, how: str) -> str:
+    """The caution for a break near the end that the chosen model does not use (``how``: 'found
+    by the break search' or 'given by the analyst')."""
+    tail = series.n - int(position)
+    return (f"A break at {series.label(int(position))}, {how}, leaves only {tail} "
+            f"{series.frequency.name} periods after it; the chosen model does not use it, but a "
+            f"change this recent can be neither confirmed nor ruled out yet, so the forecast may "
+            f"miss it if it is real.")
 
 
 def history_sentence(keep_from_label: str | None, reason: str) -> str:

@@ -92,8 +92,16 @@ def test_history_sentence_follows_the_verdict_and_labels_in_sample_breaks(nile_c
     assert hist["keep_from"] == result["verdict"]["keep_history_from"]
     assert hist["sentence"] in result["verdict"]["sentences"]
     # the Aswan dam's first phase (1898-1902) lowered the flow from 1899 (from memory; the
-    # classic break of this series): the break search finds it
+    # classic break of this series): the break search finds it and the verdict reports it.
+    # Keeping the history from 1899 is not asserted: on these 16 origins an average of
+    # exponential trends from several window starts forecast as well as the trends from the
+    # break (rolling-origin RMSE 115 against 117, a gap no test separates) and uses no break,
+    # so the rule keeps it; the verdict then says the break is found but not used.
     assert any(b["label"] in ("1898", "1899", "1900") for b in result["breaks"]["breaks"])
+    verdict_text = " ".join(result["verdict"]["sentences"])
+    assert any(y in verdict_text for y in ("1898", "1899", "1900"))
+    if result["verdict"]["keep_history_from"] is None:
+        assert "does not use it" in verdict_text
     assert "optimistic: in-sample break" in hist["evidence"]["note"]
     assert "sup-F p" not in hist["sentence"]
     sweep = json.loads(out)["history_sweep"]

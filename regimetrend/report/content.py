@@ -346,7 +346,8 @@ def _verdict_facts(v, units: str = "") -> list[Fact]:
     """Headline cards from the verdict: growth now, the latest break used, the first forecast
     period and the chosen model, each from the one chosen model; ``units`` (' UNITS' or '')
     follows every figure in the series' own units."""
-    from ..verdict import interval_words, num_text, pct_text, strategy_words
+    from ..numformat import number, percent
+    from ..verdict import interval_words, strategy_words
 
     facts = []
     g = v.growth_now
@@ -354,16 +355,17 @@ def _verdict_facts(v, units: str = "") -> list[Fact]:
         since = f"since {g.since_label}" if g.since_label else "over all history"
         lo, hi = g.ci95
         if g.shape == "linear" and g.per_year_units is not None:
-            value = f"{num_text(g.per_year_units)}{units} a year"
-            sub = (f"{pct_text(g.annualised_pct)} a year; " if g.annualised_pct is not None
+            value = f"{number(g.per_year_units)}{units} a year"
+            sub = (f"{percent(g.annualised_pct)} a year; " if g.annualised_pct is not None
                    else "") + f"{g.shape} trend"
         else:
-            value = f"{pct_text(g.annualised_pct)} a year"
-            sub = (f"95%: {pct_text(lo)} to {pct_text(hi)}" if None not in (lo, hi) else "")
+            value = f"{percent(g.annualised_pct)} a year"
+            sub = (f"95%: {percent(lo)} to {percent(hi)}" if None not in (lo, hi) else "")
         facts.append(Fact(f"growth now, {since}", value, sub))
     if v.breaks:
         b = v.breaks[-1]
         facts.append(Fact("latest change of regime", b.label,
+                          "given by the analyst" if b.ci95_labels is None else
                           interval_words(*b.ci95_labels).replace("95% interval ", "95%: ")))
     else:
         facts.append(Fact("change of regime used", "none", f"{v.search_breaks} found by the "

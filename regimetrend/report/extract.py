@@ -7,7 +7,7 @@ that need it, and the page says so, instead of failing.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, is_dataclass, replace
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -113,10 +113,14 @@ def gather(analysis: Analysis, source_name: str | None = None,
     series = getattr(analysis, "series", None)
     if not isinstance(series, Series):
         raise TypeError("write_report needs an Analysis (with its series)")
+    verdict = getattr(analysis, "verdict", None)
+    if units and verdict is not None:  # the verdict's amounts in the analyst's units
+        verdict = verdict.in_units(units)
+        if is_dataclass(analysis):
+            analysis = replace(analysis, verdict=verdict)
     breakset, evaluation, growth = analysis.breaks, analysis.evaluation, analysis.growth
     cusum = analysis.cusum if analysis.cusum and "path" in analysis.cusum else None
     found = _breaks(breakset, series)
-    verdict = getattr(analysis, "verdict", None)
     used, unused = _model_breaks(verdict, found)
     start = growth.regimes[0].start if growth is not None and growth.regimes else 0
     return ReportData(

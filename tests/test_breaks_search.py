@@ -193,3 +193,24 @@ def test_refinement_reaches_a_coordinatewise_optimum():
     assert exact == [True, True, True, False]
     assert all(abs(p - q) <= 2 for p, q in zip(positions[3], (25, 50, 72)))
     assert np.all(np.diff(ssr) <= 1e-9)  # more breaks never fit worse
+
+
+@pytest.mark.parametrize("kind", ["level", "slope"])
+def test_two_break_grid_with_52_season_columns_by_regime_equals_statsmodels(kind):
+    # statsmodels' co2 (weekly Mauna Loa CO2) from 1990, 170 weeks, 52-week season
+    # indicators changing with the regime: the grid's SSR at the pair it picks, and at every
+    # pair, equals statsmodels OLS on the explicit design to 1e-10 (the grid reuses its power
+    # sums across blocks of pairs and skips products of different season columns).
+    frame = sm.datasets.co2.load_pandas().data.loc["1990":].interpolate().iloc[:170]
+    y = frame["co2"].to_numpy(float)
+    n, h = y.size, 53
+    t = np.arange(n, dtype=float)
+    season = np.eye(52)[np.arange(n) % 52]
+    seasonal = season[:, 1:] - season[:, :1]  # effect-coded, as the problem builds them
+    Z = np.column_stack([np.ones(n), t / n, seasonal])
+    terms = kinks.break_terms(kind, 1, seasonal)
+    pair, ssr = kinks.best_pair(y, Z, terms, h)
+    pairs = [(a, b) for a in range(h, n - 2 * h + 1) for b in range(a + h, n - h + 1)]
+    ref = {p: _ols_ssr(kinks.design_with_breaks(Z, list(p), terms), y) for p in pairs}
+    assert pair == min(ref, key=ref.get)
+    assert ssr == pytest.approx(ref[pair], rel=1e-10)

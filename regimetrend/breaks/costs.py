@@ -100,8 +100,38 @@ class SegmentCost:
 
     # -- public ------------------------------------------------------------------------------
     def cost(self, a: int, b: int) -> float:
-        """SSR of the trend fitted on positions a..b-1."""
-        return float(self.costs(np.asarray([a]), np.asarray([b]))[0])
+        """SSR of the trend fitted on positions a..b-1.
+
+        Without season indicators this is plain float arithmetic on the prefix sums, the same
+        operations in the same order as ``costs`` (so the same value to the last bit), about
+        ten times faster per call: ruptures' searches ask for one segment at a time, a million
+        times on a long series."""
+        if self.season_length > 1:
+            return float(self.costs(np.asarray([a]), np.asarray([b]))[0])
+        a, b = int(a), int(b)
+        if b - a < self.min_size or a < 0 or b > self.n:
+            return float(np.inf)
+        L = float(b - a)
+
+        def diff(prefix):
+            hi, lo = prefix
+            return (hi.item(b) - hi.item(a)) + (lo.item(b) - lo.item(a))
+
+        syy = diff(self._pyy)
+        m = (a + b - 1) / 2.0 - self._c
+        y0 = diff(self._py[0])
+        ssr = syy - y0 * y0 / L
+        if self.degree >= 1:
+            x1 = diff(self._py[1])
+            r1 = x1 - m * y0
+            ssr = ssr - r1 * r1 / (L * (L * L - 1.0) / 12.0)
+        if self.degree >= 2:
+            x2 = diff(self._py[2])
+            y2 = x2 - 2.0 * m * x1 + m * m * y0
+            s2 = L * (L * L - 1.0) / 12.0
+            r2 = y2 - s2 / L * y0
+            ssr = ssr - r2 * r2 / (L * (L * L - 1.0) * (L * L - 4.0) / 180.0)
+        return ssr if not ssr < 0.0 else 0.0
 
     def costs(self, starts, ends) -> np.ndarray:
         """SSR for every pair (starts, ends), broadcast together; ``inf`` where too short.

@@ -31,6 +31,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+import scipy.linalg
 from scipy import stats
 
 from .. import ols
@@ -99,31 +100,50 @@ def _start_of_recursion(X: np.ndarray) -> int:
                      "or duplicates another")
 
 
-def recursive_residuals(y, X, refresh_every: int = 50) -> tuple[np.ndarray, int]:
+def recursive_residuals(y, X, block: int = 1024) -> tuple[np.ndarray, int]:
     """Recursive residuals w_r for r = r0 .. n-1 (0-based) and r0.
 
-    The fit is updated one period at a time (Sherman-Morrison on column-scaled regressors) and
-    recomputed from a QR factorisation every ``refresh_every`` periods, which keeps long or
-    badly scaled designs accurate at O(n k^2) cost.
+    Sequential QR in blocks: the triangular factor R (and z = Q'y) of the rows before a block
+    is exact from an orthogonal update; within a block the regressors are rotated by R^-1, so
+    the earlier rows weigh in as the identity and the rows of the block so far are added as
+    cumulative outer products, then every row's fit is one batched solve of a well-conditioned
+    k x k system. A block never holds more rows than came before it (so the identity dominates
+    early on); blocks are at most ``block`` rows. O(n k^3) arithmetic in a few thousand numpy
+    calls, where refitting the history at every period costs O(n^2 k^2): measured 14 s at
+    100,000 daily points for a 50-period refresh, about 0.3 s this way
+    (``benchmarks/bench_portfolio_long.py``).
     """
     y, X = _inputs(y, X)
     r0 = _start_of_recursion(X)
-    n = y.size
+    n, k = X.shape
     norms = np.linalg.norm(X, axis=0)
-    Xs = X / norms
+    Xs = X / np.where(norms > 0, norms, 1.0)
+    top = np.asarray(np.linalg.qr(np.column_stack([Xs[:r0], y[:r0]]), mode="r"))
+    R, z = top[:k, :k], top[:k, k]
     w = np.empty(n - r0)
-    beta = inv = None
-    for i, r in enumerate(range(r0, n)):
-        if i % refresh_every == 0:
-            fit = ols.fit(Xs[:r], y[:r])
-            beta, inv = fit.beta.copy(), fit.xtx_inv.copy()
-        x = Xs[r]
-        gx = inv @ x
-        f = 1.0 + x @ gx
-        err = y[r] - x @ beta
-        w[i] = err / math.sqrt(f)
-        beta = beta + gx * (err / f)
-        inv = inv - np.outer(gx, gx) / f
+    eye = np.eye(k)
+    s = r0
+    while s < n:
+        e = min(n, s + max(1, min(block, s)))
+        Xb, yb = Xs[s:e], y[s:e]
+        Xt = scipy.linalg.solve_triangular(R, Xb.T, trans="T").T  # rows x' R^-1
+        outer = Xt[:, :, None] * Xt[:, None, :]
+        M = np.empty_like(outer)
+        M[0] = eye
+        np.cumsum(outer[:-1], axis=0, out=M[1:])
+        M[1:] += eye
+        c = np.empty_like(Xt)
+        c[0] = z
+        np.cumsum(Xt[:-1] * yb[:-1, None], axis=0, out=c[1:])
+        c[1:] += z
+        sol = np.linalg.solve(M, np.stack([c, Xt], axis=-1))
+        pred = np.einsum("ri,ri->r", Xt, sol[:, :, 0])
+        lev = np.einsum("ri,ri->r", Xt, sol[:, :, 1])
+        w[s - r0:e - r0] = (yb - pred) / np.sqrt(1.0 + lev)
+        top = np.asarray(np.linalg.qr(np.vstack([np.column_stack([R, z]),
+                                                 np.column_stack([Xb, yb])]), mode="r"))
+        R, z = top[:k, :k], top[:k, k]
+        s = e
     return w, r0
 
 

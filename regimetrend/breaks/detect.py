@@ -38,7 +38,8 @@ from .. import ols
 from ..design import TrendSpec
 from ..errors import InputError, about, option, setting
 from ..settings import DEFAULT_MAX_BREAKS, BreakSettings, Settings
-from . import calibrate, critical, cusum, chow, exact, intervals, kinks, select, wandering
+from . import (calibrate, critical, cusum, chow, exact, intervals, kinks, long_search, select,
+               wandering)
 from .problem import KINDS, BreakProblem, build_problem
 from .result import (Break, BreakSet, BreakTests, CusumSummary, Drift, EventTest, Segment,
                      SequentialStep, SupFTest)
@@ -370,7 +371,7 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
                      "changes only, so no p-value is given for it.")
     if path.method in PENALISED:
         how = ("PELT" if path.method == "pelt" else
-               f"ruptures' bottom-up segmentation polished exactly (from {exact.BOTTOM_UP_LENGTH} "
+               f"ruptures' bottom-up segmentation polished exactly (from {long_search.BOTTOM_UP_LENGTH} "
                f"periods, where it matched PELT's breaks several times faster)")
         notes.append(f"Series of {exact.PELT_LENGTH} periods or more are searched by {how} with "
                      f"a BIC-matched penalty; only that break count is evaluated.")
@@ -807,7 +808,9 @@ def _profile_interval(problem: BreakProblem, kind: str, positions, i: int, fit,
     terms = problem.terms(kind)
     others = list(positions[:i]) + list(positions[i + 1:])
     lo, hi = _admissible_window(problem, positions, i)
-    _, _, cand, prof = kinks.best_single(problem.y, problem.base, terms, lo, hi, others)
+    memo = problem.scans(kind)
+    _, _, cand, prof = kinks.best_single(problem.y, problem.base, terms, lo, hi, others,
+                                         memo.pair_memo, memo.base)
     # With autocorrelated errors the SSR profile is scaled by the long-run variance
     # (the eta^2 scaling of Hansen's likelihood ratio), which widens the set.
     sigma2 = fit.ssr / max(fit.df_resid, 1) / robust_factor(fit.residuals, robust)

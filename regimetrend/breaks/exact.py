@@ -11,9 +11,10 @@ Fearnhead and Eckley, 2012) on the same segment cost, with a penalty per break m
 BIC (``bic_penalty``). ``pelt_search`` follows ruptures' ``Pelt`` step for step (the tests check
 that both give the same breaks on ``ruptures_cost.TrendCost``) but prices the surviving
 candidates in one numpy call per period; ruptures' own loop calls the cost once per candidate,
-which is fine for a few thousand points and slow for 100,000. From ``BOTTOM_UP_LENGTH`` points
-on (method ``auto``) ``bottom_up_search`` takes PELT's place: ruptures' bottom-up segmentation
-on our cost, polished exactly to a local optimum of the same penalised objective.
+which is fine for a few thousand points and slow for 100,000. From
+``long_search.BOTTOM_UP_LENGTH`` points on (method ``auto``) ``long_search.bottom_up_search``
+takes PELT's place: ruptures' bottom-up segmentation on our cost, polished exactly to a local
+optimum of the same penalised objective.
 """
 
 from __future__ import annotations
@@ -25,10 +26,6 @@ import numpy as np
 from .costs import SegmentCost
 
 PELT_LENGTH = 5000  # exact search below this length, PELT from here on
-# From here on, ruptures' bottom-up segmentation polished exactly replaces PELT (auto method):
-# on planted series it found PELT's breaks 4.9x faster at 20,000 points and 5x at 50,000
-# (benchmarks/bench_portfolio_long.py); PELT's candidate set barely prunes on trends.
-BOTTOM_UP_LENGTH = 20_000
 _BLOCK_ELEMENTS = 2_000_000
 
 
@@ -126,80 +123,6 @@ def pelt_search(cost: SegmentCost, penalty: float, h: int) -> tuple[int, ...]:
         if t > 0:
             out.append(t)
     return tuple(sorted(out))
-
-
-def bottom_up_search(cost: SegmentCost, penalty: float, h: int,
-                     max_sweeps: int = 20) -> tuple[int, ...]:
-    """Minimise SSR + penalty x (number of breaks) by ruptures' bottom-up segmentation on our
-    segment cost, then polish the result exactly; for very long series, where PELT's candidate
-    set stays large (``BOTTOM_UP_LENGTH``; measured in ``benchmarks/bench_portfolio_long.py``).
-
-    Bottom-up (ruptures ``BottomUp``) starts from a fine regular partition and merges the
-    neighbours whose merger costs least while that saves more than the penalty: fast, greedy,
-    and its breaks sit on its starting grid or a few points off the optimum. The polish, exact
-    on our cost: every break in turn moves to its best position between its neighbours
-    (one vectorised pricing of all candidates), and a break is dropped whenever that lowers
-    SSR + penalty x breaks; sweeps repeat until nothing changes. The result is a local optimum
-    of the same objective PELT minimises globally. A pair of neighbouring breaks is also
-    replaced by one when one break between their neighbours does better (bottom-up can bracket a
-    level shift with two breaks a few points apart)."""
-    import ruptures
-    from ruptures.base import BaseCost
-
-    class _Given(BaseCost):
-        model = "regimetrend-given"
-        min_size = max(int(h), cost.min_size)
-
-        def fit(self, signal):
-            self.signal = np.asarray(signal, dtype=float).reshape(cost.n, -1)
-            return self
-
-        def error(self, start, end):
-            return cost.cost(start, end)
-
-    n = cost.n
-    h = max(int(h), cost.min_size)
-    if n < 2 * h:
-        return ()
-    algo = ruptures.BottomUp(custom_cost=_Given(), min_size=h, jump=1).fit(np.zeros(n))
-    pos = [int(b) for b in algo.predict(pen=float(penalty)) if 0 < b < n]
-    for _ in range(max_sweeps):
-        changed = False
-        i = 0
-        while i < len(pos):
-            a = pos[i - 1] if i > 0 else 0
-            c = pos[i + 1] if i + 1 < len(pos) else n
-            cand = np.arange(a + h, c - h + 1)
-            if cand.size:
-                total = cost.costs(np.full(cand.size, a), cand) + cost.costs(cand, np.full(
-                    cand.size, c))
-                k = int(np.argmin(total))
-                if float(cost.cost(a, c)) <= float(total[k]) + penalty:
-                    del pos[i]  # the break does not pay for itself
-                    changed = True
-                    continue
-                if int(cand[k]) != pos[i] and total[k] < cost.cost(a, pos[i]) + cost.cost(
-                        pos[i], c):
-                    pos[i] = int(cand[k])
-                    changed = True
-            i += 1
-        i = 0
-        while i + 1 < len(pos):  # two neighbouring breaks that one break does better than
-            a = pos[i - 1] if i > 0 else 0
-            c = pos[i + 2] if i + 2 < len(pos) else n
-            cand = np.arange(a + h, c - h + 1)
-            two = (cost.cost(a, pos[i]) + cost.cost(pos[i], pos[i + 1])
-                   + cost.cost(pos[i + 1], c) + penalty)
-            total = cost.costs(np.full(cand.size, a), cand) + cost.costs(cand, np.full(
-                cand.size, c))
-            k = int(np.argmin(total))
-            if float(total[k]) < two:
-                pos[i:i + 2] = [int(cand[k])]
-                changed = True
-            i += 1
-        if not changed:
-            break
-    return tuple(pos)
 
 
 def bic_penalty(y: np.ndarray, changing: int) -> float:

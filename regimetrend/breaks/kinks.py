@@ -40,6 +40,10 @@ import numpy as np
 from ..regime_design import break_powers
 
 GRID_LENGTH = 1500  # exact two-break grid up to this length
+# From this length on, a scan sums the power terms over its own stretch of candidates only
+# (the rest of the series enters as one total), instead of over the whole series twice: the
+# same sums in another order (equal to about 1e-13), about half the work and memory.
+WINDOW_LENGTH = 20_000
 MAX_SWEEPS = 20
 
 
@@ -77,6 +81,31 @@ def _orthonormal(X: np.ndarray) -> np.ndarray:
     return q[:, keep]
 
 
+def _extend_orthonormal(base_q: np.ndarray, extra: np.ndarray) -> np.ndarray:
+    """An orthonormal basis of [span(base_q), extra] from the basis ``base_q`` already known:
+    the extra columns (scaled to unit length) are projected off it twice (classical
+    Gram-Schmidt with reorthogonalisation) and factorised on their own, dropping those left
+    with no new direction, as ``_orthonormal`` does. On long series this replaces a QR of the
+    whole design at every scan by one of the few break columns."""
+    if extra.shape[1] == 0:
+        return base_q
+    norms = np.linalg.norm(extra, axis=0)
+    E = extra / np.where(norms > 0, norms, 1.0)
+    for _ in range(2):
+        E = E - base_q @ (base_q.T @ E)
+    q, r = np.linalg.qr(E)
+    keep = np.abs(np.diag(r)) > 1e-10
+    return np.hstack([base_q, q[:, keep]])
+
+
+def _basis(fixed: np.ndarray, base: tuple[int, np.ndarray] | None) -> np.ndarray:
+    """Orthonormal basis of ``fixed``; with ``base`` = (k, basis of its first k columns) the
+    known basis is extended instead of factorising all columns again."""
+    if base is None:
+        return _orthonormal(fixed)
+    return _extend_orthonormal(base[1], fixed[:, base[0]:])
+
+
 class OneBreakScan:
     """SSR of ``y`` on the fixed design plus one break, for every candidate position at once.
 
@@ -87,16 +116,36 @@ class OneBreakScan:
     without changing the column space; breaks in the first half use those short prefixes.
     """
 
-    def __init__(self, y: np.ndarray, fixed: np.ndarray, terms, complete: bool = True):
+    def __init__(self, y: np.ndarray, fixed: np.ndarray, terms, complete: bool = True,
+                 pair_memo: dict | None = None, base: tuple[int, np.ndarray] | None = None):
         self.y = y = np.asarray(y, dtype=float)
         self.n = n = len(y)
         self.terms = terms
         self.complete = complete
-        Q = _orthonormal(fixed)
+        Q = _basis(fixed, base)
         self.e = y - Q @ (Q.T @ y)
         self.ssr0 = float(self.e @ self.e)
         self.Q = Q
         self.t = np.arange(n, dtype=float)
+        # The sums of products of break columns depend on n and the terms only, so scans of
+        # one search may share them (``pair_memo``).
+        self._pair_memo: dict = pair_memo if pair_memo is not None else {}
+
+    def _pair_sums(self, i: int, j: int, qmax: int, suffix: bool) -> np.ndarray | None:
+        """``_sums`` of h_i h_j (term multipliers; None = all ones), once per scan: the
+        two-break grid asks for the same sums in every block of pairs. None where the
+        product is zero everywhere (two different season indicators), which adds nothing."""
+        key = (min(i, j), max(i, j), qmax, suffix)
+        if key not in self._pair_memo:
+            hi, hj = self.terms[i][0], self.terms[j][0]
+            if hi is None and hj is None:
+                w = np.ones(self.n)
+            elif hi is None or hj is None:
+                w = np.asarray(hj if hi is None else hi, dtype=float)
+            else:
+                w = hi * hj
+            self._pair_memo[key] = self._sums(w, qmax, suffix)[:, 0, :] if np.any(w) else None
+        return self._pair_memo[key]
 
     def _sums(self, w: np.ndarray, qmax: int, suffix: bool) -> np.ndarray:
         """S[q, m, b] = sum of w_t x_t^q over t >= b (suffix, x = t - (n-1)) or over t < b
@@ -111,6 +160,43 @@ class OneBreakScan:
             out = np.concatenate([np.zeros_like(prod[:, :1, :]),
                                   np.cumsum(prod, axis=1)[:, :-1, :]], axis=1)
         return np.moveaxis(out, 1, -1)  # (q, m, n)
+
+    def _window_sums(self, w: np.ndarray, qmax: int, suffix: bool, lo: int, hi: int
+                     ) -> np.ndarray:
+        """``_sums`` for b = lo..hi only, S[q, m, b - lo]: the stretch cumulated, the rest of
+        the series (after hi for suffixes, before lo for prefixes) added as one total."""
+        w = w if w.ndim == 2 else w[:, None]
+        x = self.t - (self.n - 1) if suffix else self.t
+        qs = np.arange(qmax + 1)
+        seg = slice(lo, hi + 1)
+        prod = x[seg][None, :, None] ** qs[:, None, None] * w[None, seg, :]
+        if suffix:
+            rest = slice(hi + 1, self.n)
+            out = np.cumsum(prod[:, ::-1, :], axis=1)[:, ::-1, :]
+        else:
+            rest = slice(0, lo)
+            out = np.concatenate([np.zeros_like(prod[:, :1, :]),
+                                  np.cumsum(prod, axis=1)[:, :-1, :]], axis=1)
+        out += ((x[rest][None, :] ** qs[:, None]) @ w[rest])[:, None, :]
+        return np.moveaxis(out, 1, -1)  # (q, m, hi - lo + 1)
+
+    def _nonzero_pairs(self, suffix: bool) -> list:
+        """Term pairs whose product is not zero everywhere, grouped by their powers:
+        [((p1, p2), rows i, columns j, stacked sums (pairs, q, n))]."""
+        key = ("pairs", suffix)
+        if key not in self._pair_memo:
+            kw = len(self.terms)
+            groups: dict = {}
+            for i in range(kw):
+                for j in range(kw):
+                    p1, p2 = self.terms[i][1], self.terms[j][1]
+                    S = self._pair_sums(i, j, p1 + p2, suffix)
+                    if S is not None:
+                        groups.setdefault((p1, p2), []).append((i, j, S))
+            self._pair_memo[key] = [
+                (powers, np.array([g[0] for g in got]), np.array([g[1] for g in got]),
+                 np.stack([g[2] for g in got])) for powers, got in groups.items()]
+        return self._pair_memo[key]
 
     @staticmethod
     def _expand(S: np.ndarray, p: int, beta: np.ndarray, cand: np.ndarray) -> np.ndarray:
@@ -148,16 +234,22 @@ class OneBreakScan:
         kw = len(terms)
         r = np.empty((cand.size, kw))
         QW = np.empty((cand.size, Q.shape[1], kw))
+        windowed = n >= WINDOW_LENGTH and cand.size > 0
+        lo = int(cand.min()) if windowed else 0
+        at = cand - lo
         for j, (_h, p) in enumerate(terms):
-            S = self._sums(np.column_stack([hs[j] * self.e, Q * hs[j][:, None]]), p, suffix)
-            r[:, j] = self._expand(S[:, 0, :], p, beta, cand)
-            QW[:, :, j] = self._expand(S[:, 1:, :], p, beta[None, :], cand).T
-        A = np.empty((cand.size, kw, kw))
+            cols = np.column_stack([hs[j] * self.e, Q * hs[j][:, None]])
+            S = (self._window_sums(cols, p, suffix, lo, int(cand.max())) if windowed
+                 else self._sums(cols, p, suffix))
+            r[:, j] = self._expand(S[:, 0, :], p, beta, at)
+            QW[:, :, j] = self._expand(S[:, 1:, :], p, beta[None, :], at).T
+        A = np.zeros((cand.size, kw, kw))
         for i in range(kw):
             for j in range(i, kw):
                 p = terms[i][1] + terms[j][1]
-                S = self._sums(hs[i] * hs[j], p, suffix)[:, 0, :]
-                A[:, i, j] = A[:, j, i] = self._expand(S, p, beta, cand)
+                pair = self._pair_sums(i, j, p, suffix)
+                if pair is not None:
+                    A[:, i, j] = A[:, j, i] = self._expand(pair, p, beta, cand)
         return r, QW, A
 
     def cross(self, b1: np.ndarray, b2: np.ndarray, pre1: np.ndarray, pre2: np.ndarray
@@ -168,8 +260,6 @@ class OneBreakScan:
         not overlap at all."""
         n, terms = self.n, self.terms
         kw = len(terms)
-        ones = np.ones(n)
-        hs = [ones if h is None else h for h, _ in terms]
         out = np.zeros(b1.shape + (kw, kw))
         both_suf = ~pre1 & ~pre2
         both_pre = pre1 & pre2
@@ -180,16 +270,16 @@ class OneBreakScan:
             at = x2 if suffix else x1
             shift = (n - 1.0) if suffix else 0.0
             be1, be2 = x1 - shift, x2 - shift
-            for i, (_, p1) in enumerate(terms):
-                for j, (_, p2) in enumerate(terms):
-                    S = self._sums(hs[i] * hs[j], p1 + p2, suffix)[:, 0, :]
-                    total = 0.0
-                    for q1 in range(p1 + 1):
-                        for q2 in range(p2 + 1):
-                            total = total + (comb(p1, q1) * comb(p2, q2)
-                                             * (-be1) ** (p1 - q1) * (-be2) ** (p2 - q2)
-                                             * S[q1 + q2][at])
-                    out[mask, i, j] = total
+            block = np.zeros((x1.size, kw, kw))
+            for (p1, p2), rows, cols, SS in self._nonzero_pairs(suffix):
+                total = 0.0
+                for q1 in range(p1 + 1):
+                    for q2 in range(p2 + 1):
+                        total = total + (comb(p1, q1) * comb(p2, q2)
+                                         * (-be1) ** (p1 - q1) * (-be2) ** (p2 - q2)
+                                         * SS[:, q1 + q2, at])
+                block[:, rows, cols] = np.swapaxes(total, 0, 1)
+            out[mask] = block
         return out
 
 
@@ -231,7 +321,7 @@ def best_pair(y, Z, terms, h: int, complete: bool = True, chunk: int = 2_000_000
     for s0 in range(0, i1.size, step):
         a, b = i1[s0:s0 + step], i2[s0:s0 + step]
         W12 = scan.cross(cand[a], cand[b], P["prefix"][a], P["prefix"][b])
-        C = W12 - np.einsum("cqi,cqj->cij", P["QW"][a], P["QW"][b])
+        C = W12 - np.matmul(np.swapaxes(P["QW"][a], 1, 2), P["QW"][b])
         G = np.zeros((a.size, 2 * kw, 2 * kw))
         G[:, :kw, :kw], G[:, kw:, kw:] = P["G"][a], P["G"][b]
         G[:, :kw, kw:], G[:, kw:, :kw] = C, np.swapaxes(C, 1, 2)
@@ -263,11 +353,14 @@ def _admissible(lo: int, hi: int) -> np.ndarray:
     return np.arange(lo, hi + 1) if hi >= lo else np.zeros(0, dtype=np.intp)
 
 
-def best_single(y, Z, terms, lo: int, hi: int, others=()) -> tuple[int | None, float, np.ndarray,
-                                                                     np.ndarray]:
-    """Best position in [lo, hi] for one break with ``others`` fixed: (b, ssr, cands, profile)."""
+def best_single(y, Z, terms, lo: int, hi: int, others=(), pair_memo: dict | None = None,
+                base: tuple[int, np.ndarray] | None = None
+                ) -> tuple[int | None, float, np.ndarray, np.ndarray]:
+    """Best position in [lo, hi] for one break with ``others`` fixed: (b, ssr, cands, profile).
+    ``pair_memo``: sums of break-column products shared by scans of the same n and terms;
+    ``base``: (columns of Z, orthonormal basis of Z) to extend (``ScanMemo.base``)."""
     fixed = design_with_breaks(Z, sorted(others), terms)
-    scan = OneBreakScan(y, fixed, terms)
+    scan = OneBreakScan(y, fixed, terms, pair_memo=pair_memo, base=base)
     cand = _admissible(lo, hi)
     if cand.size == 0:
         return None, scan.ssr0, cand, np.zeros(0)
@@ -276,34 +369,47 @@ def best_single(y, Z, terms, lo: int, hi: int, others=()) -> tuple[int | None, f
     return int(cand[k]), float(prof[k]), cand, prof
 
 
-def ssr_with(y, Z, terms, positions) -> float:
+def ssr_with(y, Z, terms, positions, base: tuple[int, np.ndarray] | None = None) -> float:
     X = design_with_breaks(Z, sorted(positions), terms)
-    Q = _orthonormal(X)
+    Q = _basis(X, base)
     e = y - Q @ (Q.T @ y)
     return float(e @ e)
 
 
-class _Scans:
+class ScanMemo:
     """Memo of one-break scans within one search: the same (others, range) is scanned once."""
 
     def __init__(self, y, Z, terms):
         self.y, self.Z, self.terms = y, Z, terms
         self.memo: dict = {}
+        self.pair_memo: dict = {}  # shared by every scan of this memo (``OneBreakScan``)
+        self._base: list = []
+
+    @property
+    def base(self) -> tuple[int, np.ndarray] | None:
+        """(columns of Z, orthonormal basis of Z), factorised once, for series of
+        ``WINDOW_LENGTH`` points or more (shorter ones keep one QR per scan, and today's
+        numbers to the last bit)."""
+        if not self._base:
+            long = len(self.y) >= WINDOW_LENGTH
+            self._base.append((self.Z.shape[1], _orthonormal(self.Z)) if long else None)
+        return self._base[0]
 
     def best(self, lo: int, hi: int, others) -> tuple[int | None, float]:
         key = (lo, hi, tuple(sorted(others)))
         if key not in self.memo:
-            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2])
+            b, s, _, _ = best_single(self.y, self.Z, self.terms, lo, hi, key[2], self.pair_memo,
+                                     self.base)
             self.memo[key] = (b, s)
         return self.memo[key]
 
 
-def refine(y, Z, terms, positions, n, h, scans: _Scans | None = None
+def refine(y, Z, terms, positions, n, h, scans: ScanMemo | None = None
            ) -> tuple[tuple[int, ...], float]:
     """Move one break at a time to its best position given the others, to a local optimum."""
-    scans = scans or _Scans(y, Z, terms)
+    scans = scans or ScanMemo(y, Z, terms)
     pos = sorted(int(p) for p in positions)
-    current = ssr_with(y, Z, terms, pos)
+    current = ssr_with(y, Z, terms, pos, scans.base)
     for _ in range(MAX_SWEEPS):
         moved = False
         for i in range(len(pos)):
@@ -317,16 +423,18 @@ def refine(y, Z, terms, positions, n, h, scans: _Scans | None = None
     return tuple(pos), current
 
 
-def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None
+def tied_search(y, Z, terms, max_breaks: int, h: int, starts_by_m=None,
+                scans: ScanMemo | None = None
                 ) -> tuple[list[float], list[tuple[int, ...]], list[bool]]:
     """SSR path for 0..max_breaks breaks of a tied kind: (ssr, positions, exact flags).
 
     ``starts_by_m[m]`` optionally gives a starting segmentation for the refinement with m
-    breaks (the exact ``both`` solution)."""
+    breaks (the exact ``both`` solution); ``scans`` a memo of one-break scans of the same
+    y, Z and terms to use and fill."""
     y = np.asarray(y, dtype=float)
     n = len(y)
-    scans = _Scans(y, Z, terms)
-    ssr = [ssr_with(y, Z, terms, ())]
+    scans = scans if scans is not None else ScanMemo(y, Z, terms)
+    ssr = [ssr_with(y, Z, terms, (), scans.base)]
     positions: list[tuple[int, ...]] = [()]
     exact = [True]
     if max_breaks >= 1:

@@ -18,7 +18,7 @@ on the model scale whatever the parameterisation.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import cached_property
 
 import numpy as np
@@ -29,6 +29,9 @@ from ..errors import InputError, about, option, setting
 from ..regime_design import KINDS, RegimeDesign, model_response  # noqa: F401 (KINDS re-exported)
 from . import kinks
 
+
+
+KEPT_DESIGN_VALUES = 30_000_000  # joint fits kept per problem, by the size of their designs
 
 
 @dataclass(frozen=True, eq=False)
@@ -43,6 +46,15 @@ class BreakProblem:
     season_idx: np.ndarray | None
     seasonal_by_regime: bool
     h: int  # minimum regime length in periods
+    _scans: dict = field(default_factory=dict, repr=False)
+
+    def scans(self, kind: str) -> "kinks.ScanMemo":
+        """The memo of one-break scans of ``kind`` (tied kinds): the search, the sequential
+        tests and the added-break statistics ask for the same scans, which on long series
+        are the bulk of the work; each is computed once per problem."""
+        if kind not in self._scans:
+            self._scans[kind] = kinks.ScanMemo(self.y, self.base, self.terms(kind))
+        return self._scans[kind]
 
     @property
     def n(self) -> int:
@@ -98,7 +110,12 @@ class BreakProblem:
                              f"{self.remedy(len(positions))}") from None
         for a in (found.beta, found.residuals, found.X, found.xtx_inv):
             a.setflags(write=False)
-        self._fits[key] = found
+        kept = self._fits
+        kept[key] = found
+        # Long series: each kept fit holds its n x k design, so the oldest are let go once the
+        # designs kept pass KEPT_DESIGN_VALUES (a million points kept about 20 of them, 2 GB).
+        while len(kept) > 1 and sum(f.X.size for f in kept.values()) > KEPT_DESIGN_VALUES:
+            del kept[next(iter(kept))]
         return found
 
     @cached_property

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputError
-from . import exact, kinks, select
+from . import exact, kinks, long_search, select
 from .costs import SegmentCost
 from .problem import BreakProblem
 
@@ -71,7 +71,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
                 ) -> KindPath:
     n, h = problem.n, problem.h
     use_pelt = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
-    bottom_up = use_pelt and method != "pelt" and n >= exact.BOTTOM_UP_LENGTH
+    bottom_up = use_pelt and method != "pelt" and n >= long_search.BOTTOM_UP_LENGTH
     shared = problem.seasonal is not None and not problem.seasonal_by_regime
     season = _joint_ssr(problem, "both", ())[1] if shared else np.zeros(n)
     chosen = None
@@ -80,7 +80,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
         cost = _segment_cost(problem, problem.y - season)
         if use_pelt:
             pen = exact.bic_penalty(problem.y - season, changing)
-            found = (exact.bottom_up_search(cost, pen, h) if bottom_up
+            found = (long_search.bottom_up_search(cost, pen, h) if bottom_up
                      else exact.pelt_search(cost, pen, h))
             sets = [(), found]
             flags = [True, False]
@@ -125,7 +125,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
 def search_tied(problem: BreakProblem, kind: str, max_breaks: int, starts_by_m=None) -> KindPath:
     terms = problem.terms(kind)
     ssr, positions, flags = kinks.tied_search(problem.y, problem.base, terms, max_breaks,
-                                              problem.h, starts_by_m)
+                                              problem.h, starts_by_m, problem.scans(kind))
     method = "exact grid" if all(flags) else "exact grid up to two breaks, refined beyond"
     return KindPath(kind, tuple(ssr), tuple(tuple(p) for p in positions), tuple(flags), method)
 
@@ -156,10 +156,11 @@ def best_added_break(problem: BreakProblem, kind: str, positions, y_adjusted=Non
                 best, where = total, int(taus[k])
         return before, best, where
     terms = problem.terms(kind)
-    before = kinks.ssr_with(problem.y, problem.base, terms, sorted(positions))
+    before = kinks.ssr_with(problem.y, problem.base, terms, sorted(positions),
+                            problem.scans(kind).base)
+    scans = problem.scans(kind)
     for a, b in zip(bounds[:-1], bounds[1:]):
-        pos, s, _, _ = kinks.best_single(problem.y, problem.base, terms, a + h, b - h,
-                                         sorted(positions))
+        pos, s = scans.best(a + h, b - h, sorted(positions))
         if pos is not None and s < best:
             best, where = s, pos
     return before, best, where

@@ -6,7 +6,11 @@ the fixed work of every search, the square the dynamic programme below
 ``breaks.exact.PELT_LENGTH`` points and PELT above it, whose pruning barely helps on a trend
 with few breaks. Measured on a shared 2-core machine (``benchmarks/bench_budget.py`` prints the
 estimate beside real runs): about 0.04 s for 120 points, 0.2-1.5 s for 400-2,300 points, 2 s
-for 5,000 and hours for 1,000,000; a rough guide, not a promise.
+for 5,000; a rough guide, not a promise.
+
+A scan (``scan_seconds``) from ``breaks.long_search.BOTTOM_UP_LENGTH`` points on searches kind
+``both`` by ruptures' bottom-up segmentation, polished, and its whole cost grows about linearly:
+``SECONDS_PER_POINT * n`` (measured by ``benchmarks/bench_portfolio_long.py``).
 
 An analysis (``compare``, ``report``) runs more searches than its rolling origin alone
 (``analysis_searches``): one full-sample search per shape the automatic shape tries, the
@@ -14,7 +18,8 @@ rolling origin's search at every origin (unless ``--reuse-breaks``) for each eva
 automatic shape may run one more per other shape that needs no more breaks: counted, so the
 estimate does not fall short when it runs), and the verdict's stability reruns (a search on the
 series without its last 1 .. season periods, per evaluation). The rest of the run (the fits of
-every candidate at every origin) adds about ``OTHER_WORK`` to the searches.
+every candidate at every origin) adds about ``OTHER_WORK`` to the searches; its estimate keeps
+the per-search figure above.
 
 A run estimated to take minutes says so on standard error before it starts; one estimated past
 ``REFUSE_AFTER`` is refused at once, naming the options that make it smaller.
@@ -29,6 +34,7 @@ from ..errors import InputError
 
 SECONDS_PER_PERIOD = 3e-4
 SECONDS_PER_SQUARED = 2.5e-8
+SECONDS_PER_POINT = 8e-5  # a whole scan from BOTTOM_UP_LENGTH points on
 OTHER_WORK = 1.25  # the candidates' fits at every origin, on top of the searches (measured)
 NOTE_AFTER = 60.0  # seconds: say up front that the run takes minutes
 REFUSE_AFTER = 3600.0  # seconds: refuse rather than run for an hour or more
@@ -39,9 +45,19 @@ def search_seconds(n: int) -> float:
     return SECONDS_PER_PERIOD * float(n) + SECONDS_PER_SQUARED * float(n) ** 2
 
 
+def scan_seconds(n: int) -> float:
+    """Estimated seconds of one scan of n periods (see the module docstring)."""
+    from ..breaks.long_search import BOTTOM_UP_LENGTH
+
+    if n >= BOTTOM_UP_LENGTH:
+        return SECONDS_PER_POINT * float(n)
+    return search_seconds(n)
+
+
 def _duration(seconds: float) -> str:
     if seconds < 3600:
-        return f"about {max(1, round(seconds / 60))} minutes"
+        minutes = max(1, round(seconds / 60))
+        return f"about {minutes} minute{'' if minutes == 1 else 's'}"
     return f"about {seconds / 3600:.0f} hours"
 
 
@@ -60,11 +76,11 @@ def origins(series, evaluation) -> int:
 
 def check_scan(series, stream=None) -> None:
     """Refuse or announce the break search of ``series``."""
-    seconds = search_seconds(series.n)
+    seconds = scan_seconds(series.n)
     if seconds > REFUSE_AFTER:
         raise InputError(f"the series has {series.n:,} periods: finding its breaks would take "
-                         f"{_duration(seconds)} (the search grows with the square of the "
-                         f"length); analyse its latest part, or totals over a coarser calendar")
+                         f"{_duration(seconds)}; analyse its latest part, or totals over a "
+                         f"coarser calendar")
     _note(f"{series.n:,} periods: finding the breaks will take {_duration(seconds)}", seconds,
           stream)
 

@@ -155,9 +155,11 @@ def engine_costs(src, workers: int) -> dict:
           f"{', '.join(str(f['blas_threads']) for f in facts)}; workers: {len(facts)}")
     settings = Settings()
     count = len(read_portfolio(src, id_columns=("store",)).tasks)
-    size = chunk_size(count, workers)
-    print(f"   chunks: {count} series on {workers} workers -> {size} series a chunk, "
-          f"{-(-count // size)} chunks (at most {2 * workers} queued)")
+    for level in ("scan", "full"):
+        size = chunk_size(1000, workers, level)
+        print(f"   chunks, {level} level: 1000 series on {workers} workers -> {size} series a "
+              f"chunk, {-(-1000 // size)} chunks (at most {2 * workers} in flight); 1,000,000 "
+              f"series -> {chunk_size(1_000_000, 256, level)} a chunk")
     t0 = time.perf_counter()
     jobs = jobs_of(src, "scan", settings)
     read_s = (time.perf_counter() - t0) / count
@@ -211,15 +213,20 @@ def timed_run(src, level, workers, settings) -> dict:
         t0 = time.perf_counter()
         with LocalEngine(workers) as engine:
             before = facts_of_workers(engine, workers)
-            t1 = time.perf_counter()
+            t1, c1 = time.perf_counter(), time.process_time()
             result = run_portfolio(src, out, id_columns=["store"], level=level,
                                    settings=settings, engine_object=engine, formats=("csv",))
-            t2 = time.perf_counter()
+            t2, c2 = time.perf_counter(), time.process_time()
             after = facts_of_workers(engine, workers)
         assert result.computed == result.total
         cpu = sum(a["cpu_s"] for a in after) - sum(b["cpu_s"] for b in before)
+        busiest = max(a["cpu_s"] - b["cpu_s"] for a, b in zip(
+            sorted(after, key=lambda f: f["pid"]), sorted(before, key=lambda f: f["pid"])))
         return {"seconds": t2 - t1, "with_startup": t2 - t0, "cpu_per_series":
-                cpu / result.total, "peaks": [a["peak_mb"] for a in after]}
+                cpu / result.total, "peaks": [a["peak_mb"] for a in after],
+                "client_cpu": c2 - c1, "busiest_worker_cpu": busiest,
+                # two cores shared by the workers and the client, none waiting for another
+                "idle_estimate": max(busiest, c2 - c1, (cpu + c2 - c1) / 2)}
     finally:
         shutil.rmtree(out, ignore_errors=True)
 
@@ -263,6 +270,11 @@ def portfolio_runs(files: dict, target: int, compare: int) -> dict:
         peaks = one["peaks"] + two_small["peaks"] + two["peaks"]
         print(f"        peak resident memory per worker (getrusage): {max(peaks):.0f} MB "
               f"(workers: {', '.join(f'{p:.0f}' for p in peaks)} MB)")
+        print(f"        CPU seconds of the {count}-series run on 2 workers: busiest worker "
+              f"{two['busiest_worker_cpu']:.1f} s, client {two['client_cpu']:.1f} s: on an idle "
+              f"two-core machine the run would take about {two['idle_estimate']:.1f} s (all "
+              f"CPU over two cores, at least the busiest process; wall above "
+              f"{two['seconds']:.1f} s, the rest is waiting for the shared cores)")
         label = "measured" if count >= target else f"projected from {count} series"
         total = two["with_startup"] if count >= target else (
             two["seconds"] * target / count + two["with_startup"] - two["seconds"])
@@ -322,8 +334,7 @@ def projection(one: dict, costs: dict, dask: dict | None, runs: dict) -> None:
     """Section 5: T(N) = start-up + max(S c / N, S client, K task) + one chunk's tail."""
     print("\n5. projection: 1,000,000 series of 120 monthly points on a Dask cluster of N "
           "workers (one core each)")
-    series, size = 1_000_000, 25
-    chunks = series // size
+    series = 1_000_000
     per_task = dask["per_task"] if dask else 0.005
     startup = dask["startup"] if dask else costs["startup"]
     client = costs["client"]
@@ -332,8 +343,10 @@ def projection(one: dict, costs: dict, dask: dict | None, runs: dict) -> None:
         levels[level] = run["two"]["cpu_per_series"]
     print(f"   inputs: CPU per series {', '.join(f'{k} {1000 * v:.1f} ms' for k, v in levels.items())}"
           f" (section 3, or 1); client {1000 * client:.2f} ms a series (2); "
-          f"{1000 * per_task:.2f} ms a task of {size} series (4); start-up {startup:.1f} s")
+          f"{1000 * per_task:.2f} ms a task (4); start-up {startup:.1f} s")
     for level, cpu in levels.items():
+        size = chunk_size(series, 256, level)
+        chunks = series // size
         for workers in (16, 64, 256, 1024):
             compute = series * cpu / workers
             serial_client = series * client

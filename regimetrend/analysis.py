@@ -165,7 +165,8 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
 def _as_decided(evaluation, reference_evaluation, verdict):
     """The evaluation with the verdict's decisions in place of its own: the recommended
     candidate, the history decision and the diagnosis sentence, so that every table and chart
-    that reads the evaluation shows the chosen model (the evidence stays as computed)."""
+    that reads the evaluation shows the chosen model (the evidence stays as computed), scored
+    against the same reference trend as the verdict's sentences (``evaluate.rebase``)."""
     from .evaluate.result import Diagnosis, HistoryDecision, Recommendation
     from .verdict import HISTORY_RULE, history_sentence
 
@@ -177,7 +178,10 @@ def _as_decided(evaluation, reference_evaluation, verdict):
                            history_sentence(verdict), evidence)
     diag = Diagnosis(verdict.diagnosis.sentence,
                      dict(reference_evaluation.diagnosis.data, cause=verdict.diagnosis.cause))
-    return replace(evaluation, recommended=rec, history=hist, diagnosis=diag)
+    from .evaluate.rebase import against_reference
+
+    decided = replace(evaluation, recommended=rec, history=hist, diagnosis=diag)
+    return against_reference(decided, reference_evaluation.reference)
 
 
 def _model_growth(series, spec, strategy, breakset, forecast, growth_table, growth_from_fits):

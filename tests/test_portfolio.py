@@ -270,6 +270,30 @@ def test_local_and_dask_outputs_are_byte_identical(tmp_path):
     assert one == all_files(tmp_path / "two") == all_files(tmp_path / "dask")
 
 
+def _square(chunk):
+    return [v * v for v in chunk]
+
+
+def test_dask_keeps_only_a_few_chunks_in_flight():
+    # a million-series portfolio must not park every chunk on the scheduler at once
+    with DaskEngine(workers=2, processes=False) as dask:
+        slots = dask.slots()
+        assert slots == 4  # two per worker thread of the cluster
+        real, sent, in_flight = dask._client.submit, [], []
+
+        def counted(*args, **kwargs):
+            sent.append(1)
+            return real(*args, **kwargs)
+
+        dask._client.submit = counted
+        got = []
+        for result in dask.map(_square, [[k] for k in range(15)]):
+            in_flight.append(len(sent) - len(got))
+            got.append(result)
+    assert sorted(got) == [[k * k] for k in range(15)] and len(sent) == 15
+    assert max(in_flight) <= slots + 1  # the next chunk is sent as each result comes back
+
+
 def test_full_level_local_and_dask_identical_with_reports(tmp_path):
     src = tmp_path / "long.csv"
     invented_long(n_series=2, n=60).to_csv(src, index=False)

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import logging
 import os
+from typing import Any
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 
 ENGINES = ("local", "dask")
@@ -77,7 +78,8 @@ class DaskEngine:
         self.workers = workers or default_workers()
         self.scheduler = scheduler
         self.processes = processes
-        self._client = self._cluster = None
+        self._client: Any = None  # distributed.Client while the engine is entered
+        self._cluster: Any = None
 
     def __enter__(self):
         from distributed import Client, LocalCluster
@@ -99,16 +101,40 @@ class DaskEngine:
         self._client = self._cluster = None
         return False
 
+    def slots(self) -> int:
+        """Chunks kept in flight: two per worker thread of the cluster, so that each worker
+        has its next chunk at hand while the client holds only a few chunks' data (sending
+        all of a million-series portfolio's chunks at once would park every job on the
+        scheduler)."""
+        try:
+            threads = sum(self._client.nthreads().values())
+        except Exception:  # noqa: BLE001 - a cluster that cannot say: assume the workers asked
+            threads = 0
+        return 2 * max(threads or self.workers, 1)
+
     def map(self, fn, chunks):
         from distributed import as_completed
 
-        futures = [self._client.submit(fn, chunk, pure=False) for chunk in chunks]
+        chunks = iter(chunks)
+        pending = []
+        for chunk in chunks:
+            pending.append(self._client.submit(fn, chunk, pure=False))
+            if len(pending) >= self.slots():
+                break
+        flow = as_completed(pending, loop=self._client.loop)
         try:
-            for fut in as_completed(futures, loop=self._client.loop):
-                yield fut.result()
+            for fut in flow:
+                result = fut.result()
                 fut.release()
+                pending.remove(fut)
+                chunk = next(chunks, None)
+                if chunk is not None:
+                    nxt = self._client.submit(fn, chunk, pure=False)
+                    pending.append(nxt)
+                    flow.add(nxt)
+                yield result
         finally:
-            for fut in futures:
+            for fut in pending:
                 fut.cancel()
 
 

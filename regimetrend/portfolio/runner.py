@@ -23,7 +23,10 @@ from .overrides import read_overrides, with_changes
 from .store import Store, result_key
 from .worker import LEVELS, Job, Record, report_chunk, run_chunk
 
-MAX_CHUNK = 25  # series per task: enough to make scheduling cheap, few enough to spread well
+# Series per task, at most: enough to make scheduling cheap, few enough to spread well. A scan
+# costs a small part of a full analysis (``benchmarks/bench_portfolio.py``), so its chunks are
+# larger: each is a few seconds of work, and a cluster's scheduler is not the limit at either.
+MAX_CHUNK = {"full": 25, "scan": 200}
 
 
 @dataclass
@@ -49,9 +52,9 @@ class RunSummary:
                 f"{self.seconds:.1f} s, {speed}")
 
 
-def chunk_size(todo: int, workers: int) -> int:
-    """About four chunks per worker, at most ``MAX_CHUNK`` series each."""
-    return max(1, min(MAX_CHUNK, -(-todo // (4 * max(workers, 1)))))
+def chunk_size(todo: int, workers: int, level: str = "full") -> int:
+    """About four chunks per worker, at most ``MAX_CHUNK[level]`` series each."""
+    return max(1, min(MAX_CHUNK[level], -(-todo // (4 * max(workers, 1)))))
 
 
 def chunked(items, size):
@@ -132,7 +135,7 @@ def run_portfolio(source, output, *, id_columns=(), date_column=None, value_colu
     n_reports = 0
     if eng is not None:
         with (eng if engine_object is None else _Borrowed(eng)) as running:
-            size = chunk_size(len(todo), getattr(running, "workers", 1))
+            size = chunk_size(len(todo), getattr(running, "workers", 1), level)
             for records in running.map(run_chunk, chunked(todo, size)):
                 for rec in records:
                     _keep(store, rec)

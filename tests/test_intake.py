@@ -345,7 +345,7 @@ def test_missing_date_names_row(tmp_path):
 
 @pytest.mark.parametrize("cell, pattern", [
     ("2019-13", r"row 3, column 'date': cannot read '2019-13' as a date"),
-    ("03/04/2019", r"row 3, column 'date': '03/04/2019' could be day/month"),
+    ("03/04/2019", r"row 3, column 'date': '03/04/2019' could be day/month or month/day; say which with --date-format"),
     ("soon", r"row 3, column 'date': cannot read 'soon'.*accepted forms"),
 ])
 def test_unreadable_date_names_row(tmp_path, cell, pattern):

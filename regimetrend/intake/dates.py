@@ -217,8 +217,9 @@ def _iso_days(cells):
 def _bad_date_message(cell, row, column) -> str:
     text = str(cell).strip()
     if _DAY_MONTH_AMBIGUOUS.fullmatch(text):
-        return (f"row {row}, column {column!r}: {text!r} could be day/month or month/day; write "
-                f"dates as year-month-day (2019-07-01)")
+        return (f"row {row}, column {column!r}: {text!r} could be day/month or month/day; say "
+                f"which with --date-format (%d/%m/%Y or %m/%d/%Y) or write dates as "
+                f"year-month-day (2019-07-01)")
     return (f"row {row}, column {column!r}: cannot read {text!r} as a date (accepted forms: "
             f"{DATE_FORMS_HELP}); name the date column with --date-column if this is not it")
 

@@ -152,7 +152,7 @@ def ranking_rows(evaluation: dict, names: dict | None = None) -> Table:
     if rank is not None and rank != 1:
         note += (f" The rank orders by RMSE alone; the chosen model (rank {rank}) is the "
                  "verdict's: its rule keeps one trend over all history, or the model using "
-                 "fewer breaks, unless a test or a significant break backs a more accurate one, "
+                 "fewer breaks or trend terms, unless a test or a large gain backs a more accurate one, "
                  "and weighs a break-aware candidate only under the shape its breaks were "
                  "searched with.")
     if evaluation.get("optimistic_note"):

@@ -161,6 +161,12 @@ def test_parse_frequency_rejects_unknown_words(text):
     assert "monthly" in str(info.value) and "2 weeks" in str(info.value)
 
 
+def test_parse_frequency_refuses_an_absurd_step():
+    assert parse_frequency("1000 days") == Frequency("day", 1000)
+    with pytest.raises(InputError, match="--frequency .*more than 1,000 months"):
+        parse_frequency("9" * 30 + " months")
+
+
 def test_frequency_override_regroups_dates(tmp_path):
     # daily stamps that are really one per month
     path = write(tmp_path, csv_of(["2019-01-15", "2019-02-12", "2019-03-20"]))

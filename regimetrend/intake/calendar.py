@@ -29,6 +29,9 @@ MONTHS_PER_UNIT = {"year": 12, "quarter": 3, "month": 1}
 _DAYS_PER_UNIT = {"week": 7, "day": 1}
 
 
+MAX_STEP = 1000  # units per period: beyond this no calendar arithmetic is meaningful
+
+
 def parse_frequency(text) -> Frequency:
     """Read a plain-word frequency: ``monthly``, ``quarterly``, ``2 weeks``, ``every 10 years``.
 
@@ -42,6 +45,10 @@ def parse_frequency(text) -> Frequency:
         return Frequency(*FREQUENCY_WORDS[words])
     m = re.fullmatch(r"(?:every\s+)?(\d+)\s*-?\s*([a-z]+)", words)
     if m and m.group(2) in _UNIT_WORDS and int(m.group(1)) >= 1:
+        if int(m.group(1)) > MAX_STEP:
+            raise InputError(f"--frequency {str(text)!r}: a period of more than {MAX_STEP:,} "
+                             f"{_UNIT_WORDS[m.group(2)]}s is not a business calendar; check "
+                             f"the number")
         return Frequency(_UNIT_WORDS[m.group(2)], int(m.group(1)))
     m = re.fullmatch(r"every\s+([a-z]+)", words)
     if m and m.group(1) in _UNIT_WORDS:

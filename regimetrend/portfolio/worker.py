@@ -91,8 +91,12 @@ def chart_data(series, fitted, breaks, used_dates=None) -> dict:
     else:
         where = {series.iso(i): i for i in range(series.n)}
         used = sorted(where[d] for d in used_dates if d in where)
+    values = [float(v) for v in np.asarray(fitted, dtype=float)]
+    # a model fitted on the recent history only (truncated) has no fit before its cut
+    gap: list[float | None] = [None] * max(series.n - len(values), 0)
+    fit = gap + values
     return {"values": [float(v) for v in series.values],
-            "fitted": [float(v) for v in np.asarray(fitted, dtype=float)],
+            "fitted": fit,
             "breaks": found, "used": used,
             "start_label": series.label(0), "end_label": series.label(series.n - 1)}
 

@@ -82,18 +82,6 @@ def _common(series, spec, breaks, growth, level: str) -> dict:
     return row
 
 
-def _interim_cause(diagnosis) -> str:
-    """The diagnosis' cause in a word, read from the evaluation's late-failure diagnosis."""
-    data = diagnosis.data
-    if data.get("cusum_crossing") and data.get("explaining_break"):
-        return "regime change"
-    if data.get("cusum_crossing"):
-        return "misfit without a break"
-    if data.get("share_one_sign", 1.0) < 0.7 and abs(data.get("mean_error_percent") or 0) < 2:
-        return "noise"
-    return "global trend holds"
-
-
 def _from_verdict(row: dict, analysis, verdict) -> dict:
     """The verdict's fields (``Verdict.to_dict()``): a portfolio row is a verdict flattened."""
     v = verdict.to_dict()
@@ -130,20 +118,10 @@ def _from_verdict(row: dict, analysis, verdict) -> dict:
 
 
 def row_from_analysis(analysis) -> dict:
-    """The summary row of a full analysis: the verdict's fields when the analysis has one,
-    else read from the evaluation's recommendation, history and diagnosis."""
-    series, ev = analysis.series, analysis.evaluation
-    row = _common(series, analysis.spec, analysis.breaks, analysis.growth, "full")
-    verdict = getattr(analysis, "verdict", None)
-    if verdict is not None:
-        return _from_verdict(row, analysis, verdict)
-    chosen = ev.candidate(ev.recommended.name)
-    row.update({"forecast_model": ev.recommended.name,
-                "keep_history_from": ev.history.keep_from,
-                "gain_over_global": _num(chosen.gain),
-                "diagnosis_cause": _interim_cause(ev.diagnosis),
-                "diagnosis": ev.diagnosis.sentence})
-    return row
+    """The summary row of a full analysis: the verdict's fields (``analyze`` always builds
+    one)."""
+    row = _common(analysis.series, analysis.spec, analysis.breaks, analysis.growth, "full")
+    return _from_verdict(row, analysis, analysis.verdict)
 
 
 def row_from_scan(series, breaks, growth) -> dict:

@@ -16,8 +16,6 @@ if TYPE_CHECKING:
 
 SWEEP_NOTE = 0.30  # a sweep gain this large that the verdict declines is explained
 COVERAGE_FLOOR = 0.80  # rolling 95% intervals covering less than this are flagged
-WANDERING_LAG1 = 0.80  # (kept for callers) the wandering flag itself comes from the break
-#                        search (``breaks/wandering.py``: KPSS and AR(1) of its residuals)
 CURVE_LAG1 = 0.50  # a trend of the right shape leaves residuals less correlated than this
 CAUSES = ("regime change", "wrong shape", "wandering", "outlier", "noise")
 BREAK_FREE = ("global", "window-average")

@@ -219,22 +219,26 @@ def _model_growth(series, spec, strategy, breakset, forecast, growth_table, grow
 
 
 def _stability(series, runs, explicit, wandering, index, chosen, settings, verdicts):
-    """The verdict rerun without the last 1..k periods (``verdict.stability_of``): the break
+    """The verdict rerun without the last 1..k periods (``verdict.stability_of``): of the break
     search of each shortened series (as at a rolling origin: no events, breaks capped at what
-    it holds; lean: the verdict reads only its breaks, their intervals and its first test),
-    and the rolling origin rescored on the origins it would have had."""
+    it holds) whether its test finds a break, and the positions only where the rerun's model
+    uses them; and the rolling origin rescored on the origins it would have had."""
     from .errors import InputError
-    from .evaluate import history_breaks
+    from .evaluate import history_break_pvalue, history_positions, searched_at
 
-    searches = {}
+    break_ps = {}
     for k in verdicts.stability_periods(series):
         head = series.head(series.n - k)
         try:
-            searches[k] = [history_breaks(head, r.breaks.spec, settings.breaks, lean=True)
+            break_ps[k] = [history_break_pvalue(head, r.breaks.spec, settings.breaks)
                            for r in runs]
         except InputError:
             break
+
+    def positions(k, i):  # a shortened series equal to an origin's history was searched there
+        return searched_at(runs[i].evaluation, series.n - k) or history_positions(
+            series.head(series.n - k), runs[i].breaks.spec, settings.breaks)
     model = verdicts.model_of(chosen, runs[index])
     breaks = verdicts.break_dates(series, runs[index].breaks, model)
     return verdicts.stability_of(series, runs, explicit, wandering,
-                                 (index, chosen.name, breaks), searches)
+                                 (index, chosen.name, breaks), break_ps, positions)

@@ -32,6 +32,11 @@ def interval_score(actual, lower, upper, level: float) -> np.ndarray:
             + (2.0 / alpha) * np.maximum(actual - upper, 0.0))
 
 
+def root_mean_square(err) -> float:
+    """RMSE of errors (1-D), as ``accuracy`` computes it."""
+    return float(math.sqrt(np.mean(np.asarray(err, dtype=float) ** 2)))
+
+
 def accuracy(actual, forecast, *, scale: float | None = None, lower80=None, upper80=None,
              lower95=None, upper95=None) -> dict:
     """All metrics for paired actuals and forecasts; interval metrics when ends are given."""
@@ -41,7 +46,7 @@ def accuracy(actual, forecast, *, scale: float | None = None, lower80=None, uppe
     out: dict[str, Any] = {"n": int(err.size),
            "me": float(np.mean(err)),
            "mae": float(np.mean(np.abs(err))),
-           "rmse": float(math.sqrt(np.mean(err ** 2)))}
+           "rmse": root_mean_square(err)}
     if np.any(actual == 0):
         out["mape"] = None
         out["mape_note"] = "undefined: an actual value is zero"

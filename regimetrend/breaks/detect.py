@@ -91,15 +91,9 @@ def detect_breaks(series, settings: Settings | None = None, **choices) -> BreakS
     return find_breaks(series, settings.spec_for(series), settings.breaks)
 
 
-def find_breaks(series, spec: TrendSpec, options: BreakSettings, *, lean: bool = False
-                ) -> BreakSet:
+def find_breaks(series, spec: TrendSpec, options: BreakSettings) -> BreakSet:
     """``detect_breaks`` for a spec already resolved against ``series`` (one resolution per
     run: ``analyze`` and ``compare`` call this).
-
-    ``lean`` (for searches nobody reads in full, such as the verdict's stability reruns):
-    the same breaks, intervals and tests of the breaks, but where the sequential tests decide
-    the count the tied kinds' paths stop where the tests stop (``ssr_path`` and the criterion
-    paths of those kinds are shorter) and the CUSUM tests of the global trend are left out.
 
     The linear algebra here is many small tall-and-thin problems, which a multi-threaded BLAS
     only slows down (measured: a 3000 x 17 QR took 165 ms with threads on a busy two-core
@@ -115,11 +109,11 @@ def find_breaks(series, spec: TrendSpec, options: BreakSettings, *, lean: bool =
         if scale == 1.0:
             return _detect(series, spec, options.kind, options.max_breaks, options.trim,
                            options.criterion, options.events, options.seasonal_by_regime,
-                           options.method, options.serial_correlation, lean)
+                           options.method, options.serial_correlation)
         scaled = dataclasses.replace(series, values=series.values / scale)
         found = _detect(scaled, spec, options.kind, options.max_breaks, options.trim,
                         options.criterion, options.events, options.seasonal_by_regime,
-                        options.method, options.serial_correlation, lean)
+                        options.method, options.serial_correlation)
         return _rescaled(found, scale)
 
 
@@ -136,6 +130,39 @@ def find_break_positions(series, spec: TrendSpec, options: BreakSettings) -> tup
         if scale != 1.0:  # positions do not change with the scale
             series = dataclasses.replace(series, values=series.values / scale)
         return _positions(series, spec, options)
+
+
+def any_break_pvalue(series, spec: TrendSpec, options: BreakSettings) -> float | None:
+    """A p-value of "no break" below the 5% level (``select.SEQUENTIAL_LEVEL``) exactly when
+    the sup-F p-value of ``find_breaks`` is: what the verdict's stability reruns need of each
+    shortened series (the rule reads that p-value only against the 5% level).
+
+    Where the sequential tests decide and the first test is simulated, it is that test's
+    p-value for a break of any kind searched (``Calibration.p_any``, the smallest adjusted
+    p-value over the kinds): the search chooses a kind with breaks only when that kind's own
+    first test rejects, and then reports that kind's p-value; with no kind rejecting it reports
+    one of theirs, all at or above the level. Nothing else of the search runs. Elsewhere it is
+    the sup-F p-value itself (as ``evaluate.breakinfo.supf_pvalue`` reads it)."""
+    with _one_blas_thread():
+        scale = _response_scale(series.values) if not spec.log_scale else 1.0
+        if scale != 1.0:  # p-values do not change with the scale
+            series = dataclasses.replace(series, values=series.values / scale)
+        robust = options.serial_correlation == "allow"
+        problem, M, _, long_series, kinds = _prepared(series, spec, options.kind,
+                                                      options.max_breaks, options.trim,
+                                                      options.seasonal_by_regime,
+                                                      options.method)
+        first = None
+        if M > 0 and _tests_decide(problem, options.criterion, long_series) \
+                and not options.events and not options.break_dates:
+            first = _first_test(problem, kinds, robust, long_series)
+        if first is not None:
+            return first.p_any
+        tests = _detect(series, spec, options.kind, options.max_breaks, options.trim,
+                        options.criterion, options.events, options.seasonal_by_regime,
+                        options.method, options.serial_correlation).tests
+        p = None if tests is None or tests.supf is None else tests.supf.p_value
+        return None if p is None or not math.isfinite(float(p)) else float(p)
 
 
 def _positions(series, spec, options: BreakSettings) -> tuple[int, ...]:
@@ -299,34 +326,29 @@ def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method):
 
 
 def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, method,
-            serial_correlation, lean: bool = False) -> BreakSet:
+            serial_correlation) -> BreakSet:
     robust = serial_correlation == "allow"
     problem, M, capped, long_series, kinds = _prepared(series, spec, kind, M, trim,
                                                        seasonal_by_regime, method)
     n, h = problem.n, problem.h
     event_positions = [_event_position(series, e, h) for e in events]
-    lean = lean and _tests_decide(problem, criterion, long_series)
 
     paths: dict[str, KindPath] = {}
     if "both" in kinds or kind == "auto":
         paths["both"] = search_both(problem, M, criterion,
                                     (method if method == "auto" else "pelt") if long_series
                                     else "exact")
-    if not lean:
-        for k in kinds:
-            if k != "both":
-                starts = paths["both"].positions if "both" in paths else None
-                paths[k] = search_tied(problem, k, M, starts)
+    for k in kinds:
+        if k != "both":
+            starts = paths["both"].positions if "both" in paths else None
+            paths[k] = search_tied(problem, k, M, starts)
     score_name = "lwz" if criterion == "lwz" else "bic"
     values = {k: _criterion_values(problem, p, score_name) for k, p in paths.items()}
     first = _first_test(problem, kinds, robust, long_series)
     seq_by_kind: dict[str, list[SequentialStep]] = {}
     seq_fallback = False
     counts = None
-    if lean:
-        values, counts, seq_by_kind = _as_deep_as_tested(problem, kinds, M, robust, first,
-                                                         paths)
-    elif criterion == "sequential":
+    if criterion == "sequential":
         counts = {}
         for k, p in paths.items():
             m_k, steps, fell_back = _sequential_count(problem, p, values[k], M, robust, first)
@@ -410,9 +432,9 @@ def _detect(series, spec, kind, M, trim, criterion, events, seasonal_by_regime, 
                        sequential=tuple(seq_steps),
                        chow=tuple(_chow(series, problem, chosen_kind, e, robust)
                                  for e in event_positions),
-                       cusum=() if lean else _cusums(problem))
+                       cusum=_cusums(problem))
     drift = _drift(series, tests.cusum)
-    if not tests.cusum and not lean:
+    if not tests.cusum:
         notes.append("The trend without breaks fits the series exactly: there is no drift and "
                      "nothing for the CUSUM to test.")
     segments = tuple(_segment(series, problem, chosen_kind, positions, j, fit)

@@ -34,40 +34,63 @@ __all__ = ["Evaluation", "compare", "evaluate"]
 _PLAIN_ORIGINS = False  # benchmarks only: the whole break search at every origin (same result)
 
 
-def history_breaks(history, spec: TrendSpec, options: BreakSettings, *, lean: bool = False):
+def _at_origin(history, spec: TrendSpec, options: BreakSettings) -> BreakSettings:
+    """The search settings on the history known at an origin: no events, and the number of
+    breaks capped at what this shorter history can hold."""
+    from ..breaks.problem import resolve_trim
+
+    m = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
+    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
+    h = resolve_trim(options.trim, history.n, spec, by_regime)
+    m = max(0, min(m, history.n // max(h, 1) - 1))
+    return dataclasses.replace(options, events=(), max_breaks=m)
+
+
+def history_breaks(history, spec: TrendSpec, options: BreakSettings):
     """The break search on the history known at an origin: the analyst's events are left out
     (they are Chow-tested on the full series only and do not move the breaks) and the number of
-    breaks is capped at what this shorter history can hold. ``lean``: see ``find_breaks``."""
+    breaks is capped at what this shorter history can hold."""
     from ..breaks.detect import find_breaks
-    from ..breaks.problem import resolve_trim
 
     if options.break_dates:  # the analyst's dates known in this history, no search
         from ..breaks.given import given_breaks
 
         return given_breaks(history, spec, dataclasses.replace(options, events=()), within=True)
-    m = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
-    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
-    h = resolve_trim(options.trim, history.n, spec, by_regime)
-    m = max(0, min(m, history.n // max(h, 1) - 1))
-    return find_breaks(history, spec, dataclasses.replace(options, events=(), max_breaks=m),
-                       lean=lean)
+    return find_breaks(history, spec, _at_origin(history, spec, options))
 
 
 def history_positions(history, spec: TrendSpec, options: BreakSettings) -> tuple[int, ...]:
     """The positions of ``history_breaks`` (same settings, same cap on the number of breaks),
     found without the rest of the break result (``breaks.detect.find_break_positions``)."""
     from ..breaks.detect import find_break_positions
-    from ..breaks.problem import resolve_trim
 
     if options.break_dates:
         return breakinfo.positions(history_breaks(history, spec, options))
-    m = DEFAULT_MAX_BREAKS if options.max_breaks is None else options.max_breaks
-    by_regime = options.seasonal_by_regime and spec.seasonality == "dummies"
-    h = resolve_trim(options.trim, history.n, spec, by_regime)
-    m = max(0, min(m, history.n // max(h, 1) - 1))
-    found = find_break_positions(history, spec,
-                                 dataclasses.replace(options, events=(), max_breaks=m))
+    found = find_break_positions(history, spec, _at_origin(history, spec, options))
     return tuple(sorted(found))
+
+
+def history_break_pvalue(history, spec: TrendSpec, options: BreakSettings) -> float | None:
+    """A p-value below the 5% level exactly when the sup-F p-value of ``history_breaks`` is
+    (``breaks.detect.any_break_pvalue``; for the analyst's dates the F test of those dates):
+    the verdict's stability reruns read no more of a shortened series' search than that and,
+    for the model they choose, its positions (``history_positions``)."""
+    from ..breaks.detect import any_break_pvalue
+
+    if options.break_dates:
+        return breakinfo.supf_pvalue(history_breaks(history, spec, options))
+    return any_break_pvalue(history, spec, _at_origin(history, spec, options))
+
+
+def searched_at(evaluation, origin: int) -> tuple[int, ...] | None:
+    """The breaks the rolling origin's own search found on the history up to ``origin``
+    (``history_positions`` there, already run), or None when it has none to give: no origin
+    there, breaks reused from the full sample or given by the analyst, or no break known
+    there (which is also what a failed search leaves, so that case is searched afresh)."""
+    origins = list(evaluation.plan.get("origins", []))
+    if evaluation.optimistic or evaluation.model.get("break_dates") or origin not in origins:
+        return None
+    return tuple(evaluation.breaks_by_origin[origins.index(origin)]) or None
 
 
 def given_at_origin(full, spec: TrendSpec, options: BreakSettings):

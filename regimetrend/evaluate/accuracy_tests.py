@@ -132,3 +132,16 @@ def compare_errors(e_ref: np.ndarray, e_cand: np.ndarray, step: int, per_horizon
                                       if per_horizon else [])
     res = _tests(diffs, lags)
     return res[0], res[1:]
+
+
+def compare_pooled(e_ref: np.ndarray, e_cands, step: int) -> list[DMResult]:
+    """``compare_errors(e_ref, e, step, per_horizon=False)[0]`` for each ``e`` of ``e_cands``,
+    with the p-values of all from one vectorised t call (the same numbers, one call): the
+    stability reruns test every candidate against the reference on fewer origins."""
+    e_ref = np.asarray(e_ref, dtype=float)
+    diffs, lags = [], []
+    for e in e_cands:
+        d = e_ref ** 2 - np.asarray(e, dtype=float) ** 2
+        diffs.append(d.mean(axis=1))
+        lags.append(overlap_lags(d.shape[1], step))
+    return _tests(diffs, lags) if diffs else []

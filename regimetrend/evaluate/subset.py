@@ -14,8 +14,8 @@ import dataclasses
 
 import numpy as np
 
-from .accuracy_tests import compare_errors
-from .scores import score
+from ..metrics import root_mean_square
+from .accuracy_tests import compare_pooled
 
 
 def origins_known_by(evaluation, length: int) -> np.ndarray:
@@ -26,32 +26,26 @@ def origins_known_by(evaluation, length: int) -> np.ndarray:
 
 def rescored(evaluation, mask: np.ndarray, names=None) -> dict:
     """{name: CandidateResult scored on the origins in ``mask``} for the ranked candidates
-    (or the given ``names``); the reference keeps an empty test."""
+    (or the given ``names``) and the reference, which keeps an empty test. What the rule reads
+    is recomputed: the RMSE (``metrics`` holds it alone), the gain over the reference and the
+    Diebold-Mariano test against it."""
     table = evaluation.errors
     keep = np.flatnonzero(mask)
     step = int(evaluation.plan.get("step", 1))
     ref_name = evaluation.reference
     e_ref = table.errors(ref_name)[keep]
-    names = names or [c.name for c in evaluation.candidates]
+    names = list(dict.fromkeys([ref_name] + list(names or
+                                                 [c.name for c in evaluation.candidates])))
+    errors = {name: e_ref if name == ref_name else table.errors(name)[keep] for name in names}
+    rmse = {name: root_mean_square(e.ravel()) for name, e in errors.items()}
+    others = names[1:]
+    tests = dict(zip(others, compare_pooled(e_ref, [errors[name] for name in others], step)))
+    ref_rmse = rmse[ref_name]
     out = {}
-    ref_rmse = None
-    scored = {}
-    for name in dict.fromkeys([ref_name] + list(names)):
-        i = table.index(name)
-        m = score(table.actual[keep], table.forecast[i][keep], table.lower80[i][keep],
-                  table.upper80[i][keep], table.lower95[i][keep], table.upper95[i][keep],
-                  table.scale[keep][:, None])
-        scored[name] = m
-        if name == ref_name:
-            ref_rmse = m["rmse"]
-    for name, m in scored.items():
-        base = evaluation.candidate(name)
-        if name == ref_name:
-            vs = {"p_value_better": None, "note": "the reference itself"}
-        else:
-            pooled, _ = compare_errors(e_ref, table.errors(name)[keep], step, per_horizon=False)
-            vs = pooled.to_dict()
-        gain = 1.0 - m["rmse"] / ref_rmse if ref_rmse and ref_rmse > 0 else None
-        out[name] = dataclasses.replace(base, metrics=m, per_horizon=(), vs_global=vs,
-                                        gain=gain)
+    for name in names:
+        vs = tests[name].to_dict() if name in tests else {"p_value_better": None,
+                                                          "note": "the reference itself"}
+        gain = 1.0 - rmse[name] / ref_rmse if ref_rmse and ref_rmse > 0 else None
+        out[name] = dataclasses.replace(evaluation.candidate(name), metrics={"rmse": rmse[name]},
+                                        per_horizon=(), vs_global=vs, gain=gain)
     return out

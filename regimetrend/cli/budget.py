@@ -16,8 +16,9 @@ An analysis (``compare``, ``report``) runs more searches than its rolling origin
 (``analysis_searches``): one full-sample search per shape the automatic shape tries, the
 rolling origin's search at every origin (unless ``--reuse-breaks``) for each evaluation (the
 automatic shape may run one more per other shape that needs no more breaks: counted, so the
-estimate does not fall short when it runs), and the verdict's stability reruns (a search on the
-series without its last 1 .. season periods, per evaluation). The rest of the run (the fits of
+estimate does not fall short when it runs), and the verdict's stability reruns (on the series
+without its last 1 .. season periods: the first break test per evaluation, within the linear
+term of one search, and at most one search, for the model the rerun chooses). The rest of the run (the fits of
 every candidate at every origin) adds about ``OTHER_WORK`` to the searches; its estimate keeps
 the per-search figure above.
 
@@ -93,11 +94,11 @@ class Searches:
     evaluations: int  # rolling-origin evaluations (one per shape at most under the automatic shape)
     origins: int  # origins of each evaluation
     per_origin: bool  # breaks found again at every origin (not --reuse-breaks)
-    reruns: int  # stability reruns of each evaluation
+    reruns: int  # stability reruns, each at most one search (for the model it chooses)
 
     @property
     def total(self) -> int:
-        return self.shapes + self.evaluations * (self.origins * self.per_origin + self.reruns)
+        return self.shapes + self.evaluations * self.origins * self.per_origin + self.reruns
 
 
 def analysis_searches(series, evaluation, shape: str = "auto") -> Searches:

@@ -14,11 +14,18 @@ Printed, all measured in this run:
 - cold: that cache emptied before each run (a single series in a fresh process);
 - baseline: the plain path kept behind a private switch (``evaluate._PLAIN_ORIGINS``: the
   whole break search at every origin) with the cache emptied, and the yardstick of one plain
-  least-squares fit of the global trend, so the figures can be compared across machines.
+  least-squares fit of the global trend, so the figures can be compared across machines;
+- evaluations fitted separately: warm, behind ``analysis._SEPARATE_EVALUATIONS``, every
+  evaluation offering and fitting every candidate itself (before the later evaluations of the
+  automatic shape offered only what the rule considers and borrowed the first one's break-free
+  rows), with a check that the verdict and the first evaluation are the same.
 
 Figures (busy shared 2-core machine, best of 5, after the design factor memo): cold 1069 ms,
 warm 950 ms (baseline 1905 ms), scan 19 ms cold / 13 ms warm; far above the goal since three
-shapes are evaluated (see DEVELOPERS.md, performance notes). The factor memo
+shapes are evaluated (see DEVELOPERS.md, performance notes). Evaluations sharing their
+break-free rows (load average 9 on 2 cores, best of 7): warm 1141 ms against 1366 ms fitted
+separately in the same run (1.20x, 225 ms saved; interleaved min of 12: 1068 against 1329 ms).
+The factor memo
 (``factor_memo.FACTORS``) is emptied with the nulls before the cold runs and the yardstick.
 
 Run: ``python benchmarks/bench_one_analysis.py [--repeats N]``.

@@ -32,12 +32,11 @@ class StrategyKind:
     (only these count for the recommendation's large-gain rule). ``reads_breaks``: its
     forecasts depend on the breaks known at an origin (those of a strategy that does not are
     the same in every evaluation on the same origins, so a later evaluation borrows them).
-    ``every_shape``: offered with
-    every shape the comparison tries, else once with the analyst's shape. ``mixed_shapes``: its
-    last regime may take another shape (``Strategy.last_shape``). ``uses_windows``: it
-    averages estimation windows and carries the comparison's window rule. ``from_breaks``: it
-    fits from the k-th last break (``Strategy.from_break``). ``standard``: the comparison
-    offers it."""
+    ``every_shape``: offered with every shape the comparison tries, else once with the
+    analyst's shape. ``mixed_shapes``: its last regime may take another shape
+    (``Strategy.last_shape``). ``uses_windows``: it averages estimation windows and carries the
+    comparison's window rule. ``from_breaks``: it fits from the k-th last break
+    (``Strategy.from_break``). ``standard``: the comparison offers it."""
 
     name: str
     forecast: Callable

@@ -49,8 +49,7 @@ from .stability import stability_of, stability_periods
 __all__ = ["BREAK_FREE", "CAUSES", "COVERAGE_FLOOR", "HISTORY_RULE", "RULE", "SWEEP_NOTE",
            "BreakDate", "Diagnosis", "Evidence", "GrowthNow", "History", "Model", "Run",
            "Stability", "Verdict", "break_dates", "build", "choose", "considered",
-           "coverage_caution",
-           "diagnose", "eligible", "evidence_of", "ForecastNow", "growth_now",
+           "coverage_caution", "diagnose", "eligible", "evidence_of", "ForecastNow", "growth_now",
            "history_advice", "history_sentence", "interval_words", "judged_by", "model_of",
            "origin_note", "search_shapes", "sentences", "stability_of", "stability_periods",
            "strategy_words"]

@@ -761,6 +761,12 @@ def _describe_break(series, problem: BreakProblem, kind: str, positions, i: int,
     if problem.degree == 2:
         curv = float((new(b + 1) - 2 * new(b) + new(b - 1)) - (old(b + 1) - 2 * old(b) + old(b - 1))
                      ) / 2.0
+    if kind == "level":  # a jump with a shared trend: no change of slope or curvature by
+        slope_old = slope_new  # construction (the differences are rounding, e.g. -1e-13)
+        slope_pct = 0.0 if log else None
+        curv = 0.0 if curv is not None else None
+    elif kind == "slope":  # a kink: the trend is continuous, no jump by construction
+        jump_model = jump = 0.0
     kink = kind == "both" and mostly_kink(new, old, b, problem.h)
     ci, method = _interval(problem, kind, positions, i, fit, robust, kink)
     f_stat = _partial_f(problem, kind, positions, i, fit, robust)

@@ -40,7 +40,11 @@ def test_nile_level_shift_from_1899():
     lo, hi = brk.ci95
     assert nile.label(lo) <= "1899" <= nile.label(hi)
     assert brk.jump < -200  # a drop of roughly a quarter of the flow
+    assert brk.slope_change == 0.0  # a level shift keeps the slope (not -1e-13 of rounding)
     assert result.tests.supf.p_value < 0.01
+    kink = detect_breaks(nile, kind="slope", max_breaks=1)
+    assert kink.n_breaks == 1  # the kink search dates one (1913)
+    assert kink.breaks[0].jump == 0.0 and kink.breaks[0].jump_model == 0.0  # continuous trend
 
 
 def test_nile_auto_kind_and_other_criteria_agree_on_1899():

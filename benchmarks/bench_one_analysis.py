@@ -14,11 +14,18 @@ Printed, all measured in this run:
 - cold: that cache emptied before each run (a single series in a fresh process);
 - baseline: the plain path kept behind a private switch (``evaluate._PLAIN_ORIGINS``: the
   whole break search at every origin) with the cache emptied, and the yardstick of one plain
-  least-squares fit of the global trend, so the figures can be compared across machines.
+  least-squares fit of the global trend, so the figures can be compared across machines;
+- evaluations fitted separately: warm, behind ``analysis._SEPARATE_EVALUATIONS``, every
+  evaluation offering and fitting every candidate itself (before the later evaluations of the
+  automatic shape offered only what the rule considers and borrowed the first one's break-free
+  rows), with a check that the verdict and the first evaluation are the same.
 
 Figures (busy shared 2-core machine, best of 5, after the design factor memo): cold 1069 ms,
 warm 950 ms (baseline 1905 ms), scan 19 ms cold / 13 ms warm; far above the goal since three
-shapes are evaluated (see DEVELOPERS.md, performance notes). The factor memo
+shapes are evaluated (see DEVELOPERS.md, performance notes). Evaluations sharing their
+break-free rows (load average 9 on 2 cores, best of 7): warm 1141 ms against 1366 ms fitted
+separately in the same run (1.20x, 225 ms saved; interleaved min of 12: 1068 against 1329 ms).
+The factor memo
 (``factor_memo.FACTORS``) is emptied with the nulls before the cold runs and the yardstick.
 
 Run: ``python benchmarks/bench_one_analysis.py [--repeats N]``.
@@ -37,6 +44,7 @@ import numpy as np  # noqa: E402
 import scipy.linalg  # noqa: E402,F401  (loads scipy's BLAS before the limit is set)
 from threadpoolctl import threadpool_limits  # noqa: E402
 
+import regimetrend.analysis as analysis  # noqa: E402
 import regimetrend.evaluate as evaluation  # noqa: E402
 from regimetrend import analyze, demo_path, load_series  # noqa: E402
 from regimetrend.breaks import calibrate, detect_breaks  # noqa: E402
@@ -69,6 +77,18 @@ def plain(fn):
     return run
 
 
+def separate(fn):
+    """``fn`` with every evaluation offering and fitting every candidate itself (the path
+    before the later evaluations borrowed the first one's break-free rows)."""
+    def run():
+        analysis._SEPARATE_EVALUATIONS = True
+        try:
+            return fn()
+        finally:
+            analysis._SEPARATE_EVALUATIONS = False
+    return run
+
+
 def forget() -> None:
     """Empty what a fresh process would not have: the kept nulls and design factors."""
     calibrate.NULLS.clear()
@@ -82,11 +102,15 @@ def main(repeats: int) -> None:
     scan = lambda: detect_breaks(series)  # noqa: E731
     yardstick = lambda: fit_history(series, spec)  # noqa: E731
     same = plain(whole)().to_dict() == whole().to_dict()
+    ours, theirs = whole(), separate(whole)()
+    same_verdict = ours.verdict.to_dict() == theirs.verdict.to_dict() and \
+        ours.evaluations["linear"].to_dict() == theirs.evaluations["linear"].to_dict()
     with threadpool_limits(limits=1):
         fit_ms = best_ms(yardstick, 20 * repeats, FACTORS.clear)
         base = best_ms(plain(whole), max(2, repeats // 2), forget)
         cold = best_ms(whole, repeats, forget)
         warm = best_ms(whole, repeats)
+        unshared = best_ms(separate(whole), repeats)
         scan_cold = best_ms(scan, 3 * repeats, forget)
         scan_warm = best_ms(scan, 3 * repeats)
     print(f"one analysis of the demo series ({series.n} monthly points), default settings, "
@@ -98,10 +122,14 @@ def main(repeats: int) -> None:
         print(f"  {label:<50} {ms:8.1f} ms  ({ms / fit_ms:.0f} fits; baseline / this "
               f"{base / ms:.2f}x; goal <= {GOAL_ANALYSIS_MS:.0f} ms: {ms / GOAL_ANALYSIS_MS:.2f}x "
               f"the goal)")
+    print(f"  {'whole analysis, warm, evaluations fitted separately':<50} {unshared:8.1f} ms  "
+          f"(this / shared {unshared / warm:.2f}x; saved {unshared - warm:.0f} ms)")
     for label, ms in (("scan (detect_breaks), cold", scan_cold), ("scan, warm", scan_warm)):
         print(f"  {label:<50} {ms:8.1f} ms  (goal <= {GOAL_SCAN_MS:.0f} ms: "
               f"{ms / GOAL_SCAN_MS:.2f}x the goal)")
     print(f"  same result as the plain path: {'yes' if same else 'NO'}")
+    print(f"  same verdict and first evaluation as the evaluations fitted separately: "
+          f"{'yes' if same_verdict else 'NO'}")
 
 
 if __name__ == "__main__":

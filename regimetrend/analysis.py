@@ -8,6 +8,7 @@ many series in other processes.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -70,6 +71,12 @@ class Analysis:
         })
 
 
+# benchmarks and tests only: every evaluation offers and fits every candidate itself (the
+# later evaluations of the automatic shape otherwise offer what the rule considers and borrow
+# the first one's rows of the other shapes' break-free candidates; same verdict)
+_SEPARATE_EVALUATIONS = False
+
+
 def _blas_held(fn):
     """Run ``fn`` with BLAS held to one thread. The analysis is thousands of tiny least-squares
     problems, which BLAS threads only slow down (the demo: 3.5 s of CPU with threads free,
@@ -123,9 +130,14 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
     latest = [(b.positions[-1], b.trim_periods) for s in run_shapes
               for b in [searches[s]] if b.positions]
     place_after = max(latest) if latest else None
-    runs = [verdicts.Run(s, searches[s], evaluate(series, specs[s], settings, searches[s],
-                                                  progress=progress, place_after=place_after))
-            for s in run_shapes]
+    runs: list = []
+    for s in run_shapes:
+        later = {} if not runs or _SEPARATE_EVALUATIONS else {
+            "offered": functools.partial(verdicts.considered, run_shape=s, explicit=explicit),
+            "shared": runs[0].evaluation}
+        runs.append(verdicts.Run(s, searches[s], evaluate(
+            series, specs[s], settings, searches[s], progress=progress,
+            place_after=place_after, **later)))
     lag1 = runs[0].evaluation.diagnosis.data.get("residual_lag1")
     # KPSS and AR(1) of the break models' residuals (``breaks/wandering.py``); under the
     # automatic shape read across shapes (a shape whose model leaves little persistence explains
@@ -147,7 +159,9 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
     stability = _stability(series, runs, explicit, wandering, index, chosen, settings,
                            verdicts)
     verdict = verdicts.build(series, runs, index, chosen, basis, growth, forecast, stability,
-                             explicit, lag1, wandering, searches)
+                             explicit, lag1, wandering, searches,
+                             functools.partial(_every_candidate, series, specs, settings, runs,
+                                               place_after, evaluate))
     extra = tuple(c for c in [verdicts.coverage_caution(verdict)] if c)
     return Analysis(series=series, settings=settings, spec=spec, breaks=run.breaks,
                     evaluation=_as_decided(run.evaluation, runs[0].evaluation, verdict),
@@ -160,6 +174,16 @@ def analyze(series, settings: Settings | None = None, *, progress=None,
                         unused=() if verdict.breaks else (run.breaks, runs[0].breaks)),
                     global_trend=global_fit.trend(), verdict=verdict, searches=searches,
                     evaluations={r.shape: r.evaluation for r in runs})
+
+
+def _every_candidate(series, specs, settings, runs, place_after, evaluate) -> list:
+    """The runs' evaluations with every standard candidate offered: the later ones refitted
+    on the breaks their origins knew (no search), for the one sentence of the diagnosis that
+    names the best model forecasting from the breaks across them (``verdict.build``)."""
+    return [r.evaluation if not i or _SEPARATE_EVALUATIONS else
+            evaluate(series, specs[r.shape], settings, r.breaks, place_after=place_after,
+                     origin_breaks=r.evaluation.breaks_by_origin)
+            for i, r in enumerate(runs)]
 
 
 def _as_decided(evaluation, reference_evaluation, verdict):

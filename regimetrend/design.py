@@ -100,6 +100,14 @@ class TimeScale:
         lo, hi = float(positions.min()), float(positions.max())
         return cls(center=(lo + hi) / 2.0, spread=max((hi - lo) / 2.0, 1.0))
 
+    @classmethod
+    def for_range(cls, start: int, stop: int) -> "TimeScale":
+        """``for_positions(np.arange(start, stop))`` without building the positions."""
+        if stop <= start:
+            raise ValueError("a time scale needs at least one position")
+        lo, hi = float(start), float(stop - 1)
+        return cls(center=(lo + hi) / 2.0, spread=max((hi - lo) / 2.0, 1.0))
+
     def u(self, positions) -> np.ndarray:
         return (np.asarray(positions, dtype=float) - self.center) / self.spread
 

@@ -19,6 +19,7 @@ from functools import lru_cache
 import numpy as np
 from scipy import stats
 from scipy.linalg import solve_triangular
+from scipy.linalg.lapack import dtrtrs
 
 from .factor_memo import FACTORS
 
@@ -272,6 +273,22 @@ def _scaled(X: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return norms, X / norms
 
 
+def _upper_solve(r: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """``solve_triangular(r, b, check_finite=False)`` for an upper-triangular float64 ``r``:
+    the same LAPACK call scipy makes (``dtrtrs`` on ``r``, or on its transpose for a
+    row-major ``r``), without the wrapper's checks, which cost more than the solve on the
+    small designs fitted thousands of times per analysis."""
+    if r.dtype != np.float64 or b.dtype != np.float64 or b.size == 0 or r.ndim != 2:
+        return solve_triangular(r, b, check_finite=False)
+    if r.flags.f_contiguous:
+        x, info = dtrtrs(r, b, lower=0, trans=0, unitdiag=0)
+    else:
+        x, info = dtrtrs(r.T, b, lower=1, trans=1, unitdiag=0)
+    if info != 0:
+        return solve_triangular(r, b, check_finite=False)  # raises scipy's error
+    return x
+
+
 def _qr_factors(X: np.ndarray, inverse: bool = True) -> tuple:
     """(norms, Q, R, R^-1 or None) of the design scaled by its column norms; raises
     ``RankDeficient`` when R shows dependent columns."""
@@ -281,7 +298,7 @@ def _qr_factors(X: np.ndarray, inverse: bool = True) -> tuple:
     diag = np.abs(np.diag(r))
     if diag.min() <= diag.max() * 1e-12 * max(n, k):
         raise RankDeficient("design columns are linearly dependent")
-    r_inv = solve_triangular(r, np.eye(k), check_finite=False) if inverse else None
+    r_inv = _upper_solve(r, np.eye(k)) if inverse else None
     return norms, q, r, r_inv
 
 
@@ -300,10 +317,10 @@ def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
     if n < TALL:  # the QR factors depend on the design alone: kept for the next fit of it
         norms, q, r, r_inv = FACTORS.get("ols-qr", X, _qr_factors)
         Xs = X / norms
-        beta_s = solve_triangular(r, q.T @ y, check_finite=False) if k else np.zeros(0)
+        beta_s = _upper_solve(r, q.T @ y) if k else np.zeros(0)
         # One step of iterative refinement recovers digits lost on ill-conditioned designs.
         resid = y - Xs @ beta_s
-        beta_s = beta_s + solve_triangular(r, q.T @ resid, check_finite=False)
+        beta_s = beta_s + _upper_solve(r, q.T @ resid)
     else:
         norms, Xs = _scaled(X)
         r = _cholesky_factor(Xs)

@@ -158,7 +158,7 @@ class RegimeDesign:
     @cached_property
     def scale(self) -> TimeScale:
         """The scaled index of all fitted positions (base trend, hinges and steps)."""
-        return TimeScale.for_positions(np.arange(self.n))
+        return TimeScale.for_range(0, self.n)
 
     @property
     def bounds(self) -> tuple[int, ...]:
@@ -176,7 +176,7 @@ class RegimeDesign:
         if self.kind != "both":
             return (self.scale,) * (len(self.breaks) + 1)
         b = self.bounds
-        return tuple(TimeScale.for_positions(np.arange(b[i], b[i + 1]))
+        return tuple(TimeScale.for_range(b[i], b[i + 1])
                      for i in range(len(b) - 1))
 
     @property

@@ -216,10 +216,12 @@ class OriginFits:
         self.minimum_window = int(minimum_window)  # shortest window the window average uses
         self._trends: dict = {}
         self._forecasts: dict = {}
+        self._blocks: dict = {}  # batched forecasts' fields as rows (see ``_keep``)
         self._designs: dict = {}  # joint-fit design matrices shared by shapes with equal columns
         self._specs: dict = {}
         self._y: dict = {}
         self._season_block = season_block
+        self._ahead = 0  # periods forecast after the origin, once known (``prefit``)
 
     def spec_for(self, shape: str) -> TrendSpec:
         if shape not in self._specs:
@@ -262,7 +264,7 @@ class OriginFits:
             if len(positions) < need:
                 raise InputError(f"{_what(start)} has {len(positions)} points; a "
                                  f"{spec.describe()} needs at least {need}")
-            scale = TimeScale.for_positions(positions)
+            scale = TimeScale.for_range(start, self.origin)
             X = self._design(spec, scale, start, self.origin)
             try:
                 result = ols.fit(X, self._model_y(spec)[start:])
@@ -324,29 +326,32 @@ class OriginFits:
         design = RegimeDesign(spec, LAYOUTS[layout], knots, self.origin, self.first_season,
                               last_shape=last_shape if layout == "separate" else None)
         positions = np.arange(self.origin)
-        scale = TimeScale.for_positions(positions)
+        scale = TimeScale.for_range(0, self.origin)
         proto = PiecewiseFit(spec, positions, self.first_season, scale, None,  # type: ignore[arg-type]
                              response.pattern,
                              design)
-        X = self._joint_design(proto, positions, 0, self.origin)
+        X = self._joint_design(proto, 0, self.origin)
         result = ols.fit(X, response.y)
         return PiecewiseFit(spec, positions, self.first_season, scale, result, response.pattern,
                             design)
 
-    def _joint_design(self, fit: PiecewiseFit, positions, start: int, stop: int) -> np.ndarray:
-        """Design rows ``start..stop-1`` of a joint fit, cached: linear and exponential pieces
-        have the same columns, so their fits share one matrix. The matrix is read-only (the
-        least-squares core keeps it, nobody edits it)."""
+    def _joint_design(self, fit: PiecewiseFit, start: int, stop: int) -> np.ndarray:
+        """Design rows ``start..stop-1`` of a joint fit, cached: the history's rows and the
+        forecast rows after it come from one build (each row depends on its position alone),
+        and linear and exponential pieces have the same columns, so their fits share one
+        matrix. The history's rows are read-only (the least-squares core keeps them, nobody
+        edits them); rows after the origin are a copy of their own."""
         d = fit.regime_design
         columns = tuple("quadratic" if sh == "quadratic" else "linear" for sh in d.shapes)
-        key = (d.kind, columns, d.breaks, d.spec.seasonality, start, stop)
-        X = self._designs.get(key)
-        if X is None:
-            X = fit.design(positions, self._seasonal(start, stop)
-                           if fit.spec.seasonality == "dummies" else None)
-            X.setflags(write=False)
-            self._designs[key] = X
-        return X
+        key = (d.kind, columns, d.breaks, d.spec.seasonality)
+        block = self._designs.get(key)
+        if block is None or len(block) < stop:
+            end = max(stop, self.origin + self._ahead)
+            block = fit.design(np.arange(end), self._seasonal(0, end)
+                               if fit.spec.seasonality == "dummies" else None)
+            block.setflags(write=False)
+            self._designs[key] = block
+        return block[start:stop] if start == 0 else block[start:stop].copy()
 
     def _response(self, spec: TrendSpec) -> ModelResponse:
         """The history on the model scale (seasonally adjusted under ``adjust``), cached."""
@@ -371,10 +376,11 @@ class OriginFits:
         positions = self.positions_after(horizon)
         key = (layout, shape, last_shape or shape, "fc", horizon)
         if key not in self._forecasts:
+            self._ahead = max(self._ahead, int(horizon))  # the design is built with these rows
             fit = self.piecewise(layout, shape, last_shape)
             X_new = None
             if isinstance(fit, PiecewiseFit):
-                X_new = self._joint_design(fit, positions, self.origin, self.origin + horizon)
+                X_new = self._joint_design(fit, self.origin, self.origin + horizon)
             elif fit.spec.seasonality != "adjust":
                 X_new = self._design(fit.spec, fit.scale, self.origin, self.origin + horizon)
             self._forecasts[key] = forecast_points(fit, positions, X_new)
@@ -396,19 +402,30 @@ class OriginFits:
 
     def prefit(self, strategies, horizon: int) -> None:
         """Fit every single trend the strategies need, one batched QR per design: shapes with
-        the same trend columns (linear and exponential: [1, u]) and the same window starts
-        share one QR, only their responses differ."""
-        positions = np.arange(self.origin, self.origin + horizon)
+        the same trend columns (linear and exponential: [1, u]) share one QR over the union of
+        their window starts, only their responses differ (a window's numbers do not depend on
+        the other windows of its batch)."""
+        positions = self.positions_after(horizon)
+        for by_shape in self.prefit_plan(strategies, horizon).values():
+            union = sorted(set().union(*by_shape.values()))
+            if not self._prefit_group(list(by_shape), union, positions, by_shape):
+                for shape, pending in by_shape.items():  # one singular window: as before,
+                    self._prefit_group([shape], pending, positions)  # shape by shape
+
+    def prefit_plan(self, strategies, horizon: int) -> dict:
+        """{trend columns: {shape: window starts not fitted yet}} of the single trends the
+        strategies need; a shape with a lone start is left out (it is fitted one by one)."""
+        positions = self.positions_after(horizon)
         wanted: dict = {}
         for st in strategies:
             wanted.setdefault(st.shape, set()).update(self.single_starts(st))
         groups: dict = {}
         for shape, starts in wanted.items():
             pending = self._pending(shape, sorted(starts), positions)
-            columns = "quadratic" if shape == "quadratic" else "linear"
-            groups.setdefault((columns, tuple(pending)), []).append(shape)
-        for (_, pending), shapes in groups.items():
-            self._prefit_group(shapes, list(pending), positions)
+            if len(pending) >= 2:
+                columns = "quadratic" if shape == "quadratic" else "linear"
+                groups.setdefault(columns, {})[shape] = pending
+        return groups
 
     def _pending(self, shape: str, starts, positions) -> list:
         """Window starts of ``shape`` whose forecasts are not cached yet."""
@@ -419,11 +436,13 @@ class OriginFits:
         ``batched_forecasts``) and cache their forecasts; ``adjust`` keeps the one-by-one path."""
         self._prefit_group([shape], self._pending(shape, starts, positions), positions)
 
-    def _prefit_group(self, shapes, pending, positions) -> None:
-        """Batched fits of the windows ``pending`` for shapes sharing one design (one QR)."""
+    def _prefit_group(self, shapes, pending, positions, keep=None) -> bool:
+        """Batched fits of the windows ``pending`` for shapes sharing one design (one QR);
+        ``keep[shape]`` limits the forecasts kept to that shape's own starts. False when a
+        window's design is singular (nothing kept: the one-by-one path reports it)."""
         spec = self.spec_for(shapes[0])
         if spec.seasonality == "adjust" or len(pending) < 2:
-            return
+            return True
         first = np.asarray(pending, dtype=float)
         last = float(self.origin - 1)
         center = (first + last) / 2.0  # TimeScale.for_positions of each window
@@ -433,30 +452,30 @@ class OriginFits:
         X[np.arange(self.origin)[None, :] < first[:, None]] = 0.0
         X_new = self._stacked_design(spec, center, spread, p0, p1)
         specs = [self.spec_for(sh) for sh in shapes]
-        got = batched_forecasts_many(X, [self._model_y(sp) for sp in specs], np.asarray(pending),
-                                     X_new, [sp.log_scale for sp in specs],
-                                     np.asarray(positions))
-        if got is None:
-            return  # a window's design is singular: the one-by-one path reports it
-        for shape, forecasts in zip(shapes, got):
-            for s, fc in zip(pending, forecasts):
-                self._forecasts[(shape, s, len(positions))] = fc
+        good, got = batched_fields(X, [self._model_y(sp) for sp in specs], np.asarray(pending),
+                                   X_new, [sp.log_scale for sp in specs])
+        if len(good) < len(pending):
+            return False
+        for shape, fields in zip(shapes, got):
+            own = None if keep is None else set(keep[shape])
+            for w, s in enumerate(pending):
+                if own is None or s in own:
+                    self._keep(shape, s, positions, fields[:, w])
+        return True
+
+    def _keep(self, shape: str, start: int, positions, block) -> None:
+        """Cache a batched single-trend forecast; ``block`` holds its six fields (mean, median,
+        interval ends) as rows, kept too for the window average."""
+        key = (shape, start, len(positions))
+        self._forecasts[key] = PointForecasts(np.asarray(positions), *block)
+        self._blocks[key] = block
 
     def _stacked_design(self, spec, center, spread, start: int, stop: int) -> np.ndarray:
         """(windows, stop - start, k) designs: [1, u, (u^2)] on each window's own time scale,
         then the shared seasonal columns."""
-        u = (np.arange(start, stop, dtype=float)[None, :] - center[:, None]) / spread[:, None]
-        p = 3 if spec.shape == "quadratic" else 2
-        season = self._seasonal(start, stop) if spec.seasonality == "dummies" else None
-        k = p + (season.shape[1] if season is not None else 0)
-        X = np.empty(u.shape + (k,))
-        X[..., 0] = 1.0
-        X[..., 1] = u
-        if p == 3:
-            X[..., 2] = u * u
-        if season is not None:
-            X[..., p:] = season[None, :, :]
-        return X
+        season = self._seasonal(0, stop) if spec.seasonality == "dummies" else None
+        return _stacked_rows(spec, np.arange(start, stop, dtype=float)[None, :], center,
+                             spread, season, slice(start, stop))
 
     def window_starts_for(self, shape: str) -> tuple[int, ...]:
         """Starts of the windows averaged here: those leaving at least the minimum window (and
@@ -469,27 +488,34 @@ class OriginFits:
         starts = self.window_starts_for(shape)
         self.prefit_windows(shape, starts, positions)
         parts = [self.trend_forecast(shape, s, positions) for s in starts]
-        fields = ("mean", "median", "lower80", "upper80", "lower95", "upper95")
+        kept = [self._blocks.get((shape, s, len(positions))) for s in starts]
+        blocks = [b for b in kept if b is not None]
+        if len(blocks) < len(parts):  # fitted one by one
+            fields = ("mean", "median", "lower80", "upper80", "lower95", "upper95")
+            blocks = [np.array([getattr(p, f) for f in fields]) for p in parts]
         # one (fields, windows, horizons) array and one mean instead of one per field
-        avg = np.array([[getattr(p, f) for p in parts] for f in fields]).mean(axis=1)
+        avg = np.stack(blocks, axis=1).mean(axis=1)
         return PointForecasts(np.asarray(positions), *avg)
 
 
 def forecast_points(fit: TrendFit, positions, X_new=None) -> PointForecasts:
-    """``TrendFit.forecast`` with cached t quantiles: the core's ``predict`` gives the mean and
-    the prediction standard error at the design rows; the intervals are mean +/- t se on the
-    model scale and are back-transformed as in ``trendfit`` (lognormal mean for logs)."""
+    """``TrendFit.forecast`` with cached t quantiles: the mean and the prediction standard
+    error at the design rows as the core's ``predict`` computes them (s^2 (1 + x'(X'X)^-1 x));
+    the intervals are mean +/- t se on the model scale and are back-transformed as in
+    ``trendfit`` (lognormal mean for logs)."""
     positions = np.atleast_1d(np.asarray(positions, dtype=int))
     X_new = fit.design(positions) if X_new is None else X_new
-    pred = fit.fit.predict(X_new, levels=())
-    m = pred.mean + fit.seasonal_offset(positions)
-    se = pred.se_pred
-    q80, q95 = t_quantile(0.80, pred.df), t_quantile(0.95, pred.df)
-    l80, u80, l95, u95 = m - q80 * se, m + q80 * se, m - q95 * se, m + q95 * se
+    core = fit.fit
+    X_new = np.atleast_2d(np.asarray(X_new, dtype=float))
+    leverage = np.einsum("ij,jk,ik->i", X_new, core.xtx_inv, X_new)
+    se = np.sqrt(np.maximum(core.sigma2 * (1.0 + leverage), 0.0))
+    m = X_new @ core.beta + fit.seasonal_offset(positions)
+    df = core.df_resid
+    q80, q95 = t_quantile(0.80, df), t_quantile(0.95, df)
+    ends = (m - q80 * se, m + q80 * se, m - q95 * se, m + q95 * se)
     if fit.spec.log_scale:
-        return PointForecasts(positions, np.exp(m + se * se / 2.0), np.exp(m), np.exp(l80),
-                              np.exp(u80), np.exp(l95), np.exp(u95))
-    return PointForecasts(positions, m, m.copy(), l80, u80, l95, u95)
+        return PointForecasts(positions, *np.exp(np.stack((m + se * se / 2.0, m) + ends)))
+    return PointForecasts(positions, m, m.copy(), *ends)
 
 
 def batched_forecasts(X, y, starts, X_new, log_scale: bool, positions):
@@ -509,21 +535,42 @@ def batched_forecasts_many(X, ys, starts, X_new, log_scales, positions):
     exponential trends share their columns): the QR, (X'X)^-1 and leverages are computed once,
     the y-dependent steps once per response. Returns one list of forecasts per response, or
     None when any window's design is rank deficient."""
-    W, n, k = X.shape
-    norms = np.linalg.norm(X, axis=1)
-    if np.any(norms == 0):
+    good, got = batched_fields(X, ys, starts, X_new, log_scales)
+    if len(good) < X.shape[0]:
         return None
+    return [[PointForecasts(positions, *fields[:, w]) for w in range(len(good))]
+            for fields in got]
+
+
+def batched_fields(X, ys, starts, X_new, log_scales):
+    """The arithmetic of ``batched_forecasts_many`` on W designs whose rows before
+    ``starts[w]`` are zero, skipping rank-deficient windows: (indices of the windows fitted,
+    one (6, fitted, H) array per response of mean, median, lower80, upper80, lower95, upper95
+    as rows)."""
+    W, n, k = X.shape
+    starts = np.asarray(starts)
+    n_w = n - starts
+    norms = np.linalg.norm(X, axis=1)
+    good = np.flatnonzero(~np.any(norms == 0, axis=1))
+    if len(good) < W:
+        X, X_new, norms, starts, n_w = X[good], X_new[good], norms[good], starts[good], n_w[good]
     Xs = X / norms[:, None, :]
     q, r = np.linalg.qr(Xs, mode="reduced")
     diag = np.abs(np.diagonal(r, axis1=1, axis2=2))
-    n_w = n - starts
-    if np.any(diag.min(axis=1) <= diag.max(axis=1) * 1e-12 * np.maximum(n_w, k)):
-        return None
-    r_inv = np.linalg.solve(r, np.broadcast_to(np.eye(k), (W, k, k)))
+    fine = diag.min(axis=1) > diag.max(axis=1) * 1e-12 * np.maximum(n_w, k)
+    if not np.all(fine):
+        good = good[fine]
+        X, X_new, norms, starts, n_w = X[fine], X_new[fine], norms[fine], starts[fine], n_w[fine]
+        Xs, q, r = Xs[fine], q[fine], r[fine]
+    G = len(good)
+    r_inv = np.linalg.solve(r, np.broadcast_to(np.eye(k), (G, k, k)))
     xtx_inv = np.einsum("wij,wkj->wik", r_inv, r_inv) / (norms[:, :, None] * norms[:, None, :])
     df = n_w - k
     lev = np.einsum("whi,wij,whj->wh", X_new, xtx_inv, X_new)
-    quantiles = [(t_quantile(0.80, int(d)), t_quantile(0.95, int(d))) for d in df]
+    # (G, 1) t quantiles; the interval arithmetic below is elementwise, so doing it on the
+    # (G, H) arrays at once gives each window the numbers its own row would
+    q80 = np.array([[t_quantile(0.80, int(d))] for d in df]).reshape(G, 1)
+    q95 = np.array([[t_quantile(0.95, int(d))] for d in df]).reshape(G, 1)
     inside = np.arange(n)[None, :] >= starts[:, None]
     out = []
     for y, log_scale in zip(ys, log_scales):
@@ -538,19 +585,29 @@ def batched_forecasts_many(X, ys, starts, X_new, log_scales, positions):
         sigma2 = ssr / df
         m = np.einsum("whk,wk->wh", X_new, beta)
         se = np.sqrt(np.maximum(sigma2[:, None] * (1.0 + lev), 0.0))
-        forecasts = []
-        for w in range(W):
-            q80, q95 = quantiles[w]
-            mw, sw = m[w], se[w]
-            l80, u80, l95, u95 = mw - q80 * sw, mw + q80 * sw, mw - q95 * sw, mw + q95 * sw
-            if log_scale:
-                forecasts.append(PointForecasts(positions, np.exp(mw + sw * sw / 2.0),
-                                                np.exp(mw), np.exp(l80), np.exp(u80),
-                                                np.exp(l95), np.exp(u95)))
-            else:
-                forecasts.append(PointForecasts(positions, mw, mw.copy(), l80, u80, l95, u95))
-        out.append(forecasts)
-    return out
+        ends = (m - q80 * se, m + q80 * se, m - q95 * se, m + q95 * se)
+        if log_scale:
+            out.append(np.exp(np.stack((m + se * se / 2.0, m) + ends)))
+        else:
+            out.append(np.stack((m, m.copy()) + ends))
+    return good, out
+
+
+def _stacked_rows(spec, t, center, spread, season, rows) -> np.ndarray:
+    """(windows, periods, k) design rows at positions ``t`` (one row of positions per window,
+    or one shared): [1, u, (u^2)] on each window's own time scale, then the seasonal columns
+    of ``season[rows]``."""
+    u = (t - center[:, None]) / spread[:, None]
+    p = 3 if spec.shape == "quadratic" else 2
+    k = p + (season.shape[1] if season is not None else 0)
+    X = np.empty(u.shape + (k,))
+    X[..., 0] = 1.0
+    X[..., 1] = u
+    if p == 3:
+        X[..., 2] = u * u
+    if season is not None:
+        X[..., p:] = season[rows][None] if isinstance(rows, slice) else season[rows]
+    return X
 
 
 def _what(start: int) -> str:

@@ -29,12 +29,14 @@ class StrategyKind:
     strategy does in one sentence. ``single_starts(fits, strategy)`` optionally names the
     starts of the single trends it forecasts from (they are then fitted in batches, and a single
     start is the first period the final forecast uses). ``regime_aware``: it uses the breaks
-    (only these count for the recommendation's large-gain rule). ``every_shape``: offered with
-    every shape the comparison tries, else once with the analyst's shape. ``mixed_shapes``: its
-    last regime may take another shape (``Strategy.last_shape``). ``uses_windows``: it
-    averages estimation windows and carries the comparison's window rule. ``from_breaks``: it
-    fits from the k-th last break (``Strategy.from_break``). ``standard``: the comparison
-    offers it."""
+    (only these count for the recommendation's large-gain rule). ``reads_breaks``: its
+    forecasts depend on the breaks known at an origin (those of a strategy that does not are
+    the same in every evaluation on the same origins, so a later evaluation borrows them).
+    ``every_shape``: offered with every shape the comparison tries, else once with the
+    analyst's shape. ``mixed_shapes``: its last regime may take another shape
+    (``Strategy.last_shape``). ``uses_windows``: it averages estimation windows and carries the
+    comparison's window rule. ``from_breaks``: it fits from the k-th last break
+    (``Strategy.from_break``). ``standard``: the comparison offers it."""
 
     name: str
     forecast: Callable
@@ -42,6 +44,7 @@ class StrategyKind:
     summary: str
     single_starts: Callable | None = None
     regime_aware: bool = True
+    reads_breaks: bool = True
     every_shape: bool = True
     mixed_shapes: bool = False
     uses_windows: bool = False
@@ -129,7 +132,8 @@ BUILT_IN = (
     StrategyKind("global", _forecast_global,
                  lambda st: f"one {st.shape} trend over all history",
                  "one trend over all history (the reference every other candidate is measured "
-                 "against).", single_starts=lambda fits, st: (0,), regime_aware=False),
+                 "against).", single_starts=lambda fits, st: (0,), regime_aware=False,
+                 reads_breaks=False),
     StrategyKind("separate", _forecast_separate, _separate_words,
                  "one trend per regime, fitted jointly with shared seasonal terms, forecast "
                  "from the last regime.", mixed_shapes=True),
@@ -149,7 +153,7 @@ BUILT_IN = (
                  "the average of forecasts from several estimation windows, a hedge when the "
                  "break date is uncertain.",
                  single_starts=lambda fits, st: fits.window_starts_for(st.shape),
-                 uses_windows=True),
+                 uses_windows=True, reads_breaks=False),
 )
 for _kind in BUILT_IN:
     if _kind.name not in strategy_names():

@@ -168,12 +168,21 @@ def compare(series, settings: Settings | None = None, *, shapes=None, window_cou
 
 
 def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
-             window_count: int = 10, progress=None, place_after=None) -> Evaluation:
+             window_count: int = 10, progress=None, place_after=None, offered=None,
+             shared: Evaluation | None = None, origin_breaks=None) -> Evaluation:
     """``compare`` with the spec already resolved and the full-sample break search ``full``
     already run with these settings (``analyze`` calls this, so each runs once per analysis);
     the origins are still searched afresh. ``place_after`` = (latest break, shortest regime)
     places the default origins so that half of them know a shortest regime after that break
-    (default: the latest break of ``full`` with its trimming; ``rolling.plan_origins``)."""
+    (default: the latest break of ``full`` with its trimming; ``rolling.plan_origins``).
+
+    For the later evaluations of the automatic shape (``analyze``): ``offered(strategy)``
+    says which standard candidates are offered (default all); ``shared``, an evaluation of the
+    same series on the same origins, lends its rows of the candidates of other shapes that use
+    no breaks (their forecasts do not depend on the breaks known at an origin, so they are the
+    same in every evaluation), which are then not fitted again; ``origin_breaks`` gives the
+    breaks known at each origin (``Evaluation.breaks_by_origin`` of an earlier run of the same
+    evaluation) instead of searching them."""
     options, ev = settings.breaks, settings.evaluation
     s = spec.season_length
     cautions = []
@@ -198,7 +207,13 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     if full.given:
         m_top = full.n_breaks
     reuse_breaks = ev.reuse_breaks
-    breaks_at, failed = _origin_breaks(series, plan, full, spec, options, reuse_breaks, m_top)
+    if origin_breaks is not None:
+        if len(origin_breaks) != len(plan.origins):
+            raise ValueError("origin_breaks must give the breaks of every origin of the plan")
+        breaks_at, failed = dict(zip(plan.origins, origin_breaks)).__getitem__, []
+    else:
+        breaks_at, failed = _origin_breaks(series, plan, full, spec, options, reuse_breaks,
+                                           m_top)
 
     # one window rule for the rolling origin and the final forecast (regimes.window_rule)
     spacing = window_spacing(plan.first, w_min, window_count)
@@ -206,7 +221,8 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     ranked = [dataclasses.replace(st, minimum_window=w_min, window_spacing=spacing)
               if st.kind.uses_windows else st
               for st in standard_strategies(shapes, earlier_breaks=max(m_top - 1, 0),
-                                            main_shape=spec.shape)]
+                                            main_shape=spec.shape)
+              if offered is None or offered(st)]
     for p, label in _event_positions(full, options.events):
         ranked.append(Strategy("truncated", spec.shape, start=p, start_label=f"event {label}"))
     sweep = [Strategy("truncated", spec.shape, start=g, start_label=series.label(g))
@@ -220,8 +236,9 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
     ranked_keys = {st.key for st in ranked}
     sweep = [st for st in sweep if st.key not in ranked_keys]
     strategies = ranked + sweep
+    copied = _lent_rows(shared, strategies, spec, series, plan, w_min, spacing)
     table, used = run_rolling(series, strategies, plan, spec.seasonality, s, breaks_at, grid,
-                              progress, w_min)
+                              progress, w_min, copied)
 
     reference = Strategy("global", spec.shape)
     e_ref = table.errors(reference.key)
@@ -296,6 +313,29 @@ def evaluate(series, spec: TrendSpec, settings: Settings, full, *, shapes=None,
                       diagnosis=diag, breaks=breakinfo.to_dict(full), breaks_by_origin=used,
                       same_as={table.names[i]: table.names[j] for i, j in same_as.items()},
                       errors=table, cautions=tuple(cautions))
+
+
+def _lent_rows(shared, strategies, spec: TrendSpec, series, plan, w_min: int,
+               spacing: int) -> dict:
+    """{strategy index: (ErrorTable, row)} of the candidates whose rows ``shared`` lends:
+    those of another shape than ``spec``'s that use no breaks, scored there on the same series,
+    origins, horizon, seasonal terms and window rule (none when any of these differ). The
+    candidates of the evaluation's own shape are fitted here: their single trends are fitted in
+    one batch per origin (``OriginFits.prefit``) whatever is lent."""
+    if shared is None:
+        return {}
+    table, model = shared.errors, shared.model
+    same = (np.array_equal(table.origins, plan.origins)
+            and table.targets.shape[1] == plan.horizon
+            and np.array_equal(table.actual, series.values[table.targets])
+            and model.get("seasonality") == spec.seasonality
+            and model.get("season_length") == spec.season_length
+            and model.get("minimum_window") == w_min
+            and model.get("window_spacing") == spacing)
+    if not same:
+        return {}
+    return {c: (table, table.index(st.key)) for c, st in enumerate(strategies)
+            if not st.kind.reads_breaks and st.shape != spec.shape and st.key in table.names}
 
 
 GIVEN_PLAN = ("the analyst's break dates, given in advance: at every origin those inside the "

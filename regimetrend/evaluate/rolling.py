@@ -178,16 +178,25 @@ class ErrorTable:
 
 def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonality: str,
                 season_length: int, breaks_at, window_starts=(), progress=None,
-                minimum_window: int = 0):
+                minimum_window: int = 0, copied=None):
     """Fit and forecast every strategy at every origin.
 
     ``breaks_at(o)`` returns the break positions known at origin ``o``; the window average at
-    ``o`` averages the ``window_starts`` leaving at least ``minimum_window`` periods. Returns
-    the ``ErrorTable`` and the breaks used at each origin."""
+    ``o`` averages the ``window_starts`` leaving at least ``minimum_window`` periods.
+    ``copied`` = {strategy index: (ErrorTable, row)}: rows taken from another table on the same
+    origins instead of fitted (forecasts that use no breaks, as an earlier evaluation made
+    them). Returns the ``ErrorTable`` and the breaks used at each origin."""
     values = series.values
     first_season = series.first_season()
     O, H, C = len(plan.origins), plan.horizon, len(strategies)
+    copied = copied or {}
+    fitted = [(c, st) for c, st in enumerate(strategies) if c not in copied]
     out = {f: np.empty((C, O, H)) for f in FIELDS}
+    for c, (other, row) in copied.items():
+        if not np.array_equal(other.origins, plan.origins) or other.targets.shape[1] != H:
+            raise ValueError("copied rows must come from a table on the same origins")
+        for f in FIELDS:
+            out[f][c] = getattr(other, f)[row]
     scale = np.empty(O)
     used = []
     block = (seasonal_columns(np.arange(series.n + H), first_season, season_length)
@@ -198,8 +207,8 @@ def run_rolling(series, strategies: list[Strategy], plan: OriginPlan, seasonalit
         fits = OriginFits(values[:o], first_season, seasonality, season_length, known,
                           window_starts, block, minimum_window)
         scale[i] = naive_scale(values[:o], season_length)
-        fits.prefit(strategies, H)
-        for c, strategy in enumerate(strategies):
+        fits.prefit([st for _, st in fitted], H)
+        for c, strategy in fitted:
             p = fits.forecast(strategy, H)
             out["forecast"][c, i] = p.mean
             out["lower80"][c, i] = p.lower80

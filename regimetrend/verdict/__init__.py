@@ -16,7 +16,7 @@ without the last periods), ``phrases`` and ``sentences`` (the words). ``build`` 
 from __future__ import annotations
 
 from .breaks_used import break_dates, judged_by
-from .choose import RULE, choose, eligible, evidence_of, model_of, search_shapes
+from .choose import RULE, choose, considered, eligible, evidence_of, model_of, search_shapes
 from .diagnose import diagnose
 from .fields import (
     BREAK_FREE,
@@ -48,16 +48,21 @@ from .stability import stability_of, stability_periods
 
 __all__ = ["BREAK_FREE", "CAUSES", "COVERAGE_FLOOR", "HISTORY_RULE", "RULE", "SWEEP_NOTE",
            "BreakDate", "Diagnosis", "Evidence", "GrowthNow", "History", "Model", "Run",
-           "Stability", "Verdict", "break_dates", "build", "choose", "coverage_caution",
-           "diagnose", "eligible", "evidence_of", "ForecastNow", "growth_now",
+           "Stability", "Verdict", "break_dates", "build", "choose", "considered",
+           "coverage_caution", "diagnose", "eligible", "evidence_of", "ForecastNow", "growth_now",
            "history_advice", "history_sentence", "interval_words", "judged_by", "model_of",
            "origin_note", "search_shapes", "sentences", "stability_of", "stability_periods",
            "strategy_words"]
 
 
 def build(series, runs: list[Run], run_index: int, candidate, basis: str, growth, forecast,
-          stability: Stability, explicit, lag1, wandering, searches=None) -> Verdict:
-    """The verdict of the chosen candidate (``choose``), with its growth table and forecast."""
+          stability: Stability, explicit, lag1, wandering, searches=None,
+          every_candidate=None) -> Verdict:
+    """The verdict of the chosen candidate (``choose``), with its growth table and forecast.
+
+    ``every_candidate()``, when given, returns the runs' evaluations with every standard
+    candidate offered (``analyze`` offers the later evaluations only what the rule considers);
+    the diagnosis calls it only when it names the best model forecasting from the breaks."""
     run = runs[run_index]
     model = model_of(candidate, run)
     evidence = evidence_of(runs, run_index, candidate, basis)
@@ -67,7 +72,7 @@ def build(series, runs: list[Run], run_index: int, candidate, basis: str, growth
     gnow = growth_now(growth, model)
     reference_found = break_dates(series, runs[0].breaks) if run_index else found
     diag = diagnose(series, model, runs, brks, found, evidence, lag1, wandering,
-                    hist.keep_from_label, searches, reference_found)
+                    hist.keep_from_label, searches, reference_found, every_candidate)
     st = candidate.strategy
     note = origin_note(series, run, brks)
     v = Verdict(series.name, series.frequency.name, model, evidence, brks,

@@ -81,7 +81,13 @@ def supf(breakset):
 
 
 def eligible(candidate, run_shape: str, explicit: str | None) -> bool:
-    st = candidate.strategy
+    """Rule step 2: the candidate is considered in the evaluation of ``run_shape``."""
+    return considered(candidate.strategy, run_shape, explicit)
+
+
+def considered(st, run_shape: str, explicit: str | None) -> bool:
+    """``eligible`` for a strategy (``regimes.Strategy``): what an evaluation after the first
+    needs to offer (``analyze``)."""
     if st.last_shape is not None:
         return False
     if explicit and st.shape != explicit:

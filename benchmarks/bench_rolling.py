@@ -46,12 +46,12 @@ def record(series) -> list:
     real = evaluation.run_rolling
 
     def spy(series, strategies, plan, seasonality, season_length, breaks_at, window_starts=(),
-            progress=None, minimum_window=0):
+            progress=None, minimum_window=0, copied=None):
         table = {o: breaks_at(o) for o in plan.origins}
         calls.append((series, strategies, plan, seasonality, season_length, table,
-                      window_starts, minimum_window))
+                      window_starts, minimum_window, copied))
         return real(series, strategies, plan, seasonality, season_length,
-                    lambda o: table[o], window_starts, progress, minimum_window)
+                    lambda o: table[o], window_starts, progress, minimum_window, copied)
 
     evaluation.run_rolling = spy
     try:
@@ -63,9 +63,9 @@ def record(series) -> list:
 
 def replay(calls) -> list:
     out = []
-    for series, strategies, plan, seasonality, s, table, starts, minimum in calls:
+    for series, strategies, plan, seasonality, s, table, starts, minimum, copied in calls:
         out.append(rolling.run_rolling(series, strategies, plan, seasonality, s,
-                                       table.__getitem__, starts, None, minimum)[0])
+                                       table.__getitem__, starts, None, minimum, copied)[0])
     return out
 
 

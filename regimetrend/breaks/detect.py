@@ -180,13 +180,13 @@ def _positions(series, spec, options: BreakSettings) -> tuple[int, ...]:
                         options.events, options.seasonal_by_regime, options.method,
                         options.serial_correlation)
         return tuple(int(p) for p in found.positions)
-    paths: dict[str, KindPath] = {}
-    if "both" in kinds:
-        paths["both"] = search_both(problem, M, criterion, "exact")
     first = _first_test(problem, kinds, robust, long_series)
     if M == 0 or (first is not None and all(first.adjusted[k] >= select.SEQUENTIAL_LEVEL
                                             for k in kinds)):
         return ()  # no first test rejects: every kind's count is zero (nothing below raises)
+    paths: dict[str, KindPath] = {}
+    if "both" in kinds:  # searched only where some kind's first test rejects
+        paths["both"] = search_both(problem, M, criterion, "exact")
     values, counts, _ = _as_deep_as_tested(problem, kinds, M, robust, first, paths)
     chosen_kind, m, _ = _pick_kind(problem, paths, values, counts, kinds, robust,
                                    kind == "auto")

@@ -302,6 +302,26 @@ def _qr_factors(X: np.ndarray, inverse: bool = True) -> tuple:
     return norms, q, r, r_inv
 
 
+def residual_sum_of_squares(X: np.ndarray, y: np.ndarray) -> float:
+    """``fit(X, y).ssr`` (the same arithmetic, so the same bits) without the covariance and
+    without keeping the factors: for designs fitted once, such as quasi-differenced ones,
+    where remembering them only costs a hash. Raises ``RankDeficient`` as ``fit`` does."""
+    X = np.asarray(X, dtype=float)
+    y = np.asarray(y, dtype=float)
+    n, k = X.shape
+    if n < k:
+        raise RankDeficient(f"{n} observations for {k} coefficients")
+    if n >= TALL:
+        return fit(X, y).ssr
+    norms, q, r, _ = _qr_factors(X, inverse=False)
+    Xs = X / norms
+    beta_s = _upper_solve(r, q.T @ y) if k else np.zeros(0)
+    resid = y - Xs @ beta_s
+    beta_s = beta_s + _upper_solve(r, q.T @ resid)
+    resid = y - X @ (beta_s / norms)
+    return float(resid @ resid)
+
+
 def fit(X: np.ndarray, y: np.ndarray, k_outside: int = 0) -> LeastSquaresFit:
     """Ordinary least squares by QR (semi-normal equations for tall, well-conditioned
     designs). Raises ``RankDeficient`` for a singular design.

@@ -591,7 +591,7 @@ def _quasi_gls_scores(problem: BreakProblem, paths, counts) -> dict:
         yq = np.r_[math.sqrt(1 - rho * rho) * y[0], y[1:] - rho * y[:-1]]
         Xq = np.vstack([math.sqrt(1 - rho * rho) * X[:1], X[1:] - rho * X[:-1]])
         try:
-            ssr = ols.fit(Xq, yq).ssr
+            ssr = ols.residual_sum_of_squares(Xq, yq)
         except ols.RankDeficient:
             ssr = math.inf
         p = select.parameter_count(problem.base_count, problem.changing(k), m_k)

@@ -30,7 +30,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
+from scipy import special
 
 
 @dataclass(frozen=True)
@@ -58,11 +58,12 @@ def _num(x):
     return None if x is None or not math.isfinite(x) else float(x)
 
 
-def autocovariances(d: np.ndarray, lags: int) -> np.ndarray:
-    """gamma_0..gamma_lags with divisor T, as in Diebold and Mariano (1995)."""
+def autocovariances(d: np.ndarray, lags: int, mean: float | None = None) -> np.ndarray:
+    """gamma_0..gamma_lags with divisor T, as in Diebold and Mariano (1995); ``mean`` is d's
+    mean when the caller has it already."""
     d = np.asarray(d, dtype=float)
     T = d.size
-    c = d - d.mean()
+    c = d - (d.mean() if mean is None else mean)
     return np.array([float(c[k:] @ c[:T - k]) / T for k in range(lags + 1)])
 
 
@@ -73,7 +74,7 @@ def _statistic(d: np.ndarray, lags: int):
     dbar = float(d.mean()) if T else float("nan")
     if T < 2:
         return None, None, dbar, lags, False
-    g = autocovariances(d, lags)
+    g = autocovariances(d, lags, dbar)
     v = g[0] + 2.0 * g[1:].sum()
     bartlett = False
     if not v > 0:
@@ -90,12 +91,14 @@ def _statistic(d: np.ndarray, lags: int):
 
 
 def _tests(diffs, lags_list) -> list[DMResult]:
-    """DM tests of several loss differentials, p-values from one vectorised t call."""
+    """DM tests of several loss differentials, p-values from one vectorised t call
+    (``special.stdtr(df, -x)`` is Student's t upper tail, the number ``stats.t.sf(x, df)``
+    returns, without the distribution object's argument handling)."""
     parts = [_statistic(np.asarray(d, dtype=float), L) for d, L in zip(diffs, lags_list)]
     dfs = np.array([max(np.asarray(d).size - 1, 1) for d in diffs], dtype=float)
     stats_ = np.array([p[0] if p[0] is not None else np.nan for p in parts])
-    p_better = stats.t.sf(stats_, dfs)
-    p_two = 2.0 * stats.t.sf(np.abs(stats_), dfs)
+    p_better = special.stdtr(dfs, -stats_)
+    p_two = 2.0 * special.stdtr(dfs, -np.abs(stats_))
     out = []
     for i, (stat, raw, dbar, lags, bart) in enumerate(parts):
         T = np.asarray(diffs[i]).size

@@ -130,10 +130,22 @@ def cause_counts(recs) -> list[tuple[str, int]]:
     return sorted(counts.items(), key=lambda kv: (-kv[1], kv[0]))
 
 
+def gain_note(recs) -> str:
+    """What the gain column compares, naming the reference model(s) the rows were scored
+    against (one trend over all history, of the first shape evaluated)."""
+    refs = sorted({str(r["gain_reference"]) for r in recs if r.get("gain_reference")})
+    named = " or ".join(refs) if refs else "one trend over all history"
+    return ("Forecast gain over the reference: how much smaller the forecast model's "
+            "rolling-origin RMSE is than that of the reference, one trend over all history "
+            f"({named}), on the same origins; 0% where the forecast model is the reference. "
+            "A positive gain says the model forecast past periods better; it does not "
+            "promise the next ones.")
+
+
 def _table(recs, order, store, tasks) -> str:
     head = ["rank", "id", "n", "calendar", "why this rank (rule step: evidence)",
             "latest break (95% interval)", "F of latest break", "growth now, % a year (95%)", "growth before, % a year",
-            "cause", "forecast model", "gain over global", "status"]
+            "cause", "forecast model", "forecast gain over the reference", "status"]
     out = ["<table><thead><tr>" + "".join(f"<th>{esc(h)}</th>" for h in head) +
            "</tr></thead><tbody>"]
     for k in order[:TABLE_ROWS]:
@@ -145,6 +157,8 @@ def _table(recs, order, store, tasks) -> str:
         last = r.get("last_break") or ""
         if last and r.get("last_break_ci95_low"):
             last += f" ({r['last_break_ci95_low']} to {r['last_break_ci95_high']})"
+        if last and r.get("last_break_in_model") is False:
+            last += "; not used by the forecast model"
         status = ("ok" if r.get("status") == "ok"
                   else f'<span class="failed">{esc(r.get("reason"))}</span>')
         gain = r.get("gain_over_global")
@@ -162,6 +176,7 @@ def _table(recs, order, store, tasks) -> str:
                  f"<td>{status}</td>"]
         out.append("<tr>" + "".join(cells) + "</tr>")
     out.append("</tbody></table>")
+    out.append(f"<p>{esc(gain_note(recs))}</p>")
     if len(order) > TABLE_ROWS:
         out.append(f"<p>The first {TABLE_ROWS} of {len(order)} series are shown; every series "
                    f"is in summary.csv, with its rank.</p>")

@@ -18,10 +18,11 @@ from ..growth_figures import ANNUALISED_PCT
 COLUMNS = (
     "id", "status", "reason", "level", "n", "calendar", "start", "end", "model",
     "forecast_model", "breaks", "breaks_ci95", "last_break", "last_break_ci95_low",
-    "last_break_ci95_high", "last_break_f", "recent_from", "recent_change", "keep_history_from",
+    "last_break_ci95_high", "last_break_f", "last_break_in_model", "recent_from", "recent_change", "keep_history_from",
     "growth_now_pct_a_year", "growth_now_low", "growth_now_high",
     "growth_before_pct_a_year", "growth_before_low", "growth_before_high",
-    "growth_change_p", "diagnosis_cause", "diagnosis", "gain_over_global", "stability",
+    "growth_change_p", "diagnosis_cause", "diagnosis", "gain_over_global", "gain_reference",
+    "stability",
     "supf_p", "cusum_crossing",
 )
 
@@ -90,16 +91,17 @@ def _from_verdict(row: dict, analysis, verdict) -> dict:
     breaks = v.get("breaks") or []
     row["breaks"] = "; ".join(b["date"] for b in breaks)
     row["breaks_ci95"] = "; ".join(f"{b['ci95'][0]} to {b['ci95'][1]}" for b in breaks)
-    if breaks:
-        last = breaks[-1]
+    last, in_model = _latest_break(breaks, verdict)
+    if last is not None:
         row["last_break"] = last["date"]
-        row["last_break_ci95_low"], row["last_break_ci95_high"] = last["ci95"]
+        row["last_break_ci95_low"], row["last_break_ci95_high"] = last["ci95"] or (None, None)
         same = [b for b in analysis.breaks.breaks if b.date == last["date"]]
         row["last_break_f"] = _num(same[0].f_statistic) if same else None
+        row["last_break_in_model"] = in_model
         row["recent_change"] = bool(last["date"] >= row["recent_from"])
     else:
         for key in ("last_break", "last_break_ci95_low", "last_break_ci95_high",
-                    "last_break_f"):
+                    "last_break_f", "last_break_in_model"):
             row[key] = None
         row["recent_change"] = False
     row["keep_history_from"] = v.get("keep_history_from")
@@ -114,7 +116,21 @@ def _from_verdict(row: dict, analysis, verdict) -> dict:
     row["stability"] = (v.get("stability") or {}).get("status")
     evidence = getattr(verdict, "evidence", None)
     row["gain_over_global"] = _num(getattr(evidence, "gain", None))
+    row["gain_reference"] = getattr(evidence, "reference", None)
     return row
+
+
+def _latest_break(model_breaks: list, verdict) -> tuple[dict | None, bool | None]:
+    """(the latest break the verdict names, whether the forecast model uses it): the model's
+    last break, or a later one the diagnosis cites as the regime change that the model does
+    not forecast from (too recent to judge, or a break-free model forecast better). The
+    triage ranks by it: a change the search dated near the end is evidence of a recent change
+    whatever model forecasts best."""
+    last = model_breaks[-1] if model_breaks else None
+    cited = (getattr(verdict.diagnosis, "evidence", None) or {}).get("cited_break")
+    if cited is not None and (last is None or cited.date > last["date"]):
+        return cited.to_dict(), False
+    return last, (True if last is not None else None)
 
 
 def row_from_analysis(analysis) -> dict:

@@ -82,14 +82,17 @@ def load(task: SeriesTask, shared: dict):
         raise InputError(file_rows_message(str(exc), task.rows)) from None
 
 
-def chart_data(series, fitted, breaks, used_dates=None) -> dict:
+def chart_data(series, fitted, breaks, used_dates=None, cited_dates=()) -> dict:
     """What the portfolio page draws for one series: values, regime fit, the breaks the search
-    found and those the chosen model uses (``used_dates``, the verdict's; None: all found)."""
-    found = [int(p) for p in breaks.positions]
+    found and those the chosen model uses (``used_dates``, the verdict's; None: all found).
+    ``cited_dates``: a break another shape's search dated that the diagnosis names (the
+    triage table's latest break when the model does not use it), drawn among those found."""
+    where = {series.iso(i): i for i in range(series.n)}
+    found = sorted({int(p) for p in breaks.positions} |
+                   {where[d] for d in cited_dates if d in where})
     if used_dates is None:
         used = found
     else:
-        where = {series.iso(i): i for i in range(series.n)}
         used = sorted(where[d] for d in used_dates if d in where)
     values = [float(v) for v in np.asarray(fitted, dtype=float)]
     # a model fitted on the recent history only (truncated) has no fit before its cut
@@ -131,8 +134,9 @@ def analyse(job: Job, series):
     detail["evaluation"] = _compact_evaluation(detail["evaluation"])
     row = row_from_analysis(analysis)
     used = [d for d in (row.get("breaks") or "").split("; ") if d]  # the verdict's breaks
-    return (row, detail, chart_data(series, analysis.growth.fitted, analysis.breaks, used),
-            analysis)
+    cited = [row["last_break"]] if row.get("last_break_in_model") is False else []
+    return (row, detail,
+            chart_data(series, analysis.growth.fitted, analysis.breaks, used, cited), analysis)
 
 
 def one_line(exc: BaseException) -> str:

@@ -91,7 +91,7 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             f"{head}; {cross_text}. A change of regime explains it: the break at "
             f"{break_words(b)}, {when}, starts the "
             f"regime the chosen model forecasts from, and one trend over all history is still "
-            f"pulled by the earlier regime."), dict(ev, explaining_break=b.label))
+            f"pulled by the earlier regime."), dict(ev, explaining_break=b.label, cited_break=b))
     other = _other_shape(runs, ref_shape, model, evidence, start_label, searches)
     if other is not None:
         shape, rmse, ref_rmse, start = other
@@ -122,7 +122,7 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
                 f"{break_words(b)}" if b.given else
                 f"{head}; {cross_text}. A change of regime explains it: the break search "
                 f"dates {change} at {break_words(b)}, {where}")
-        ev = dict(ev, explaining_break=b.label)
+        ev = dict(ev, explaining_break=b.label, cited_break=b)
         if not judged_by(runs[0], 0) or not _judged(runs, b):
             return Diagnosis("regime change", (
                 f"{lead}. The chosen model does not forecast from it, because it is too recent "

@@ -144,7 +144,10 @@ class ForecastNow:
 
 @dataclass(frozen=True)
 class Diagnosis:
-    """The cause (one of ``CAUSES``) of the reference trend's late failure, in one sentence."""
+    """The cause (one of ``CAUSES``) of the reference trend's late failure, in one sentence.
+
+    ``evidence`` holds the figures the sentence cites; under a regime change, ``cited_break``
+    is the ``BreakDate`` it names, whether the chosen model forecasts from it or not."""
 
     cause: str
     sentence: str

@@ -20,7 +20,10 @@ Printed, all measured in this run:
   automatic shape offered only what the rule considers and borrowed the first one's break-free
   rows), with a check that the verdict and the first evaluation are the same.
 
-Figures (busy shared 2-core machine, best of 5, after the design factor memo): cold 1069 ms,
+Latest figures (2026-12-04, quiet 2-core AMD EPYC, best of 5): cold 1115 ms, warm 834 ms,
+baseline 2375 ms (2.85x), scan 30.6 ms cold / 22.6 ms warm; that machine runs the baseline
+2.3 times slower than the one of the figures below, so compare the ratios.
+Earlier figures (busy shared 2-core machine, best of 5, after the design factor memo): cold 1069 ms,
 warm 950 ms (baseline 1905 ms), scan 19 ms cold / 13 ms warm; far above the goal since three
 shapes are evaluated (see DEVELOPERS.md, performance notes). Evaluations sharing their
 break-free rows (load average 9 on 2 cores, best of 7): warm 1141 ms against 1366 ms fitted

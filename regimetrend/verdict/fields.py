@@ -146,12 +146,14 @@ class ForecastNow:
 class Diagnosis:
     """The cause (one of ``CAUSES``) of the reference trend's late failure, in one sentence.
 
-    ``evidence`` holds the figures the sentence cites; under a regime change, ``cited_break``
-    is the ``BreakDate`` it names, whether the chosen model forecasts from it or not."""
+    ``evidence`` holds the figures the sentence cites; ``cited_break`` is the break a regime
+    change names, whether the chosen model forecasts from it or not (the portfolio's triage and
+    the report's chart show that same date)."""
 
     cause: str
     sentence: str
     evidence: dict = field(default_factory=dict)
+    cited_break: BreakDate | None = None
 
     def to_dict(self) -> dict:
         return {"cause": self.cause, "sentence": self.sentence}
